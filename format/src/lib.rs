@@ -1,0 +1,137 @@
+//! # classcert-format
+//!
+//! The certificate file of classcert: its data model ([`model`]) and its one
+//! byte encoding, deterministic CBOR ([`cbor`], RFC 8949 §4.2.1). The schema
+//! is written out in CDDL (RFC 8610) in `format/certificate.cddl`.
+//!
+//! ```text
+//!   file  = { "format": 1, "body": body, "body-sha256": bstr .size 32 }
+//!   bytes --prewalk--> ciborium Value --typed--> Body --re-encode--> bytes'
+//!                                                     bytes' == bytes ?
+//! ```
+//!
+//! What this crate does not do: it gives no meaning to the numbers. A
+//! decoded certificate is well-formed, canonical and intact (its digest
+//! matches), nothing more; the verifier decides whether it is true.
+
+#![forbid(unsafe_code)]
+
+pub mod cbor;
+pub mod json;
+pub mod model;
+
+pub use cbor::DecodeError;
+pub use model::*;
+
+use ciborium::Value;
+use sha2::{Digest, Sha256};
+
+/// The largest file the decoder will look at.
+pub const MAX_FILE_BYTES: usize = 256 << 20;
+
+/// Why a certificate file was refused.
+#[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum FileError {
+    TooLarge { bytes: usize, limit: usize },
+    Decode(DecodeError),
+    UnsupportedVersion(u64),
+    DigestMismatch,
+}
+
+impl std::fmt::Display for FileError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            FileError::TooLarge { bytes, limit } => {
+                write!(f, "the file has {bytes} bytes; the limit is {limit}")
+            }
+            FileError::Decode(e) => e.fmt(f),
+            FileError::UnsupportedVersion(v) => {
+                write!(f, "format version {v} is not supported (this build reads version {FORMAT_VERSION})")
+            }
+            FileError::DigestMismatch => {
+                write!(
+                    f,
+                    "the body does not match its SHA-256 digest (the file was altered or damaged)"
+                )
+            }
+        }
+    }
+}
+
+impl std::error::Error for FileError {}
+
+impl From<DecodeError> for FileError {
+    fn from(e: DecodeError) -> Self {
+        FileError::Decode(e)
+    }
+}
+
+/// A decoded, canonical, intact certificate.
+#[derive(Debug, Clone)]
+pub struct Decoded {
+    pub body: Body,
+    /// SHA-256 of the canonical body: the certificate's id.
+    pub id: [u8; 32],
+}
+
+impl Decoded {
+    pub fn id_hex(&self) -> String {
+        hex(&self.id)
+    }
+}
+
+pub fn hex(bytes: &[u8]) -> String {
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+fn sha256(bytes: &[u8]) -> [u8; 32] {
+    Sha256::digest(bytes).into()
+}
+
+fn file_value(body: &Body) -> Result<(Value, [u8; 32]), DecodeError> {
+    let body_bytes = body.encode()?;
+    let id = sha256(&body_bytes);
+    let v = cbor::map(vec![
+        ("format", cbor::uint(FORMAT_VERSION)),
+        ("body", body.to_value()),
+        ("body-sha256", Value::Bytes(id.to_vec())),
+    ]);
+    Ok((v, id))
+}
+
+/// Encodes a certificate file; returns the bytes and the certificate id.
+pub fn encode_file(body: &Body) -> Result<(Vec<u8>, [u8; 32]), DecodeError> {
+    let (v, id) = file_value(body)?;
+    Ok((cbor::from_value(&v)?, id))
+}
+
+/// Decodes a certificate file strictly (see [`cbor`]): canonical bytes only,
+/// no trailing data, and a matching digest.
+pub fn decode_file(bytes: &[u8]) -> Result<Decoded, FileError> {
+    if bytes.len() > MAX_FILE_BYTES {
+        return Err(FileError::TooLarge {
+            bytes: bytes.len(),
+            limit: MAX_FILE_BYTES,
+        });
+    }
+    let v = cbor::to_value(bytes, cbor::WalkLimits::default())?;
+    let mut top = cbor::MapReader::new(&v, "file")?;
+    let version = cbor::get_u64(top.req("format")?, "file.format")?;
+    if version != FORMAT_VERSION {
+        return Err(FileError::UnsupportedVersion(version));
+    }
+    let body = Body::from_value(top.req("body")?)?;
+    let claimed = cbor::get_bytes(top.req("body-sha256")?, "file.body-sha256")?.to_vec();
+    top.finish()?;
+    let (re, id) = encode_file(&body)?;
+    if re != bytes {
+        return Err(FileError::Decode(DecodeError::NonCanonical(
+            "the bytes differ from the canonical encoding of their content",
+        )));
+    }
+    if claimed != id {
+        return Err(FileError::DigestMismatch);
+    }
+    Ok(Decoded { body, id })
+}

@@ -1,0 +1,845 @@
+//! The checks, in the order of the mathematics (see `DEVELOPERS.md` and
+//! the design note): order → conductor and maximality → factor base
+//! (generation) → relations → lattice and Smith form → claim → analytic
+//! bound → verdict.
+//!
+//! Fail closed: each step returns a token that only this module can build,
+//! and [`Verified`] is assembled from all of them, so a skipped step does
+//! not compile.
+
+use crate::arith::{kronecker_prime, mod_small, primes_up_to, small_conductor};
+use crate::euler;
+use crate::form::Form;
+use crate::interval::Interval;
+use crate::limits::*;
+use crate::primality::{primality_evidence, Evidence};
+use crate::registry::{self, Theorem};
+use crate::verdict::{reject, Assumption, Reason, Rejection, Verified};
+use classcert_format::{Body, Order, PrimeIdeal, Witness};
+use rug::ops::Pow;
+use rug::Integer;
+
+type Check<T> = Result<T, Rejection>;
+
+/// Step 0: a valid negative discriminant within limits.
+struct OrderOk {
+    d: Integer,
+    abs_d: Integer,
+    w: u32,
+}
+
+/// Step 0 (continued): conductor part found by trial division, and the
+/// maximality claim if any.
+struct ConductorOk {
+    trial_primes: Vec<u64>,
+    d_small: Integer,
+    conductor: Vec<(u64, u32)>,
+    maximal: bool,
+    bpsw_assumed: bool,
+}
+
+/// Step 1: the factor base holds an invertible prime ideal above every
+/// prime up to the generation bound.
+struct GenerationOk {
+    bound: u64,
+    theorem: &'static Theorem,
+    forms: Vec<Form>,
+}
+
+/// Steps 2–3: relations hold, and `Z^n / L ≅ ⊕ Z/d_i` with `h | ∏ d_i`.
+struct LatticeOk {
+    h_star: Integer,
+    diagonal: Vec<Integer>,
+}
+
+/// The claim matches the lattice.
+struct ClaimOk {
+    invariants: Vec<Integer>,
+    generators: Vec<(Integer, Integer, Integer)>,
+}
+
+/// Step 5: `h = h*`.
+struct AnalyticOk {
+    log_h: Interval,
+    x: u64,
+}
+
+fn check_order(body: &Body) -> Check<OrderOk> {
+    let Order::Quadratic { discriminant: d } = &body.order;
+    let abs_d = Integer::from(d.abs_ref());
+    if abs_d.significant_bits() > MAX_DISCRIMINANT_BITS {
+        return reject(
+            Reason::OverLimit,
+            format!("|D| has more than {MAX_DISCRIMINANT_BITS} bits"),
+        );
+    }
+    if *d >= 0 {
+        return reject(
+            Reason::UnsupportedOrder,
+            "this verifier checks imaginary quadratic orders (D < 0) only",
+        );
+    }
+    let r = d.mod_u(4);
+    if r != 0 && r != 1 {
+        return reject(
+            Reason::InvalidDiscriminant,
+            format!("D = {d} is not ≡ 0 or 1 mod 4"),
+        );
+    }
+    let w = match d.to_i32() {
+        Some(-3) => 6,
+        Some(-4) => 4,
+        _ => 2,
+    };
+    Ok(OrderOk {
+        d: d.clone(),
+        abs_d,
+        w,
+    })
+}
+
+fn check_conductor_and_maximality(
+    body: &Body,
+    order: &OrderOk,
+    trial_bound: u64,
+) -> Check<ConductorOk> {
+    let trial_primes = primes_up_to(trial_bound);
+    let (conductor, d_small) = small_conductor(&order.d, &trial_primes);
+    if conductor != body.conductor_small {
+        return reject(
+            Reason::ConductorMismatch,
+            format!(
+                "trial division to {trial_bound} finds conductor primes {:?}; the certificate states {:?}",
+                conductor, body.conductor_small
+            ),
+        );
+    }
+    let mut maximal = false;
+    let mut bpsw_assumed = false;
+    if let Some(factors) = &body.maximality {
+        if factors.len() > MAX_FACTORS {
+            return reject(
+                Reason::OverLimit,
+                "too many factors in the maximality claim",
+            );
+        }
+        let mut product = Integer::from(1);
+        let mut prev = Integer::new();
+        let mut two_exp = 0u32;
+        let mut squarefree_odd = true;
+        for f in factors {
+            if f.prime <= prev || f.exponent == 0 || f.exponent > MAX_DISCRIMINANT_BITS {
+                return reject(
+                    Reason::MaximalityFactorisation,
+                    "factors must be listed once each, in increasing order, with positive exponents",
+                );
+            }
+            if f.prime.significant_bits() > MAX_DISCRIMINANT_BITS {
+                return reject(Reason::OverLimit, "a factor is too large");
+            }
+            match primality_evidence(&f.prime) {
+                Evidence::Composite => {
+                    return reject(
+                        Reason::MaximalityFactorisation,
+                        format!("{} is not prime (it fails the BPSW test)", f.prime),
+                    )
+                }
+                Evidence::ProvenPrime => {}
+                Evidence::ProbablePrime => bpsw_assumed = true,
+            }
+            if f.prime == 2 {
+                two_exp = f.exponent;
+            } else if f.exponent != 1 {
+                squarefree_odd = false;
+            }
+            product *= Integer::from((&f.prime).pow(f.exponent));
+            if product.significant_bits() > MAX_DISCRIMINANT_BITS + 1 {
+                return reject(
+                    Reason::MaximalityFactorisation,
+                    "the factors multiply past |D|",
+                );
+            }
+            prev = f.prime.clone();
+        }
+        if product != order.abs_d {
+            return reject(
+                Reason::MaximalityFactorisation,
+                format!(
+                    "the stated factors multiply to {product}, not |D| = {}",
+                    order.abs_d
+                ),
+            );
+        }
+        // D fundamental: D ≡ 1 (4) squarefree, or D = 4m, m ≡ 2, 3 (4), m squarefree.
+        let fundamental = squarefree_odd
+            && match two_exp {
+                0 => order.d.mod_u(4) == 1,
+                2 => matches!(Integer::from(&order.d >> 2u32).mod_u(4), 2 | 3),
+                3 => true,
+                _ => false,
+            };
+        if !fundamental {
+            return reject(
+                Reason::MaximalityNotFundamental,
+                "the factorisation shows that D is not a fundamental discriminant",
+            );
+        }
+        maximal = true;
+    }
+    Ok(ConductorOk {
+        trial_primes,
+        d_small,
+        conductor,
+        maximal,
+        bpsw_assumed,
+    })
+}
+
+fn check_generation(
+    body: &Body,
+    order: &OrderOk,
+    cond: &ConductorOk,
+    bound: u64,
+    theorem: &'static Theorem,
+) -> Check<GenerationOk> {
+    if body.factor_base.len() > MAX_FACTOR_BASE {
+        return reject(Reason::OverLimit, "factor base too large");
+    }
+    let d = &order.d;
+    let conductor_primes: Vec<u64> = cond.conductor.iter().map(|(p, _)| *p).collect();
+    let mut forms = Vec::with_capacity(body.factor_base.len());
+    let mut prev = 0u64;
+    let max_p = cond.trial_primes.last().copied().unwrap_or(0);
+    for (i, PrimeIdeal::QuadraticForm { p, b }) in body.factor_base.iter().enumerate() {
+        let (p, b) = (*p, *b);
+        let bad = |why: &str| {
+            reject(
+                Reason::FactorBaseInvalid,
+                format!("factor base entry {i} ({p}, {b}): {why}"),
+            )
+        };
+        if p <= prev {
+            return bad("entries must be in strictly increasing order of p");
+        }
+        if p > max_p || cond.trial_primes.binary_search(&p).is_err() {
+            return bad("p is not a prime up to the trial-division bound");
+        }
+        if conductor_primes.contains(&p) {
+            return bad("p divides the conductor, so its prime ideals are not invertible");
+        }
+        if b > p {
+            return bad("b must satisfy 0 <= b <= p");
+        }
+        let Ok(form) = Form::new(Integer::from(p), Integer::from(b), d) else {
+            return bad("b^2 is not ≡ D mod 4p");
+        };
+        forms.push(form);
+        prev = p;
+    }
+    // Coverage: every p <= bound, p not dividing the conductor, (D/p) != -1.
+    let mut fb = body
+        .factor_base
+        .iter()
+        .map(|PrimeIdeal::QuadraticForm { p, .. }| *p)
+        .peekable();
+    for &p in cond.trial_primes.iter().take_while(|&&p| p <= bound) {
+        while fb.peek().is_some_and(|&q| q < p) {
+            fb.next();
+        }
+        if conductor_primes.contains(&p) || kronecker_prime(d, p) == -1 {
+            continue;
+        }
+        if fb.peek() != Some(&p) {
+            return reject(
+                Reason::FactorBaseGap,
+                format!(
+                    "no prime ideal above p = {p} in the factor base (generation bound {bound})"
+                ),
+            );
+        }
+    }
+    Ok(GenerationOk {
+        bound,
+        theorem,
+        forms,
+    })
+}
+
+/// Budget for form arithmetic across all relation checks.
+struct Budget(u64);
+
+impl Budget {
+    fn charge(&mut self, e: &Integer) -> Check<()> {
+        let bits = e.significant_bits();
+        if bits > MAX_ENTRY_BITS {
+            return reject(Reason::OverLimit, "an exponent is too large");
+        }
+        let cost = 2 * u64::from(bits) + 1;
+        if cost > self.0 {
+            return reject(
+                Reason::OverLimit,
+                "relations need more form arithmetic than the verifier allows",
+            );
+        }
+        self.0 -= cost;
+        Ok(())
+    }
+}
+
+/// `∏ forms[i]^e` over `entries`; true if it reduces to the principal form.
+fn is_principal(
+    forms: &[Form],
+    entries: &[(usize, &Integer)],
+    d: &Integer,
+    budget: &mut Budget,
+) -> Check<bool> {
+    let mut acc = Form::principal(d);
+    for (i, e) in entries {
+        budget.charge(e)?;
+        let Some(f) = forms.get(*i) else {
+            return reject(
+                Reason::EliminationStructure,
+                format!("index {i} is outside the factor base"),
+            );
+        };
+        let Ok(x) = f.pow(e, d).and_then(|x| acc.compose(&x)) else {
+            return Ok(false);
+        };
+        acc = x;
+    }
+    Ok(acc == Form::principal(d))
+}
+
+fn mat_mul(a: &[Vec<Integer>], b: &[Vec<Integer>], n: usize) -> Vec<Vec<Integer>> {
+    let mut out = vec![vec![Integer::new(); n]; n];
+    for (row_out, row_a) in out.iter_mut().zip(a.iter()) {
+        for (k, aik) in row_a.iter().enumerate() {
+            if aik.is_zero() {
+                continue;
+            }
+            if let Some(row_b) = b.get(k) {
+                for (o, bkj) in row_out.iter_mut().zip(row_b.iter()) {
+                    *o += Integer::from(aik * bkj);
+                }
+            }
+        }
+    }
+    out
+}
+
+fn is_square(m: &[Vec<Integer>], n: usize) -> bool {
+    m.len() == n
+        && m.iter()
+            .all(|r| r.len() == n && r.iter().all(|x| x.significant_bits() <= MAX_ENTRY_BITS))
+}
+
+fn is_identity(m: &[Vec<Integer>]) -> bool {
+    m.iter().enumerate().all(|(i, r)| {
+        r.iter()
+            .enumerate()
+            .all(|(j, x)| *x == Integer::from(i == j))
+    })
+}
+
+fn check_lattice(body: &Body, order: &OrderOk, gen: &GenerationOk) -> Check<LatticeOk> {
+    let l = &body.lattice;
+    let n = gen.forms.len();
+    let r = l.generators.len();
+    if r > MAX_RANK {
+        return reject(
+            Reason::OverLimit,
+            format!("{r} generators; the limit is {MAX_RANK}"),
+        );
+    }
+    let mut known = vec![false; n];
+    for &g in &l.generators {
+        match known.get_mut(g as usize) {
+            Some(k) if !*k => *k = true,
+            _ => {
+                return reject(
+                    Reason::GeneratorsInvalid,
+                    format!("generator index {g} is repeated or outside the factor base"),
+                )
+            }
+        }
+    }
+    let d = &order.d;
+    let mut budget = Budget(MAX_COMPOSITIONS);
+    // Relations among the generators (rows of H).
+    if !is_square(&l.relations, r) {
+        return reject(
+            Reason::SmithShape,
+            format!("the relation matrix must be {r} x {r}"),
+        );
+    }
+    let Witness::FormReduction = l.relation_witness;
+    for (i, row) in l.relations.iter().enumerate() {
+        let entries: Vec<(usize, &Integer)> = l
+            .generators
+            .iter()
+            .zip(row.iter())
+            .filter(|(_, e)| !e.is_zero())
+            .map(|(g, e)| (*g as usize, e))
+            .collect();
+        if !is_principal(&gen.forms, &entries, d, &mut budget)? {
+            return reject(
+                Reason::RelationNotPrincipal,
+                format!("generator relation {i} does not reduce to the principal form"),
+            );
+        }
+    }
+    // Smith form: U H V = diag(d), U U' = V V' = I, d_i | d_{i+1}.
+    let s = &l.smith;
+    if !(is_square(&s.u, r)
+        && is_square(&s.u_inv, r)
+        && is_square(&s.v, r)
+        && is_square(&s.v_inv, r))
+        || s.diagonal.len() != r
+    {
+        return reject(
+            Reason::SmithShape,
+            format!("Smith transforms must be {r} x {r}"),
+        );
+    }
+    if !is_identity(&mat_mul(&s.u, &s.u_inv, r)) || !is_identity(&mat_mul(&s.v, &s.v_inv, r)) {
+        return reject(
+            Reason::SmithNotUnimodular,
+            "U U' or V V' is not the identity",
+        );
+    }
+    let uhv = mat_mul(&mat_mul(&s.u, &l.relations, r), &s.v, r);
+    for (i, row) in uhv.iter().enumerate() {
+        for (j, x) in row.iter().enumerate() {
+            let want = if i == j {
+                s.diagonal.get(i).cloned().unwrap_or_default()
+            } else {
+                Integer::new()
+            };
+            if *x != want {
+                return reject(
+                    Reason::SmithMismatch,
+                    format!("(U H V)[{i}][{j}] = {x}, not the stated {want}"),
+                );
+            }
+        }
+    }
+    let mut h_star = Integer::from(1);
+    for (i, di) in s.diagonal.iter().enumerate() {
+        if *di < 1 || di.significant_bits() > MAX_ENTRY_BITS {
+            return reject(
+                Reason::SmithDivisibility,
+                format!("diagonal entry {i} must be positive"),
+            );
+        }
+        if let Some(next) = s.diagonal.get(i + 1) {
+            if !next.is_divisible(di) {
+                return reject(
+                    Reason::SmithDivisibility,
+                    format!("d_{i} = {di} does not divide d_{} = {next}", i + 1),
+                );
+            }
+        }
+        h_star *= di;
+    }
+    // Eliminations: each ideal outside G is ±1 times a product of ideals
+    // already accounted for.
+    if l.eliminations.len() > n {
+        return reject(
+            Reason::EliminationStructure,
+            "more eliminations than factor-base ideals",
+        );
+    }
+    for (k, el) in l.eliminations.iter().enumerate() {
+        let p = el.pivot as usize;
+        if known.get(p).copied() != Some(false) {
+            return reject(
+                Reason::EliminationStructure,
+                format!("elimination {k}: pivot {p} is already accounted for or out of range"),
+            );
+        }
+        let Witness::FormReduction = el.relation.witness;
+        let ents = &el.relation.entries;
+        if ents.len() > MAX_RELATION_ENTRIES {
+            return reject(Reason::OverLimit, "a relation has too many entries");
+        }
+        let mut prev: Option<u32> = None;
+        let mut pivot_ok = false;
+        for (i, e) in ents {
+            if prev.is_some_and(|q| q >= *i) || e.is_zero() {
+                return reject(
+                    Reason::EliminationStructure,
+                    format!(
+                        "elimination {k}: entries must be nonzero and in increasing index order"
+                    ),
+                );
+            }
+            prev = Some(*i);
+            if *i as usize == p {
+                pivot_ok = *e == 1 || *e == -1;
+            } else if known.get(*i as usize).copied() != Some(true) {
+                return reject(
+                    Reason::EliminationStructure,
+                    format!("elimination {k}: index {i} is not yet accounted for"),
+                );
+            }
+        }
+        if !pivot_ok {
+            return reject(
+                Reason::EliminationStructure,
+                format!("elimination {k}: the pivot's coefficient must be ±1"),
+            );
+        }
+        let entries: Vec<(usize, &Integer)> = ents.iter().map(|(i, e)| (*i as usize, e)).collect();
+        if !is_principal(&gen.forms, &entries, d, &mut budget)? {
+            return reject(
+                Reason::EliminationNotPrincipal,
+                format!("elimination {k} (pivot {p}) does not reduce to the principal form"),
+            );
+        }
+        if let Some(slot) = known.get_mut(p) {
+            *slot = true;
+        }
+    }
+    if let Some(missing) = known.iter().position(|k| !k) {
+        return reject(
+            Reason::EliminationIncomplete,
+            format!("factor-base ideal {missing} is neither a generator nor eliminated"),
+        );
+    }
+    Ok(LatticeOk {
+        h_star,
+        diagonal: s.diagonal.clone(),
+    })
+}
+
+fn check_claim(
+    body: &Body,
+    order: &OrderOk,
+    gen: &GenerationOk,
+    lat: &LatticeOk,
+) -> Check<ClaimOk> {
+    let c = &body.claim;
+    if c.class_number != lat.h_star {
+        return reject(
+            Reason::ClassNumberMismatch,
+            format!(
+                "claimed class number {} but the Smith diagonal multiplies to {}",
+                c.class_number, lat.h_star
+            ),
+        );
+    }
+    let nontrivial: Vec<(usize, Integer)> = lat
+        .diagonal
+        .iter()
+        .enumerate()
+        .filter(|(_, d)| **d > 1)
+        .map(|(i, d)| (i, d.clone()))
+        .collect();
+    let inv: Vec<Integer> = nontrivial.iter().map(|(_, d)| d.clone()).collect();
+    if c.invariants != inv {
+        return reject(
+            Reason::InvariantsMismatch,
+            "claimed invariants differ from the Smith diagonal entries > 1",
+        );
+    }
+    if c.generators.len() != nontrivial.len() {
+        return reject(
+            Reason::GeneratorMismatch,
+            "one generator per invariant factor is required",
+        );
+    }
+    let l = &body.lattice;
+    let r = l.generators.len();
+    let d = &order.d;
+    let mut budget = Budget(MAX_COMPOSITIONS);
+    let mut out = Vec::with_capacity(c.generators.len());
+    for ((i, _), g) in nontrivial.iter().zip(c.generators.iter()) {
+        if g.exponents.len() != r {
+            return reject(
+                Reason::GeneratorMismatch,
+                "generator exponent vector has the wrong length",
+            );
+        }
+        // x V ≡ e_i (mod d_j) in every coordinate j
+        for (j, dj) in lat.diagonal.iter().enumerate() {
+            let mut s = Integer::new();
+            for (xk, vrow) in g.exponents.iter().zip(l.smith.v.iter()) {
+                if let Some(vkj) = vrow.get(j) {
+                    s += Integer::from(xk * vkj);
+                }
+            }
+            s -= Integer::from(j == *i);
+            if !s.is_divisible(dj) {
+                return reject(
+                    Reason::GeneratorMismatch,
+                    format!("generator {i} does not map to the unit vector of factor {i}"),
+                );
+            }
+        }
+        let entries: Vec<(usize, &Integer)> = l
+            .generators
+            .iter()
+            .zip(g.exponents.iter())
+            .filter(|(_, e)| !e.is_zero())
+            .map(|(gi, e)| (*gi as usize, e))
+            .collect();
+        let mut acc = Form::principal(d);
+        for (idx, e) in entries {
+            budget.charge(e)?;
+            let Some(f) = gen.forms.get(idx) else {
+                return reject(Reason::GeneratorMismatch, "generator index out of range");
+            };
+            match f.pow(e, d).and_then(|x| acc.compose(&x)) {
+                Ok(x) => acc = x,
+                Err(_) => return reject(Reason::GeneratorMismatch, "form arithmetic failed"),
+            }
+        }
+        if acc.a != g.form.a || acc.b != g.form.b || acc.c != g.form.c {
+            return reject(
+                Reason::GeneratorMismatch,
+                format!(
+                    "generator {i} reduces to ({}, {}, {}), not the stated form",
+                    acc.a, acc.b, acc.c
+                ),
+            );
+        }
+        out.push((acc.a, acc.b, acc.c));
+    }
+    Ok(ClaimOk {
+        invariants: inv,
+        generators: out,
+    })
+}
+
+/// The enclosure of `log h(O_D)` from the class number formula and the
+/// Euler-product enclosure of `log L(1, χ_d)`; shared with the prover so
+/// both sides agree on what is checked.
+pub fn log_h_enclosure(
+    d: &Integer,
+    w: u32,
+    log_l: &Interval,
+    conductor: &[(u64, u32)],
+    d_small: &Integer,
+    x: u64,
+) -> Option<Interval> {
+    let abs_d = Interval::int(&Integer::from(d.abs_ref()));
+    let half_log_d = abs_d.ln()?.div(&Interval::u64(2))?;
+    let two_pi = Interval::pi().mul(&Interval::u64(2));
+    let mut acc = Interval::u64(u64::from(w))
+        .div(&two_pi)?
+        .ln()?
+        .add(&half_log_d)
+        .add(log_l);
+    for (p, _) in conductor {
+        let chi = i64::from(kronecker_prime(d_small, *p));
+        let pi = Interval::u64(*p);
+        let factor = pi.sub(&Interval::int(&Integer::from(chi))).div(&pi)?;
+        acc = acc.add(&factor.ln()?);
+    }
+    // Primes q > X of the conductor not found by trial division: at most
+    // log|D| / (2 log X) of them, each contributing log(1 ± 1/X) at most.
+    let k = abs_d
+        .ln()?
+        .div(&Interval::u64(x).ln()?.mul(&Interval::u64(2)))?;
+    let k_max = k.hi.to_f64().floor().max(0.0) as u64;
+    if k_max > 0 {
+        let xi = Interval::u64(x);
+        let lo = xi.sub(&Interval::u64(1)).div(&xi)?.ln()?;
+        let hi = xi.add(&Interval::u64(1)).div(&xi)?.ln()?;
+        let k = Interval::u64(k_max);
+        let slop = Interval {
+            lo: lo.mul(&k).lo,
+            hi: hi.mul(&k).hi,
+        };
+        acc = acc.add(&slop);
+    }
+    Some(acc)
+}
+
+fn check_analytic(
+    body: &Body,
+    order: &OrderOk,
+    cond: &ConductorOk,
+    lat: &LatticeOk,
+) -> Check<AnalyticOk> {
+    let e = &body.euler;
+    if registry::lookup(&e.theorem).map(|t| t.id) != Some(registry::BELABAS_FRIEDMAN) {
+        return reject(
+            Reason::UnknownTheorem,
+            format!(
+                "{:?} is not an Euler-product theorem in the registry",
+                e.theorem
+            ),
+        );
+    }
+    let x = e.x;
+    if !(euler::MIN_X..=MAX_EULER_X).contains(&x) {
+        return reject(
+            Reason::EulerXOutOfRange,
+            format!("X = {x} must lie in [{}, {MAX_EULER_X}]", euler::MIN_X),
+        );
+    }
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let Some(log_delta) = Interval::int(&order.abs_d).ln() else {
+        return bad();
+    };
+    let Some(err) = euler::error_bound(x, &log_delta) else {
+        return bad();
+    };
+    let ln2 = Interval::ln2();
+    if Interval::u64(2).mul(&err).hi >= ln2.lo {
+        return reject(
+            Reason::EulerXTooSmall,
+            format!(
+                "at X = {x} the error term is {:.4}; twice it must stay below log 2",
+                err.hi.to_f64()
+            ),
+        );
+    }
+    if e.checkpoints.len() > MAX_CHECKPOINTS {
+        return reject(Reason::OverLimit, "too many Euler checkpoints");
+    }
+    let limits: Vec<u64> = e.checkpoints.iter().map(|c| c.limit).collect();
+    if limits.windows(2).any(|w| w.first() >= w.get(1)) || limits.iter().any(|&l| l > x) {
+        return reject(
+            Reason::EulerTraceMismatch,
+            "checkpoint limits must increase and not exceed X",
+        );
+    }
+    let ds = &cond.d_small;
+    let chi = |p: u64| kronecker_prime(ds, p);
+    let Some(res) = euler::compute(x, &cond.trial_primes, &chi, &limits, &log_delta) else {
+        return bad();
+    };
+    for (claimed, mine) in e.checkpoints.iter().zip(res.checkpoints.iter()) {
+        let (Some(a), Some(c)) = (
+            Interval::from_bounds(&claimed.a),
+            Interval::from_bounds(&claimed.c),
+        ) else {
+            return reject(
+                Reason::EulerTraceMismatch,
+                "a checkpoint interval is out of range",
+            );
+        };
+        if !a.contains(&mine.a) || !c.contains(&mine.c) {
+            return reject(
+                Reason::EulerTraceMismatch,
+                format!("the partial sums up to {} disagree with the recomputation (A in [{:.12}, {:.12}])", mine.limit, mine.a.lo.to_f64(), mine.a.hi.to_f64()),
+            );
+        }
+    }
+    let Some(claimed) = Interval::from_bounds(&e.log_l) else {
+        return reject(
+            Reason::EulerIntervalUnderstated,
+            "the stated interval is out of range",
+        );
+    };
+    if !claimed.contains(&res.log_l) {
+        return reject(
+            Reason::EulerIntervalUnderstated,
+            format!(
+                "the stated enclosure of log L(1, chi) does not contain the rigorous one [{:.9}, {:.9}]",
+                res.log_l.lo.to_f64(),
+                res.log_l.hi.to_f64()
+            ),
+        );
+    }
+    let Some(log_h) = log_h_enclosure(&order.d, order.w, &res.log_l, &cond.conductor, ds, x) else {
+        return bad();
+    };
+    let hs = Interval::int(&lat.h_star);
+    let Some(log_hs) = hs.ln() else { return bad() };
+    // h* = k h with k >= 1. If log h* < lo(log h) + log 2 then k = 1.
+    if log_hs.hi >= log_h.add(&ln2).lo {
+        return reject(
+            Reason::ClassNumberNotConfirmed,
+            format!(
+                "h* = {} is too large: log h* = {:.6} but log h <= {:.6} + log 2 is all the analytic bound allows for k = 1",
+                lat.h_star,
+                log_hs.hi.to_f64(),
+                log_h.lo.to_f64()
+            ),
+        );
+    }
+    if log_hs.hi < log_h.lo {
+        return reject(
+            Reason::AnalyticInconsistent,
+            format!("h* = {} is below the analytic lower bound exp({:.6}): relations and GRH cannot both hold", lat.h_star, log_h.lo.to_f64()),
+        );
+    }
+    Ok(AnalyticOk { log_h, x })
+}
+
+/// Checks a decoded certificate body.
+pub fn verify_body(body: &Body) -> Check<Verified> {
+    let order = check_order(body)?;
+    let Some(gen_theorem) = registry::lookup(&body.generation_theorem) else {
+        return reject(
+            Reason::UnknownTheorem,
+            format!(
+                "{:?} is not in the theorem registry",
+                body.generation_theorem
+            ),
+        );
+    };
+    let Some(bound) = registry::generation_bound(gen_theorem.id, &order.abs_d) else {
+        return reject(
+            Reason::UnknownTheorem,
+            format!("{:?} is not a generation bound", gen_theorem.id),
+        );
+    };
+    let x = body.euler.x;
+    let trial_bound = bound.max(x);
+    if trial_bound > MAX_SIEVE {
+        return reject(
+            Reason::OverLimit,
+            format!("the trial-division bound {trial_bound} exceeds {MAX_SIEVE}"),
+        );
+    }
+    let cond = check_conductor_and_maximality(body, &order, trial_bound)?;
+    if gen_theorem.id == registry::BACH_FIELD && !cond.maximal {
+        return reject(
+            Reason::GenerationTheoremNotApplicable,
+            "the field bound applies only to a maximal order, and maximality is not certified",
+        );
+    }
+    let gen = check_generation(body, &order, &cond, bound, gen_theorem)?;
+    let lat = check_lattice(body, &order, &gen)?;
+    let claim = check_claim(body, &order, &gen, &lat)?;
+    let analytic = check_analytic(body, &order, &cond, &lat)?;
+    let _ = mod_small;
+
+    let mut assumptions = vec![Assumption::Grh];
+    if cond.bpsw_assumed {
+        assumptions.push(Assumption::BpswProbablePrime);
+    }
+    let mut theorems: Vec<&'static Theorem> = vec![gen.theorem];
+    for id in [
+        registry::LATTICE_INDEX,
+        registry::BELABAS_FRIEDMAN,
+        registry::CLASS_NUMBER_FORMULA,
+    ] {
+        if let Some(t) = registry::lookup(id) {
+            theorems.push(t);
+        }
+    }
+    if cond.maximal {
+        if let Some(t) = registry::lookup(registry::BPSW_SMALL) {
+            theorems.push(t);
+        }
+    }
+    Ok(Verified {
+        class_number: lat.h_star,
+        invariants: claim.invariants,
+        generators: claim.generators,
+        maximal: cond.maximal,
+        assumptions,
+        theorems,
+        w: order.w,
+        euler_x: analytic.x,
+        generation_bound: gen.bound,
+        log_h: analytic.log_h,
+        factor_base_size: gen.forms.len(),
+        _sealed: (),
+    })
+}

@@ -1,0 +1,200 @@
+//! The Euler-product approximation of `log L(1, χ_d)` with its error term
+//! (K. Belabas and E. Friedman, Math. Comp. 84 (2015), Theorem 1; registry
+//! entry `belabas-friedman-2015-thm1`). Under GRH, for real `X >= 69`:
+//!
+//! ```text
+//! B(Y) = Σ_{prime powers n < Y} c(n)/sqrt(n) · (sqrt(Y) log Y / (sqrt(n) log n) - 1)
+//!      = sqrt(Y) log(Y) · A(Y) - C(Y),   with c(p^m) = χ(p)^m log p and
+//! A(Y) = Σ χ(p)^m / (m p^m),   C(Y) = Σ χ(p)^m log p / p^{m/2}
+//! f(X) = 3 (B(X) - B(X/9)) / (2 sqrt(X) log(3X))
+//! |log L(1, χ_d) - f(X)| <= E(X) = 2.324 log Δ / (sqrt(X) log(3X)) ·
+//!        ((1 + 3.88/log(X/9)) (1 + 2/sqrt(log Δ))^2 + 4.26 (n-1) / (sqrt(X) log Δ))
+//! ```
+//! with `n = 2` and `Δ = |d|`. `E` grows with `Δ`, so `|D| >= |d|` may stand
+//! in for it. Everything is computed in outward-rounded intervals.
+
+use crate::interval::Interval;
+use crate::registry::EULER_SAFETY_FACTOR;
+
+/// Smallest `X` the theorem allows.
+pub const MIN_X: u64 = 69;
+
+/// Partial sums `A`, `C` over prime powers `n < limit`.
+#[derive(Debug, Clone)]
+pub struct Partial {
+    pub limit: u64,
+    pub a: Interval,
+    pub c: Interval,
+}
+
+#[derive(Debug, Clone)]
+pub struct EulerResult {
+    pub x: u64,
+    /// Partial sums at each requested limit (ascending).
+    pub checkpoints: Vec<Partial>,
+    /// `f(X)`.
+    pub f: Interval,
+    /// `E(X)` times the safety factor.
+    pub error: Interval,
+    /// `[f - E, f + E]`, the enclosure of `log L(1, χ_d)`.
+    pub log_l: Interval,
+}
+
+/// The error term `E(X)` (times the registry's safety factor) for
+/// `log Δ ∈ log_delta`; the upper end is what matters.
+pub fn error_bound(x: u64, log_delta: &Interval) -> Option<Interval> {
+    if x < MIN_X {
+        return None;
+    }
+    let xi = Interval::u64(x);
+    let sx = xi.sqrt()?;
+    let l3x = Interval::u64(x.checked_mul(3)?).ln()?;
+    let lx9 = xi.div(&Interval::u64(9))?.ln()?;
+    let one = Interval::u64(1);
+    let t1 = one.add(&Interval::ratio(388, 100)?.div(&lx9)?);
+    let t2 = one.add(&Interval::u64(2).div(&log_delta.sqrt()?)?);
+    let t2sq = t2.mul(&t2);
+    let t3 = Interval::ratio(426, 100)?.div(&sx.mul(log_delta))?;
+    let inner = t1.mul(&t2sq).add(&t3);
+    let lead = Interval::ratio(2324, 1000)?
+        .mul(log_delta)
+        .div(&sx.mul(&l3x))?;
+    Some(lead.mul(&inner).mul(&Interval::u64(EULER_SAFETY_FACTOR)))
+}
+
+/// Computes `f(X)`, `E(X)` and the partial sums at `limits` (which must be
+/// ascending and at most `x`). `primes` must hold every prime below `x`;
+/// `chi(p)` is `χ_d(p)`.
+pub fn compute(
+    x: u64,
+    primes: &[u64],
+    chi: &dyn Fn(u64) -> i8,
+    limits: &[u64],
+    log_delta: &Interval,
+) -> Option<EulerResult> {
+    let error = error_bound(x, log_delta)?;
+    // n < X/9  <=>  9n < X  <=>  n < (X - 1)/9 + 1
+    let l2 = (x - 1) / 9 + 1;
+    let mut bounds: Vec<u64> = limits.to_vec();
+    bounds.push(l2);
+    bounds.push(x);
+    bounds.sort_unstable();
+    bounds.dedup();
+    if bounds.last().copied() != Some(x) {
+        return None;
+    }
+    let zero = Interval::zero();
+    let mut bucket_a = vec![zero.clone(); bounds.len()];
+    let mut bucket_c = vec![zero.clone(); bounds.len()];
+    for &p in primes {
+        if p >= x {
+            break;
+        }
+        let ch = chi(p);
+        if ch == 0 {
+            continue;
+        }
+        let lnp = Interval::u64(p).ln()?;
+        let mut n = p;
+        let mut m = 1u64;
+        let mut sign = ch;
+        loop {
+            let idx = bounds.partition_point(|&b| b <= n);
+            let a_term = Interval::u64(1).div(&Interval::u64(m.checked_mul(n)?))?;
+            let c_term = lnp.div(&Interval::u64(n).sqrt()?)?;
+            let (a_term, c_term) = if sign < 0 {
+                (a_term.neg(), c_term.neg())
+            } else {
+                (a_term, c_term)
+            };
+            if let (Some(ba), Some(bc)) = (bucket_a.get_mut(idx), bucket_c.get_mut(idx)) {
+                *ba = ba.add(&a_term);
+                *bc = bc.add(&c_term);
+            }
+            match n.checked_mul(p) {
+                Some(next) if next < x => {
+                    n = next;
+                    m += 1;
+                    sign *= ch;
+                }
+                _ => break,
+            }
+        }
+    }
+    let mut acc_a = zero.clone();
+    let mut acc_c = zero;
+    let mut all = Vec::with_capacity(bounds.len());
+    for ((limit, ba), bc) in bounds.iter().zip(bucket_a.iter()).zip(bucket_c.iter()) {
+        acc_a = acc_a.add(ba);
+        acc_c = acc_c.add(bc);
+        all.push(Partial {
+            limit: *limit,
+            a: acc_a.clone(),
+            c: acc_c.clone(),
+        });
+    }
+    let at = |lim: u64| all.iter().find(|p| p.limit == lim);
+    let p1 = at(x)?;
+    let p2 = at(l2)?;
+    let xi = Interval::u64(x);
+    let sx = xi.sqrt()?;
+    let lx = xi.ln()?;
+    let b1 = sx.mul(&lx).mul(&p1.a).sub(&p1.c);
+    let sy = sx.div(&Interval::u64(3))?;
+    let ly = lx.sub(&Interval::u64(9).ln()?);
+    let b2 = sy.mul(&ly).mul(&p2.a).sub(&p2.c);
+    let l3x = Interval::u64(x.checked_mul(3)?).ln()?;
+    let f = Interval::u64(3)
+        .mul(&b1.sub(&b2))
+        .div(&Interval::u64(2).mul(&sx).mul(&l3x))?;
+    let log_l = f.widen(&error);
+    let checkpoints = all
+        .into_iter()
+        .filter(|p| limits.contains(&p.limit))
+        .collect();
+    Some(EulerResult {
+        x,
+        checkpoints,
+        f,
+        error,
+        log_l,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::arith::{kronecker_prime, primes_up_to};
+    use rug::Integer;
+
+    fn run(d: i64, x: u64) -> EulerResult {
+        let dd = Integer::from(d);
+        let primes = primes_up_to(x);
+        let ld = Interval::int(&Integer::from(d.abs())).ln().unwrap();
+        compute(x, &primes, &|p| kronecker_prime(&dd, p), &[], &ld).unwrap()
+    }
+
+    // Cross-check figures from the project's design note (computed there
+    // with plain doubles; not values from a published table).
+    #[test]
+    fn minus_4_at_1000() {
+        let r = run(-4, 1000);
+        assert!(
+            (r.f.mid_f64() - (-0.24143)).abs() < 5e-5,
+            "{}",
+            r.f.mid_f64()
+        );
+        // E = 0.170 before the safety factor of 2
+        assert!((r.error.mid_f64() / 2.0 - 0.170).abs() < 1e-3);
+        // log(π/4) (L(1, χ_{-4}) = π/4, Leibniz; common practice) lies inside
+        let truth = (std::f64::consts::PI / 4.0).ln();
+        assert!(r.log_l.lo.to_f64() < truth && truth < r.log_l.hi.to_f64());
+    }
+
+    #[test]
+    fn minus_23_at_100000() {
+        let r = run(-23, 100_000);
+        assert!((r.f.mid_f64() - 0.67558).abs() < 5e-5, "{}", r.f.mid_f64());
+        assert!((r.error.mid_f64() / 2.0 - 0.0117).abs() < 1e-4);
+    }
+}

@@ -1,0 +1,215 @@
+//! Positive definite binary quadratic forms `(a, b, c)`, `b^2 - 4ac = D < 0`.
+//!
+//! Composition follows H. Cohen, *A Course in Computational Algebraic Number
+//! Theory*, Alg. 5.4.7 (Shanks), and reduction Alg. 5.4.2. Every reduced
+//! form is the unique reduced form of its class (Gauss; Cohen Prop. 5.3.3),
+//! which is what makes "reduces to the principal form" a proof that a
+//! product of prime forms is principal.
+
+use rug::ops::{DivRounding, RemRounding};
+use rug::Integer;
+
+/// A form; callers keep `a > 0` and `b^2 - 4ac = D` (checked on entry by
+/// [`Form::new`]).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Form {
+    pub a: Integer,
+    pub b: Integer,
+    pub c: Integer,
+}
+
+/// Arithmetic refused (only on inputs that break the invariants).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct FormError;
+
+/// Reduction of a form whose `a` has `k` bits takes about `k` steps; this
+/// cap is far above anything a bounded input can need.
+const MAX_REDUCTION_STEPS: u32 = 100_000;
+
+impl Form {
+    /// `(a, b, (b^2 - D)/(4a))`, refused unless `a > 0` and `4a | b^2 - D`.
+    pub fn new(a: Integer, b: Integer, d: &Integer) -> Result<Form, FormError> {
+        if a <= 0 {
+            return Err(FormError);
+        }
+        let num = Integer::from(b.square_ref()) - d;
+        let four_a = Integer::from(&a << 2u32);
+        if !num.is_divisible(&four_a) {
+            return Err(FormError);
+        }
+        let c = num / four_a;
+        Ok(Form { a, b, c })
+    }
+
+    /// The principal form `(1, D mod 2, (D mod 2 - D)/4)`.
+    pub fn principal(d: &Integer) -> Form {
+        let b = Integer::from(d.is_odd());
+        let c = (Integer::from(&b) - d) >> 2u32;
+        Form {
+            a: Integer::from(1),
+            b,
+            c,
+        }
+    }
+
+    pub fn inverse(&self) -> Form {
+        Form {
+            a: self.a.clone(),
+            b: Integer::from(-&self.b),
+            c: self.c.clone(),
+        }
+    }
+
+    pub fn is_reduced(&self) -> bool {
+        let abs_b = Integer::from(self.b.abs_ref());
+        abs_b <= self.a
+            && self.a <= self.c
+            && (self.b >= 0 || (abs_b != self.a && self.a != self.c))
+    }
+
+    /// Cohen Alg. 5.4.2.
+    pub fn reduce(mut self) -> Result<Form, FormError> {
+        if self.a <= 0 {
+            return Err(FormError);
+        }
+        self.normalize();
+        let mut steps = 0u32;
+        while self.a > self.c {
+            steps += 1;
+            if steps > MAX_REDUCTION_STEPS || self.c <= 0 {
+                return Err(FormError);
+            }
+            std::mem::swap(&mut self.a, &mut self.c);
+            self.b = -std::mem::take(&mut self.b);
+            self.normalize();
+        }
+        if self.a == self.c && self.b < 0 {
+            self.b = -std::mem::take(&mut self.b);
+        }
+        Ok(self)
+    }
+
+    /// Brings `b` into `(-a, a]` by `b ← b + 2ak`, adjusting `c`; needs `a > 0`.
+    fn normalize(&mut self) {
+        let two_a = Integer::from(&self.a << 1u32);
+        if self.b > -Integer::from(&self.a) && self.b <= self.a {
+            return;
+        }
+        // k = floor((a - b) / 2a)
+        let k = (Integer::from(&self.a - &self.b)).div_floor(two_a.clone());
+        // c' = c + k b + k^2 a, b' = b + 2ak
+        let kb = Integer::from(&k * &self.b);
+        let kka = Integer::from(k.square_ref()) * &self.a;
+        self.c += kb + kka;
+        self.b += two_a * k;
+    }
+
+    /// The reduced form of the composition (Cohen Alg. 5.4.7).
+    pub fn compose(&self, other: &Form) -> Result<Form, FormError> {
+        let (f1, f2) = if self.a > other.a {
+            (other, self)
+        } else {
+            (self, other)
+        };
+        let (a1, b1) = (&f1.a, &f1.b);
+        let (a2, b2, c2) = (&f2.a, &f2.b, &f2.c);
+        if *a1 <= 0 || *a2 <= 0 {
+            return Err(FormError);
+        }
+        let sum = Integer::from(b1 + b2);
+        if sum.is_odd() {
+            return Err(FormError);
+        }
+        let s = sum >> 1u32;
+        let n = Integer::from(b2 - &s);
+        let (y1, d) = if a2.is_divisible(a1) {
+            (Integer::new(), a1.clone())
+        } else {
+            let (g, u, _v) = <(Integer, Integer, Integer)>::from(a2.extended_gcd_ref(a1));
+            (u, g)
+        };
+        let (x2, y2, d1) = if s.is_divisible(&d) {
+            (Integer::new(), Integer::from(-1), d.clone())
+        } else {
+            let (g, x, y) = <(Integer, Integer, Integer)>::from(s.extended_gcd_ref(&d));
+            (x, -y, g)
+        };
+        if d1 <= 0 {
+            return Err(FormError);
+        }
+        let v1 = Integer::from(a1 / &d1);
+        let v2 = Integer::from(a2 / &d1);
+        if v1 <= 0 {
+            return Err(FormError);
+        }
+        let t = Integer::from(&y1 * &y2) * &n - Integer::from(&x2 * c2);
+        let r = t.rem_euc(&v1);
+        let v2r = Integer::from(&v2 * &r);
+        let b3 = Integer::from(b2 + &v2r) + &v2r;
+        let a3 = Integer::from(&v1 * &v2);
+        let num = Integer::from(c2 * &d1) + Integer::from(&r * Integer::from(b2 + &v2r));
+        if !num.is_divisible(&v1) {
+            return Err(FormError);
+        }
+        let c3 = num / &v1;
+        Form {
+            a: a3,
+            b: b3,
+            c: c3,
+        }
+        .reduce()
+    }
+
+    pub fn square(&self) -> Result<Form, FormError> {
+        self.compose(self)
+    }
+
+    /// `self^e` (reduced), by left-to-right binary powering; `e` may be
+    /// negative. The caller bounds the bit length of `e`.
+    pub fn pow(&self, e: &Integer, d: &Integer) -> Result<Form, FormError> {
+        let base = if *e < 0 { self.inverse() } else { self.clone() };
+        let base = base.reduce()?;
+        let mag = Integer::from(e.abs_ref());
+        let bits = mag.significant_bits();
+        let mut acc = Form::principal(d);
+        for i in (0..bits).rev() {
+            acc = acc.square()?;
+            if mag.get_bit(i) {
+                acc = acc.compose(&base)?;
+            }
+        }
+        Ok(acc)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn f(a: i64, b: i64, d: i64) -> Form {
+        Form::new(Integer::from(a), Integer::from(b), &Integer::from(d)).unwrap()
+    }
+
+    #[test]
+    fn class_group_of_minus_23_is_cyclic_of_order_3() {
+        // Cl(-23) = {(1,1,6), (2,1,3), (2,-1,3)} (OEIS A006203 lists -23 with h = 3).
+        let d = Integer::from(-23);
+        let g = f(2, 1, -23);
+        let g2 = g.square().unwrap();
+        assert_eq!(g2, f(2, -1, -23));
+        let g3 = g2.compose(&g).unwrap();
+        assert_eq!(g3, Form::principal(&d));
+        assert_eq!(g.pow(&Integer::from(3), &d).unwrap(), Form::principal(&d));
+        assert_eq!(g.pow(&Integer::from(-1), &d).unwrap(), f(2, -1, -23));
+    }
+
+    #[test]
+    fn reduction_is_idempotent_and_reduced() {
+        let d = Integer::from(-3299);
+        let x = f(825, 1, -3299).reduce().unwrap();
+        assert!(x.is_reduced());
+        assert_eq!(x.clone().reduce().unwrap(), x);
+        let disc = Integer::from(x.b.square_ref()) - Integer::from(4) * &x.a * &x.c;
+        assert_eq!(disc, d);
+    }
+}

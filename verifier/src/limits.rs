@@ -1,0 +1,24 @@
+//! Hard caps on input size and work. A certificate beyond any of them is
+//! rejected with `over-limit` before the work it would cause is started.
+
+/// Bits of `|D|`.
+pub const MAX_DISCRIMINANT_BITS: u32 = 4096;
+/// Largest Euler-product cut-off `X`.
+pub const MAX_EULER_X: u64 = 50_000_000;
+/// Largest trial-division / sieve bound `max(B_gen, X)`.
+pub const MAX_SIEVE: u64 = 100_000_000;
+/// Number of factor-base entries.
+pub const MAX_FACTOR_BASE: usize = 6_000_000;
+/// Rank of the generator block (size of the Smith form).
+pub const MAX_RANK: usize = 64;
+/// Bits of any matrix entry or exponent.
+pub const MAX_ENTRY_BITS: u32 = 16_384;
+/// Entries of one sparse relation.
+pub const MAX_RELATION_ENTRIES: usize = 4096;
+/// Total compositions the relation checks may cost (each exponent bit
+/// costs at most two).
+pub const MAX_COMPOSITIONS: u64 = 40_000_000;
+/// Euler-trace checkpoints.
+pub const MAX_CHECKPOINTS: usize = 64;
+/// Factors in a maximality claim.
+pub const MAX_FACTORS: usize = 4096;
