@@ -1,1 +1,27 @@
-pub fn x() {}
+//! # classcert-prover
+//!
+//! Computes the class group of an imaginary quadratic order and writes a
+//! certificate that `classcert-verify` re-checks on its own.
+//!
+//! ```text
+//! D ─▶ maximality (factor |D|) ─▶ factor base ─▶ Euler product (X)
+//!   ─▶ eliminations ─▶ relations ─▶ Hermite form ─▶ Smith form
+//!   ─▶ certificate body ─▶ self-check with the verifier ─▶ file
+//! ```
+
+pub mod factor;
+pub mod fb;
+pub mod linalg;
+pub mod progress;
+pub mod prove;
+pub mod rng;
+pub mod search;
+pub mod show;
+
+pub use prove::{prove, Options, ProveError};
+
+/// Proves `D` and encodes the certificate file.
+pub fn prove_to_bytes(d: &rug::Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
+    let body = prove(d, opts)?;
+    classcert_format::encode_file(&body).map_err(|e| ProveError::SearchFailed(format!("encoding failed: {e}")))
+}

@@ -1,0 +1,134 @@
+//! The factor base: one prime form `(p, b, c)` for every prime `p` up to the
+//! generation bound with `p ∤ f` and `(D/p) ≠ -1`.
+
+use classcert_verifier::arith::{kronecker_prime, mod_small};
+use classcert_verifier::form::Form;
+use rug::Integer;
+
+fn mul_mod(a: u64, b: u64, m: u64) -> u64 {
+    ((a as u128 * b as u128) % m as u128) as u64
+}
+
+fn pow_mod(mut b: u64, mut e: u64, m: u64) -> u64 {
+    let mut r = 1 % m;
+    b %= m;
+    while e > 0 {
+        if e & 1 == 1 {
+            r = mul_mod(r, b, m);
+        }
+        b = mul_mod(b, b, m);
+        e >>= 1;
+    }
+    r
+}
+
+/// A square root of `a` modulo an odd prime `p` (Tonelli–Shanks; Cohen,
+/// GTM 138, Alg. 1.5.1), for `a` a square mod `p`.
+pub fn sqrt_mod(a: u64, p: u64) -> u64 {
+    let a = a % p;
+    if a == 0 {
+        return 0;
+    }
+    let mut q = p - 1;
+    let mut s = 0;
+    while q % 2 == 0 {
+        q /= 2;
+        s += 1;
+    }
+    let mut z = 2;
+    while pow_mod(z, (p - 1) / 2, p) != p - 1 {
+        z += 1;
+    }
+    let mut m = s;
+    let mut c = pow_mod(z, q, p);
+    let mut t = pow_mod(a, q, p);
+    let mut r = pow_mod(a, q.div_ceil(2), p);
+    while t != 1 {
+        let mut i = 0;
+        let mut tt = t;
+        while tt != 1 {
+            tt = mul_mod(tt, tt, p);
+            i += 1;
+        }
+        let b = pow_mod(c, 1 << (m - i - 1), p);
+        m = i;
+        c = mul_mod(b, b, p);
+        t = mul_mod(t, c, p);
+        r = mul_mod(r, b, p);
+    }
+    r
+}
+
+#[derive(Debug, Clone)]
+pub struct FactorBase {
+    pub primes: Vec<u64>,
+    pub bs: Vec<u64>,
+    pub forms: Vec<Form>,
+}
+
+impl FactorBase {
+    /// `primes` ascending; `conductor` lists the primes dividing the conductor.
+    pub fn new(d: &Integer, primes: &[u64], bound: u64, conductor: &[u64]) -> FactorBase {
+        let mut fb = FactorBase {
+            primes: Vec::new(),
+            bs: Vec::new(),
+            forms: Vec::new(),
+        };
+        let d_odd = d.is_odd();
+        for &p in primes.iter().take_while(|&&p| p <= bound) {
+            if conductor.contains(&p) || kronecker_prime(d, p) == -1 {
+                continue;
+            }
+            let b = if p == 2 {
+                match d.mod_u(8) {
+                    1 => 1,
+                    0 => 0,
+                    _ => 2,
+                }
+            } else {
+                let s = sqrt_mod(mod_small(d, p), p);
+                if (s % 2 == 1) == d_odd {
+                    s
+                } else {
+                    p - s
+                }
+            };
+            let form = Form::new(Integer::from(p), Integer::from(b), d)
+                .expect("b^2 = D mod 4p by construction");
+            fb.primes.push(p);
+            fb.bs.push(b);
+            fb.forms.push(form);
+        }
+        fb
+    }
+
+    pub fn len(&self) -> usize {
+        self.primes.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.primes.is_empty()
+    }
+
+    pub fn index_of(&self, p: u64) -> Option<usize> {
+        self.primes.binary_search(&p).ok()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn sqrt_mod_small_primes() {
+        for p in [3u64, 5, 7, 11, 13, 17, 97, 1_000_003] {
+            for a in 0..200u64 {
+                let a = a % p;
+                if pow_mod(a, (p - 1) / 2, p) <= 1 {
+                    let r = sqrt_mod(a, p);
+                    assert_eq!(mul_mod(r, r, p), a, "p={p} a={a}");
+                }
+            }
+        }
+    }
+}

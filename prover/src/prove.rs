@@ -1,0 +1,474 @@
+//! The prover: from `D` to a certificate body. It searches (relations,
+//! Hermite and Smith forms, the cut-off `X`) and writes down everything the
+//! verifier would otherwise have to find; then it runs the verifier on the
+//! result before anything is written.
+
+use crate::factor;
+use crate::fb::FactorBase;
+use crate::linalg::{det_crt, smith, Hnf, RankModP};
+use crate::progress::Progress;
+use crate::search::{Searcher, Sparse};
+use classcert_format::*;
+use classcert_verifier::arith::{kronecker_prime, primes_up_to, small_conductor};
+use classcert_verifier::check::log_h_enclosure;
+use classcert_verifier::euler;
+use classcert_verifier::form::Form;
+use classcert_verifier::interval::Interval;
+use classcert_verifier::primality::{primality_evidence, Evidence};
+use classcert_verifier::registry;
+use rug::ops::DivRounding;
+use rug::Integer;
+
+#[derive(Debug, Clone)]
+pub struct Options {
+    pub seed: u64,
+    /// User-supplied prime factors of `|D|` (with repetition).
+    pub factors: Option<Vec<Integer>>,
+    /// Force the Euler cut-off (for experiments and tests).
+    pub euler_x: Option<u64>,
+    /// Pollard-rho budget for factoring `|D|` to support a maximality claim.
+    pub factor_budget: u64,
+    pub progress: bool,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options {
+            seed: 1,
+            factors: None,
+            euler_x: None,
+            factor_budget: 3_000_000,
+            progress: false,
+        }
+    }
+}
+
+#[derive(Debug)]
+pub enum ProveError {
+    InvalidInput(String),
+    Unsupported(String),
+    /// The search gave up; nothing false was produced.
+    SearchFailed(String),
+    /// The verifier rejected what the prover built: a bug in the prover.
+    SelfCheckFailed(String),
+}
+
+impl std::fmt::Display for ProveError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            ProveError::InvalidInput(s) | ProveError::Unsupported(s) | ProveError::SearchFailed(s) => {
+                f.write_str(s)
+            }
+            ProveError::SelfCheckFailed(s) => write!(
+                f,
+                "internal error: the verifier rejected the prover's own certificate ({s}); please report this"
+            ),
+        }
+    }
+}
+
+impl std::error::Error for ProveError {}
+
+pub const TOOL: &str = "classcert-prover";
+
+/// Checks that `D` is an admissible negative discriminant.
+pub fn validate(d: &Integer) -> Result<(), ProveError> {
+    if *d == 0 {
+        return Err(ProveError::InvalidInput("D = 0 is not a discriminant".into()));
+    }
+    if *d > 0 {
+        let r = d.mod_u(4);
+        if r == 0 || r == 1 {
+            return Err(ProveError::Unsupported(format!(
+                "D = {d} is not a valid negative discriminant: real quadratic orders (D > 0) are not supported yet"
+            )));
+        }
+        return Err(ProveError::InvalidInput(format!(
+            "D = {d} is not a valid negative discriminant: D must be negative and ≡ 0 or 1 mod 4"
+        )));
+    }
+    let r = d.mod_u(4);
+    if r != 0 && r != 1 {
+        return Err(ProveError::InvalidInput(format!(
+            "D = {d} is not a valid negative discriminant: D must be ≡ 0 or 1 mod 4 (here D ≡ {r} mod 4)"
+        )));
+    }
+    if d.significant_bits() > 400 {
+        return Err(ProveError::Unsupported(format!(
+            "|D| has {} bits; this prover handles up to 400 bits",
+            d.significant_bits()
+        )));
+    }
+    Ok(())
+}
+
+/// Whether the factorisation `(p, e)` of `|D|` shows `D` fundamental.
+pub fn is_fundamental(d: &Integer, factors: &[(Integer, u32)]) -> bool {
+    let mut two = 0;
+    for (p, e) in factors {
+        if *p == 2 {
+            two = *e;
+        } else if *e != 1 {
+            return false;
+        }
+    }
+    match two {
+        0 => d.mod_u(4) == 1,
+        2 => matches!(Integer::from(d >> 2u32).mod_u(4), 2 | 3),
+        3 => true,
+        _ => false,
+    }
+}
+
+fn maximality(d: &Integer, opts: &Options, progress: &mut Progress) -> Result<Option<Vec<PrimePower>>, ProveError> {
+    let abs = Integer::from(d.abs_ref());
+    let fac: Vec<(Integer, u32)> = match &opts.factors {
+        Some(list) => {
+            let mut sorted = list.clone();
+            sorted.sort();
+            let mut out: Vec<(Integer, u32)> = Vec::new();
+            for p in sorted {
+                if primality_evidence(&p) == Evidence::Composite {
+                    return Err(ProveError::InvalidInput(format!("--factors: {p} is not prime")));
+                }
+                match out.last_mut() {
+                    Some((q, e)) if *q == p => *e += 1,
+                    _ => out.push((p, 1)),
+                }
+            }
+            let prod: Integer = out.iter().map(|(p, e)| Integer::from(rug::ops::Pow::pow(p, *e))).product();
+            if prod != abs {
+                return Err(ProveError::InvalidInput(format!(
+                    "--factors multiply to {prod}, not |D| = {abs}"
+                )));
+            }
+            out
+        }
+        None => {
+            progress.say("factoring |D| (to support a maximality claim)");
+            match factor::factor(&abs, opts.factor_budget) {
+                Some(f) => f,
+                None => {
+                    progress.say("|D| not factored within budget: maximality will not be claimed");
+                    return Ok(None);
+                }
+            }
+        }
+    };
+    if !is_fundamental(d, &fac) {
+        return Ok(None);
+    }
+    Ok(Some(
+        fac.into_iter()
+            .map(|(prime, exponent)| PrimePower {
+                prime,
+                exponent,
+                evidence: PrimalityEvidence::Bpsw,
+            })
+            .collect(),
+    ))
+}
+
+/// Smallest `X` on a fixed ladder whose error term is at most `target`.
+pub fn choose_x(abs_d: &Integer, target: f64) -> u64 {
+    let ld = Interval::int(abs_d).ln().expect("|D| > 0");
+    let mut x = 128u64;
+    loop {
+        if let Some(e) = euler::error_bound(x, &ld) {
+            if e.hi.to_f64() <= target {
+                return x;
+            }
+        }
+        x = x * 5 / 4;
+    }
+}
+
+fn checkpoint_limits(x: u64) -> Vec<u64> {
+    let mut v = Vec::new();
+    let mut t = 100u64;
+    while t < x {
+        v.push(t);
+        t *= 10;
+    }
+    v.push(x);
+    v
+}
+
+/// How many factor-base ideals take part in the dense linear algebra.
+fn essential_count(fb: &FactorBase, abs_d: &Integer) -> usize {
+    let n = fb.len();
+    if n <= 48 {
+        return n;
+    }
+    let l = abs_d.significant_bits() as f64 * std::f64::consts::LN_2;
+    // grows like exp(c sqrt(log|D| log log|D|)), kept modest for the dense
+    // Hermite form
+    let b = (0.5 * (l * l.ln()).sqrt()).exp().max(100.0);
+    let k = fb.primes.iter().take_while(|&&p| (p as f64) <= b).count();
+    k.clamp(24.min(n), n.min(400))
+}
+
+fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
+    rel.iter().map(|(&i, &e)| (i as u32, Integer::from(e))).collect()
+}
+
+pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
+    validate(d)?;
+    let mut progress = Progress::new(opts.progress);
+    let abs_d = Integer::from(d.abs_ref());
+    let max_claim = maximality(d, opts, &mut progress)?;
+    let theorem = if max_claim.is_some() { registry::BACH_FIELD } else { registry::ORDER_GENERATION };
+    let bound = registry::generation_bound(theorem, &abs_d).expect("registry bound");
+    let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
+    let trial = bound.max(x);
+    progress.say(&format!("generation bound {bound}, Euler cut-off X = {x}"));
+    let primes = primes_up_to(trial);
+    let (conductor, d_small) = small_conductor(d, &primes);
+    let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
+    let fb = FactorBase::new(d, &primes, bound, &cond_primes);
+    let n = fb.len();
+
+    // Analytic side first: it tells the search when to stop.
+    let log_delta = Interval::int(&abs_d).ln().expect("|D| > 0");
+    let limits = checkpoint_limits(x);
+    let chi = |p: u64| kronecker_prime(&d_small, p);
+    let res = euler::compute(x, &primes, &chi, &limits, &log_delta)
+        .ok_or_else(|| ProveError::SearchFailed("Euler product could not be evaluated".into()))?;
+    let w = match d.to_i32() {
+        Some(-3) => 6,
+        Some(-4) => 4,
+        _ => 2,
+    };
+    let log_h = log_h_enclosure(d, w, &res.log_l, &conductor, &d_small, x)
+        .ok_or_else(|| ProveError::SearchFailed("analytic bound could not be evaluated".into()))?;
+    let ceiling = log_h.add(&Interval::ln2()).lo.clone();
+    progress.say(&format!(
+        "log h in [{:.4}, {:.4}] (h about {:.4e})",
+        log_h.lo.to_f64(),
+        log_h.hi.to_f64(),
+        log_h.mid_f64().exp()
+    ));
+
+    let k = essential_count(&fb, &abs_d);
+    progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
+    let mut searcher = Searcher::new(d, &fb, k, opts.seed);
+
+    // Eliminations for every ideal beyond the essential block.
+    let mut elim: Vec<Option<Sparse>> = vec![None; n];
+    for i in k..n {
+        let rel = searcher
+            .elimination(i, 2_000_000)
+            .ok_or_else(|| ProveError::SearchFailed(format!("no elimination relation found for p = {}", fb.primes[i])))?;
+        elim[i] = Some(rel);
+        if (i - k) % 500 == 0 {
+            progress.say(&format!("eliminations {}/{}", i - k, n - k));
+        }
+    }
+
+    // Relations on the essential block, until the index is confirmed.
+    let found = std::cell::Cell::new(0u64);
+    let max_relations = 50 * (k as u64) + 2000;
+    let next_relation = |searcher: &mut Searcher| -> Result<Vec<i64>, ProveError> {
+        if found.get() > max_relations {
+            return Err(ProveError::SearchFailed(format!(
+                "{} relations did not determine the class group; try another --seed",
+                found.get()
+            )));
+        }
+        let Some(mut rel) = searcher.relation(5_000_000) else {
+            return Err(ProveError::SearchFailed("relation search exhausted its attempts".into()));
+        };
+        found.set(found.get() + 1);
+        // substitute eliminations, largest index first
+        while let Some((&j, &e)) = rel.iter().next_back() {
+            if j < k {
+                break;
+            }
+            let er = elim[j].as_ref().expect("elimination exists");
+            for (&c, &x) in er {
+                let t = rel.entry(c).or_insert(0);
+                let prod = e.checked_mul(x).ok_or_else(|| ProveError::SearchFailed("exponent overflow".into()))?;
+                *t = t.checked_sub(prod).ok_or_else(|| ProveError::SearchFailed("exponent overflow".into()))?;
+                if *t == 0 {
+                    rel.remove(&c);
+                }
+            }
+        }
+        let mut v = vec![0i64; k];
+        for (&c, &e) in &rel {
+            v[c] = e;
+        }
+        Ok(v)
+    };
+    let mut rows: Vec<Vec<i64>> = Vec::new();
+    // ramified primes: P^2 = (p) is principal
+    for i in 0..k {
+        if fb.bs[i] % fb.primes[i] == 0 {
+            let mut v = vec![0i64; k];
+            v[i] = 2;
+            rows.push(v);
+        }
+    }
+    // A full-rank set first: its determinant M gives M·Z^k inside the
+    // lattice, so the Hermite form can be kept modulo M.
+    let mut rank = RankModP::new(k, (1u64 << 61) - 1);
+    let mut independent = Vec::new();
+    for v in &rows {
+        if rank.add(v) {
+            independent.push(v.clone());
+        }
+    }
+    while rank.rank < k {
+        let v = next_relation(&mut searcher)?;
+        if rank.add(&v) {
+            independent.push(v.clone());
+        }
+        rows.push(v);
+    }
+    let mut hnf = if k == 0 {
+        Hnf::new(0)
+    } else {
+        let m = Integer::from(det_crt(&independent).abs_ref());
+        progress.say(&format!("full rank after {} relations; determinant has {} bits", found.get(), m.significant_bits()));
+        Hnf::with_modulus(k, &m)
+    };
+    for v in rows {
+        hnf.insert(v.into_iter().map(Integer::from).collect());
+    }
+    let confirmed = |h: &Hnf| -> bool {
+        match h.det() {
+            Some(det) => Interval::int(det).ln().is_some_and(|l| l.hi < ceiling),
+            None => false,
+        }
+    };
+    while !confirmed(&hnf) {
+        let v = next_relation(&mut searcher)?;
+        hnf.insert(v.into_iter().map(Integer::from).collect());
+        if found.get() % 200 == 0 {
+            progress.say(&format!("{} relations ({} attempts)", found.get(), searcher.attempts));
+        }
+    }
+    progress.say(&format!("{} relations from {} attempts", found.get(), searcher.attempts));
+
+    let rows = hnf.finish().expect("full rank");
+    let gens: Vec<usize> = (0..k).filter(|&j| rows[j][j] > 1).collect();
+    let r = gens.len();
+    let h_g: Vec<Vec<Integer>> = gens
+        .iter()
+        .map(|&g| gens.iter().map(|&c| rows[g][c].clone()).collect())
+        .collect();
+    let sm = smith(&h_g).ok_or_else(|| ProveError::SearchFailed("Smith form failed".into()))?;
+    let mut eliminations = Vec::new();
+    for c in (0..k).filter(|c| !gens.contains(c)) {
+        let entries: Vec<(u32, Integer)> = (0..k)
+            .filter(|&j| !rows[c][j].is_zero())
+            .map(|j| (j as u32, rows[c][j].clone()))
+            .collect();
+        eliminations.push(Elimination {
+            pivot: c as u32,
+            relation: Relation {
+                entries,
+                witness: Witness::FormReduction,
+            },
+        });
+    }
+    for (i, e) in elim.iter().enumerate().skip(k) {
+        let rel = e.as_ref().expect("elimination exists");
+        eliminations.push(Elimination {
+            pivot: i as u32,
+            relation: Relation {
+                entries: to_entries(rel),
+                witness: Witness::FormReduction,
+            },
+        });
+    }
+
+    // Generators of the cyclic factors: rows of V^{-1}, reduced modulo H_G.
+    let mut generators = Vec::new();
+    let mut invariants = Vec::new();
+    for (i, di) in sm.diag.iter().enumerate() {
+        if *di <= 1 {
+            continue;
+        }
+        invariants.push(di.clone());
+        let mut xv = sm.v_inv[i].clone();
+        for t in 0..r {
+            let q = Integer::from((&xv[t]).div_floor(&h_g[t][t]));
+            if !q.is_zero() {
+                for c in t..r {
+                    let s = Integer::from(&q * &h_g[t][c]);
+                    xv[c] -= s;
+                }
+            }
+        }
+        let mut f = Form::principal(d);
+        for (t, e) in xv.iter().enumerate() {
+            if !e.is_zero() {
+                let p = fb.forms[gens[t]].pow(e, d).expect("form arithmetic");
+                f = f.compose(&p).expect("form arithmetic");
+            }
+        }
+        generators.push(CyclicGenerator {
+            exponents: xv,
+            form: classcert_format::Form { a: f.a, b: f.b, c: f.c },
+        });
+    }
+    let class_number: Integer = sm.diag.iter().product();
+
+    let to_b = |i: &Interval| i.to_bounds().expect("finite interval");
+    let body = Body {
+        producer: Producer {
+            tool: TOOL.to_string(),
+            version: env!("CARGO_PKG_VERSION").to_string(),
+            seed: opts.seed,
+        },
+        order: Order::Quadratic { discriminant: d.clone() },
+        claim: Claim {
+            class_number,
+            invariants,
+            generators,
+        },
+        conductor_small: conductor,
+        maximality: max_claim,
+        generation_theorem: theorem.to_string(),
+        factor_base: fb
+            .primes
+            .iter()
+            .zip(fb.bs.iter())
+            .map(|(&p, &b)| PrimeIdeal::QuadraticForm { p, b })
+            .collect(),
+        lattice: Lattice {
+            generators: gens.iter().map(|&g| g as u32).collect(),
+            relations: h_g,
+            relation_witness: Witness::FormReduction,
+            smith: Smith {
+                u: sm.u,
+                u_inv: sm.u_inv,
+                v: sm.v,
+                v_inv: sm.v_inv,
+                diagonal: sm.diag,
+            },
+            eliminations,
+        },
+        euler: EulerTrace {
+            theorem: registry::BELABAS_FRIEDMAN.to_string(),
+            x,
+            checkpoints: res
+                .checkpoints
+                .iter()
+                .map(|c| Checkpoint {
+                    limit: c.limit,
+                    a: to_b(&c.a),
+                    c: to_b(&c.c),
+                })
+                .collect(),
+            log_l: to_b(&res.log_l),
+        },
+    };
+    progress.say("self-check with the verifier");
+    if let Err(rej) = classcert_verifier::check::verify_body(&body) {
+        return Err(ProveError::SelfCheckFailed(format!("{}: {}", rej.reason.code(), rej.detail)));
+    }
+    progress.done();
+    Ok(body)
+}

@@ -1,0 +1,199 @@
+//! Relation search: random products of prime forms, reduced, kept when the
+//! first coefficient `a` of the reduced form factors over the factor base
+//! (J. L. Hafner and K. S. McCurley, J. AMS 2 (1989); J. Buchmann, Sém.
+//! Théorie des Nombres Paris 1988–89). If `(a, b, c)` is reduced and
+//! `a = ∏ p^e`, then `(a, b, c) ~ ∏ P_p^{±e}` with the sign `+` exactly
+//! when `b ≡ b_p (mod 2p)` (composition of united forms).
+
+use crate::fb::FactorBase;
+use crate::rng::Rng;
+use classcert_verifier::form::Form;
+use rug::Integer;
+use std::collections::BTreeMap;
+
+/// A sparse relation vector.
+pub type Sparse = BTreeMap<usize, i64>;
+
+pub struct Searcher<'a> {
+    d: &'a Integer,
+    fb: &'a FactorBase,
+    pub rng: Rng,
+    pool: Vec<(Form, Vec<(usize, i64)>)>,
+    pub attempts: u64,
+}
+
+fn add(v: &mut Sparse, i: usize, e: i64) {
+    let x = v.entry(i).or_insert(0);
+    *x += e;
+    if *x == 0 {
+        v.remove(&i);
+    }
+}
+
+impl<'a> Searcher<'a> {
+    /// `k` essential ideals (indices `0..k`) make up the random products.
+    pub fn new(d: &'a Integer, fb: &'a FactorBase, k: usize, seed: u64) -> Searcher<'a> {
+        let mut rng = Rng::new(seed);
+        let mut pool = Vec::new();
+        if k > 0 {
+            let size = (2 * k).max(400);
+            let weight = k.min(5);
+            for slot in 0..size {
+                let mut f = Form::principal(d);
+                let mut ex = Vec::new();
+                // random weight, so that no parity of the exponent sum is
+                // forced on the relations
+                let w = 1 + rng.below(weight as u64) as usize;
+                for t in 0..w {
+                    // the first factor walks through every essential index,
+                    // so each one takes part in some relation
+                    let i = if t == 0 { slot % k } else { rng.below(k as u64) as usize };
+                    let e = if rng.below(2) == 0 { 1 } else { -1 };
+                    let g = if e > 0 { fb.forms[i].clone() } else { fb.forms[i].inverse() };
+                    f = f.compose(&g).expect("forms of one discriminant compose");
+                    ex.push((i, e));
+                }
+                pool.push((f, ex));
+            }
+        }
+        Searcher {
+            d,
+            fb,
+            rng,
+            pool,
+            attempts: 0,
+        }
+    }
+
+    /// Factors the reduced form `f` over factor-base indices `< limit`:
+    /// returns the exponent vector of `f` in terms of the prime forms.
+    pub fn factor_form(&self, f: &Form, limit: usize) -> Option<Sparse> {
+        let mut out = Sparse::new();
+        let fb = self.fb;
+        let sign = |p: u64, i: usize| -> i64 {
+            let m = 2 * p;
+            let r = f.b.mod_u(m as u32) as u64;
+            if r == fb.bs[i] % m {
+                1
+            } else {
+                -1
+            }
+        };
+        if let Some(mut a) = f.a.to_u128() {
+            for (i, &p) in fb.primes.iter().enumerate().take(limit) {
+                let pp = p as u128;
+                if pp * pp > a {
+                    break;
+                }
+                if a % pp == 0 {
+                    let mut e = 0;
+                    while a % pp == 0 {
+                        a /= pp;
+                        e += 1;
+                    }
+                    add(&mut out, i, sign(p, i) * e);
+                }
+                // early abort: after the first 64 primes the cofactor must be
+                // plausibly smooth
+                if i == 64 && a > (1u128 << 80) {
+                    return None;
+                }
+            }
+            if a > 1 {
+                let q = u64::try_from(a).ok()?;
+                let i = fb.index_of(q)?;
+                if i >= limit {
+                    return None;
+                }
+                add(&mut out, i, sign(q, i));
+            }
+            Some(out)
+        } else {
+            let mut a = f.a.clone();
+            for (i, &p) in fb.primes.iter().enumerate().take(limit) {
+                if a.is_divisible_u(p as u32) {
+                    let mut e = 0;
+                    while a.is_divisible_u(p as u32) {
+                        a /= p as u32;
+                        e += 1;
+                    }
+                    add(&mut out, i, sign(p, i) * e);
+                }
+                if a == 1 {
+                    break;
+                }
+            }
+            if a == 1 {
+                return Some(out);
+            }
+            let q = a.to_u64()?;
+            let i = fb.index_of(q)?;
+            if i >= limit {
+                return None;
+            }
+            add(&mut out, i, sign(q, i));
+            Some(out)
+        }
+    }
+
+    fn pick(&mut self) -> (Form, Vec<(usize, i64)>) {
+        let x = self.rng.below(self.pool.len() as u64) as usize;
+        let (f, ex) = &self.pool[x];
+        if self.rng.below(2) == 0 {
+            (f.clone(), ex.clone())
+        } else {
+            (f.inverse(), ex.iter().map(|&(i, e)| (i, -e)).collect())
+        }
+    }
+
+    /// A relation with coefficient 1 at `i` and support on indices `< i`.
+    pub fn elimination(&mut self, i: usize, max_attempts: u64) -> Option<Sparse> {
+        let p_form = self.fb.forms[i].clone();
+        for _ in 0..max_attempts {
+            self.attempts += 1;
+            let (f1, mut ex) = self.pick();
+            let (f2, ex2) = self.pick();
+            ex.extend(ex2);
+            let g = p_form.compose(&f1).ok()?.compose(&f2).ok()?;
+            if let Some(fac) = self.factor_form(&g, i) {
+                let mut rel = Sparse::new();
+                add(&mut rel, i, 1);
+                for (j, e) in ex {
+                    add(&mut rel, j, e);
+                }
+                for (j, e) in fac {
+                    add(&mut rel, j, -e);
+                }
+                return Some(rel);
+            }
+        }
+        None
+    }
+
+    /// A relation over the whole factor base from two random products.
+    pub fn relation(&mut self, max_attempts: u64) -> Option<Sparse> {
+        for _ in 0..max_attempts {
+            self.attempts += 1;
+            let (f1, e1) = self.pick();
+            let (f2, e2) = self.pick();
+            let g = f1.compose(&f2).ok()?;
+            if let Some(fac) = self.factor_form(&g, self.fb.len()) {
+                let mut rel = Sparse::new();
+                for (j, e) in e1.into_iter().chain(e2) {
+                    add(&mut rel, j, e);
+                }
+                for (j, e) in fac {
+                    add(&mut rel, j, -e);
+                }
+                if !rel.is_empty() {
+                    return Some(rel);
+                }
+            }
+        }
+        None
+    }
+
+    pub fn discriminant(&self) -> &Integer {
+        self.d
+    }
+}
