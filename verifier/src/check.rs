@@ -269,45 +269,45 @@ fn check_generation(
 struct Budget(u64);
 
 impl Budget {
-    fn charge(&mut self, e: &Integer) -> Check<()> {
-        let bits = e.significant_bits();
-        if bits > MAX_ENTRY_BITS {
-            return reject(Reason::OverLimit, "an exponent is too large");
+    /// Charges for `∏ f_i^{e_i}` by simultaneous powering: one squaring per
+    /// bit of the largest exponent plus one composition per set bit.
+    fn charge(&mut self, exps: &[&Integer]) -> Check<()> {
+        let mut max_bits = 0u32;
+        let mut ones = 0u64;
+        for e in exps {
+            let bits = e.significant_bits();
+            if bits > MAX_ENTRY_BITS {
+                return reject(Reason::OverLimit, "an exponent is too large");
+            }
+            max_bits = max_bits.max(bits);
+            ones += u64::from(Integer::from(e.abs_ref()).count_ones().unwrap_or(bits));
         }
-        let cost = 2 * u64::from(bits) + 1;
+        let cost = u64::from(max_bits) + ones;
         if cost > self.0 {
-            return reject(
-                Reason::OverLimit,
-                "relations need more form arithmetic than the verifier allows",
-            );
+            return reject(Reason::OverLimit, "relations need more form arithmetic than the verifier allows");
         }
         self.0 -= cost;
         Ok(())
     }
 }
 
-/// `∏ forms[i]^e` over `entries`; true if it reduces to the principal form.
-fn is_principal(
-    forms: &[Form],
-    entries: &[(usize, &Integer)],
-    d: &Integer,
-    budget: &mut Budget,
-) -> Check<bool> {
-    let mut acc = Form::principal(d);
+/// The product `∏ forms[i]^e` over `entries`, charged to `budget`.
+fn product(forms: &[Form], entries: &[(usize, &Integer)], d: &Integer, budget: &mut Budget) -> Check<Option<Form>> {
+    let exps: Vec<&Integer> = entries.iter().map(|(_, e)| *e).collect();
+    budget.charge(&exps)?;
+    let mut terms = Vec::with_capacity(entries.len());
     for (i, e) in entries {
-        budget.charge(e)?;
         let Some(f) = forms.get(*i) else {
-            return reject(
-                Reason::EliminationStructure,
-                format!("index {i} is outside the factor base"),
-            );
+            return reject(Reason::EliminationStructure, format!("index {i} is outside the factor base"));
         };
-        let Ok(x) = f.pow(e, d).and_then(|x| acc.compose(&x)) else {
-            return Ok(false);
-        };
-        acc = x;
+        terms.push((f, *e));
     }
-    Ok(acc == Form::principal(d))
+    Ok(Form::product(&terms, d).ok())
+}
+
+/// True if `∏ forms[i]^e` over `entries` reduces to the principal form.
+fn is_principal(forms: &[Form], entries: &[(usize, &Integer)], d: &Integer, budget: &mut Budget) -> Check<bool> {
+    Ok(product(forms, entries, d, budget)? == Some(Form::principal(d)))
 }
 
 fn mat_mul(a: &[Vec<Integer>], b: &[Vec<Integer>], n: usize) -> Vec<Vec<Integer>> {
@@ -583,17 +583,9 @@ fn check_claim(
             .filter(|(_, e)| !e.is_zero())
             .map(|(gi, e)| (*gi as usize, e))
             .collect();
-        let mut acc = Form::principal(d);
-        for (idx, e) in entries {
-            budget.charge(e)?;
-            let Some(f) = gen.forms.get(idx) else {
-                return reject(Reason::GeneratorMismatch, "generator index out of range");
-            };
-            match f.pow(e, d).and_then(|x| acc.compose(&x)) {
-                Ok(x) => acc = x,
-                Err(_) => return reject(Reason::GeneratorMismatch, "form arithmetic failed"),
-            }
-        }
+        let Some(acc) = product(&gen.forms, &entries, d, &mut budget)? else {
+            return reject(Reason::GeneratorMismatch, "form arithmetic failed");
+        };
         if acc.a != g.form.a || acc.b != g.form.b || acc.c != g.form.c {
             return reject(
                 Reason::GeneratorMismatch,

@@ -6,7 +6,7 @@
 //! which is what makes "reduces to the principal form" a proof that a
 //! product of prime forms is principal.
 
-use rug::ops::{DivRounding, RemRounding};
+use rug::ops::RemRounding;
 use rug::Integer;
 
 /// A form; callers keep `a > 0` and `b^2 - 4ac = D` (checked on entry by
@@ -89,19 +89,24 @@ impl Form {
         Ok(self)
     }
 
-    /// Brings `b` into `(-a, a]` by `b ← b + 2ak`, adjusting `c`; needs `a > 0`.
+    /// Brings `b` into `(-a, a]` by `b ← b - 2aq`, with `c ← c - (b + r) q / 2`
+    /// (Cohen Alg. 5.4.2, step 2); needs `a > 0`.
     fn normalize(&mut self) {
-        let two_a = Integer::from(&self.a << 1u32);
-        if self.b > -Integer::from(&self.a) && self.b <= self.a {
+        if self.b <= self.a && self.b > -Integer::from(&self.a) {
             return;
         }
-        // k = floor((a - b) / 2a)
-        let k = (Integer::from(&self.a - &self.b)).div_floor(two_a.clone());
-        // c' = c + k b + k^2 a, b' = b + 2ak
-        let kb = Integer::from(&k * &self.b);
-        let kka = Integer::from(k.square_ref()) * &self.a;
-        self.c += kb + kka;
-        self.b += two_a * k;
+        let two_a = Integer::from(&self.a << 1u32);
+        let (mut q, mut r) = <(Integer, Integer)>::from(self.b.div_rem_floor_ref(&two_a));
+        if r > self.a {
+            r -= &two_a;
+            q += 1u32;
+        }
+        // c -= (b + r) q / 2, then b = r
+        self.b += &r;
+        self.b *= &q;
+        self.b >>= 1u32;
+        self.c -= &self.b;
+        self.b = r;
     }
 
     /// The reduced form of the composition (Cohen Alg. 5.4.7).
@@ -164,21 +169,42 @@ impl Form {
         self.compose(self)
     }
 
-    /// `self^e` (reduced), by left-to-right binary powering; `e` may be
-    /// negative. The caller bounds the bit length of `e`.
+    /// `self^e` (reduced); `e` may be negative. The caller bounds the bit
+    /// length of `e`.
     pub fn pow(&self, e: &Integer, d: &Integer) -> Result<Form, FormError> {
-        let base = if *e < 0 { self.inverse() } else { self.clone() };
-        let base = base.reduce()?;
-        let mag = Integer::from(e.abs_ref());
-        let bits = mag.significant_bits();
-        let mut acc = Form::principal(d);
+        Form::product(&[(self, e)], d)
+    }
+
+    /// `∏ f_i^{e_i}` (reduced) by simultaneous left-to-right binary powering
+    /// (Straus): one squaring per bit of the largest exponent and one
+    /// composition per set bit. Exponents may be negative.
+    pub fn product(terms: &[(&Form, &Integer)], d: &Integer) -> Result<Form, FormError> {
+        let mut bases = Vec::with_capacity(terms.len());
+        let mut bits = 0;
+        for (f, e) in terms {
+            if e.is_zero() {
+                continue;
+            }
+            let base = if **e < 0 { f.inverse() } else { (*f).clone() }.reduce()?;
+            let mag = Integer::from(e.abs_ref());
+            bits = bits.max(mag.significant_bits());
+            bases.push((base, mag));
+        }
+        let mut acc: Option<Form> = None;
         for i in (0..bits).rev() {
-            acc = acc.square()?;
-            if mag.get_bit(i) {
-                acc = acc.compose(&base)?;
+            if let Some(a) = acc.take() {
+                acc = Some(a.square()?);
+            }
+            for (base, mag) in &bases {
+                if mag.get_bit(i) {
+                    acc = Some(match acc.take() {
+                        None => base.clone(),
+                        Some(a) => a.compose(base)?,
+                    });
+                }
             }
         }
-        Ok(acc)
+        Ok(acc.unwrap_or_else(|| Form::principal(d)))
     }
 }
 
