@@ -4,14 +4,15 @@
 //! bytewise order of their encoded keys, and lets ciborium write it with
 //! shortest-form heads and definite lengths.
 //!
-//! Decoding is strict, in three steps:
-//! 1. [`prewalk`] walks the raw bytes once with hard limits: definite
+//! Decoding is strict, in two steps:
+//! 1. [`to_value`] reads the raw bytes once with hard limits: definite
 //!    lengths only, shortest-form heads, every declared length within the
 //!    bytes that remain, bounded depth and item count, no floats, no tags
-//!    other than the bignum tags 2 and 3, no trailing bytes.
-//! 2. ciborium builds a `Value` tree (now safe: nothing it allocates can
-//!    exceed the input size).
-//! 3. The typed model is built from the tree and re-encoded; the caller
+//!    other than the bignum tags 2 and 3, no trailing bytes. It builds a
+//!    `ciborium::Value` tree itself, because ciborium's own reader turns
+//!    bignums of up to 16 bytes into 128-bit integers and refuses those
+//!    above 2^127.
+//! 2. The typed model is built from the tree and re-encoded; the caller
 //!    compares bytes, so any second encoding of the same data is refused.
 
 use ciborium::Value;
@@ -115,7 +116,18 @@ impl Walker<'_> {
         Ok((major, arg))
     }
 
-    fn item(&mut self, depth: usize) -> Result<(), DecodeError> {
+    fn take(&mut self, len: u64) -> Result<&[u8], DecodeError> {
+        if len > self.remaining() {
+            return Err(DecodeError::Truncated);
+        }
+        let start = self.pos;
+        self.pos += len as usize;
+        self.bytes
+            .get(start..self.pos)
+            .ok_or(DecodeError::Truncated)
+    }
+
+    fn item(&mut self, depth: usize) -> Result<Value, DecodeError> {
         if depth > self.limits.max_depth {
             return Err(DecodeError::OverLimit("nesting depth"));
         }
@@ -125,32 +137,41 @@ impl Walker<'_> {
         }
         let (major, arg) = self.head()?;
         match major {
-            0 | 1 => Ok(()),
-            2 | 3 => {
-                if arg > self.remaining() {
-                    return Err(DecodeError::Truncated);
-                }
-                self.pos += arg as usize;
-                Ok(())
+            0 => Ok(Value::Integer(arg.into())),
+            1 => {
+                let v = -1i128 - i128::from(arg);
+                ciborium::value::Integer::try_from(v)
+                    .map(Value::Integer)
+                    .map_err(|_| DecodeError::Malformed("negative integer out of range"))
+            }
+            2 => Ok(Value::Bytes(self.take(arg)?.to_vec())),
+            3 => {
+                let b = self.take(arg)?.to_vec();
+                String::from_utf8(b)
+                    .map(Value::Text)
+                    .map_err(|_| DecodeError::Malformed("text is not UTF-8"))
             }
             4 => {
                 if arg > self.remaining() {
                     return Err(DecodeError::Truncated);
                 }
+                let mut out = Vec::new();
                 for _ in 0..arg {
-                    self.item(depth + 1)?;
+                    out.push(self.item(depth + 1)?);
                 }
-                Ok(())
+                Ok(Value::Array(out))
             }
             5 => {
                 if arg.saturating_mul(2) > self.remaining() {
                     return Err(DecodeError::Truncated);
                 }
+                let mut out = Vec::new();
                 for _ in 0..arg {
-                    self.item(depth + 1)?;
-                    self.item(depth + 1)?;
+                    let k = self.item(depth + 1)?;
+                    let v = self.item(depth + 1)?;
+                    out.push((k, v));
                 }
-                Ok(())
+                Ok(Value::Map(out))
             }
             6 => {
                 if arg != 2 && arg != 3 {
@@ -158,28 +179,24 @@ impl Walker<'_> {
                         "only bignum tags 2 and 3 are allowed",
                     ));
                 }
-                let start = self.pos;
                 let (inner, len) = self.head()?;
                 if inner != 2 {
                     return Err(DecodeError::Malformed(
                         "a bignum tag must hold a byte string",
                     ));
                 }
-                if len > self.remaining() {
-                    return Err(DecodeError::Truncated);
-                }
-                let first = self.bytes.get(self.pos).copied();
-                if len <= 8 || first == Some(0) {
+                let b = self.take(len)?.to_vec();
+                if b.len() <= 8 || b.first() == Some(&0) {
                     return Err(DecodeError::NonCanonical(
                         "a bignum that is not in preferred serialisation",
                     ));
                 }
-                let _ = start;
-                self.pos += len as usize;
-                Ok(())
+                Ok(Value::Tag(arg, Box::new(Value::Bytes(b))))
             }
             _ => match arg {
-                20..=22 => Ok(()),
+                20 => Ok(Value::Bool(false)),
+                21 => Ok(Value::Bool(true)),
+                22 => Ok(Value::Null),
                 _ => Err(DecodeError::Malformed(
                     "floats and simple values are not allowed",
                 )),
@@ -188,26 +205,20 @@ impl Walker<'_> {
     }
 }
 
-/// Checks the raw structure of `bytes` (see the module docs).
-pub fn prewalk(bytes: &[u8], limits: WalkLimits) -> Result<(), DecodeError> {
+/// Decodes `bytes` into a value tree with the checks listed in the module
+/// docs. Bignums stay tagged byte strings, so every size round-trips.
+pub fn to_value(bytes: &[u8], limits: WalkLimits) -> Result<Value, DecodeError> {
     let mut w = Walker {
         bytes,
         pos: 0,
         items: 0,
         limits,
     };
-    w.item(0)?;
+    let v = w.item(0)?;
     if w.pos != bytes.len() {
         return Err(DecodeError::TrailingData);
     }
-    Ok(())
-}
-
-/// Decodes bytes that passed [`prewalk`] into a value tree.
-pub fn to_value(bytes: &[u8], limits: WalkLimits) -> Result<Value, DecodeError> {
-    prewalk(bytes, limits)?;
-    ciborium::de::from_reader_with_recursion_limit(bytes, limits.max_depth + 4)
-        .map_err(|_| DecodeError::Malformed("rejected by the CBOR decoder"))
+    Ok(v)
 }
 
 /// Encodes a value tree. Writing into a `Vec` cannot fail for the trees
@@ -259,9 +270,7 @@ pub fn sint(x: i64) -> Value {
     Value::Integer(x.into())
 }
 
-/// Reads an integer written by [`int`] (ciborium turns bignums of up to 16
-/// bytes into plain integers, so both shapes are accepted here; bytes are
-/// compared after re-encoding anyway).
+/// Reads an integer written by [`int`].
 pub fn get_int(v: &Value, what: &str) -> Result<Integer, DecodeError> {
     match v {
         Value::Integer(i) => Ok(Integer::from(i128::from(*i))),

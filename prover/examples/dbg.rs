@@ -1,12 +1,15 @@
+use classcert_prover::fb::FactorBase;
+use classcert_prover::search::Searcher;
+use classcert_verifier::arith::primes_up_to;
 use rug::Integer;
 fn main() {
-    let mut p: Integer = "3141592653589793238462643383279502884197".parse().unwrap();
-    loop {
-        p += 1;
-        if p.mod_u(4) == 1 && p.is_probably_prime(40) != rug::integer::IsPrime::No { break; }
+    let d: Integer = "-12566370614359172953850573533118011537972"
+        .parse()
+        .unwrap();
+    let primes = primes_up_to(60000);
+    let fb = FactorBase::new(&d, &primes, 51152, &[]);
+    let mut s = Searcher::new(&d, &fb, 262, 1);
+    for _ in 0..4 {
+        s.relation(1_000_000);
     }
-    println!("{p} {}", p.to_string().len());
-    let mut q: Integer = "271828182845904523536028747135".parse().unwrap();
-    loop { q += 1; if q.mod_u(4) == 1 && q.is_probably_prime(40) != rug::integer::IsPrime::No { break; } }
-    println!("{q} {}", q.to_string().len());
 }

@@ -16,12 +16,26 @@ pub mod progress;
 pub mod prove;
 pub mod rng;
 pub mod search;
+pub mod sge;
 pub mod show;
 
 pub use prove::{prove, Options, ProveError};
 
-/// Proves `D` and encodes the certificate file.
+/// Proves `D`, encodes the certificate file, and runs the verifier on the
+/// bytes (decoding included) before handing them out.
 pub fn prove_to_bytes(d: &rug::Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
     let body = prove(d, opts)?;
-    classcert_format::encode_file(&body).map_err(|e| ProveError::SearchFailed(format!("encoding failed: {e}")))
+    let (bytes, id) = classcert_format::encode_file(&body)
+        .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
+    let mut progress = progress::Progress::new(opts.progress);
+    progress.say("self-check: verifying the encoded certificate");
+    let report = classcert_verifier::verify_bytes(&bytes);
+    if let Err(rej) = report.outcome {
+        return Err(ProveError::SelfCheckFailed(format!(
+            "{}: {}",
+            rej.reason.code(),
+            rej.detail
+        )));
+    }
+    Ok((bytes, id))
 }

@@ -106,7 +106,8 @@ impl Hnf {
                             *x -= Integer::from(&q * y);
                         }
                     } else {
-                        let (g, s, t) = <(Integer, Integer, Integer)>::from(b[j].extended_gcd_ref(&v[j]));
+                        let (g, s, t) =
+                            <(Integer, Integer, Integer)>::from(b[j].extended_gcd_ref(&v[j]));
                         let bj = Integer::from(&b[j] / &g);
                         let vj = Integer::from(&v[j] / &g);
                         let mut nb = Vec::with_capacity(self.k);
@@ -339,7 +340,11 @@ mod tests {
     #[test]
     fn smith_of_small_matrices() {
         // diag(2, 3) ~ diag(1, 6) (common practice: Z/2 x Z/3 = Z/6)
-        for a in [m(&[&[2, 0], &[0, 3]]), m(&[&[4, 6], &[2, 9]]), m(&[&[6, 4, 2], &[0, 3, 9], &[1, 1, 5]])] {
+        for a in [
+            m(&[&[2, 0], &[0, 3]]),
+            m(&[&[4, 6], &[2, 9]]),
+            m(&[&[6, 4, 2], &[0, 3, 9], &[1, 1, 5]]),
+        ] {
             let s = smith(&a).unwrap();
             let n = a.len();
             assert_eq!(mat_mul(&s.u, &s.u_inv), identity(n));
@@ -484,7 +489,10 @@ impl RankModP {
 
 fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
     let n = m.len();
-    let mut a: Vec<Vec<u64>> = m.iter().map(|r| r.iter().map(|&x| to_mod(x, p)).collect()).collect();
+    let mut a: Vec<Vec<u64>> = m
+        .iter()
+        .map(|r| r.iter().map(|&x| to_mod(x, p)).collect())
+        .collect();
     let mut det = 1u64;
     for c in 0..n {
         let Some(piv) = (c..n).find(|&r| a[r][c] != 0) else {

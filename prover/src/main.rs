@@ -11,7 +11,11 @@ use std::process::ExitCode;
 mod demo;
 
 #[derive(Parser)]
-#[command(name = "classcert", version, about = "Certified class groups of quadratic orders")]
+#[command(
+    name = "classcert",
+    version,
+    about = "Certified class groups of quadratic orders"
+)]
 struct Cli {
     #[command(subcommand)]
     cmd: Cmd,
@@ -133,7 +137,10 @@ fn main() -> ExitCode {
                     ExitCode::SUCCESS
                 }
                 Err(e) => {
-                    eprintln!("classcert: {} is not a readable certificate: {e}", file.display());
+                    eprintln!(
+                        "classcert: {} is not a readable certificate: {e}",
+                        file.display()
+                    );
                     ExitCode::from(1)
                 }
             }

@@ -26,7 +26,10 @@ impl Progress {
         }
         let t = self.start.elapsed();
         let line = format!("[{:7.2}s] {msg}", t.as_secs_f64());
-        if self.shown || t > Duration::from_secs(1) || std::env::var_os("CLASSCERT_PROGRESS").is_some() {
+        if self.shown
+            || t > Duration::from_secs(1)
+            || std::env::var_os("CLASSCERT_PROGRESS").is_some()
+        {
             for p in self.pending.drain(..) {
                 eprintln!("{p}");
             }

@@ -14,6 +14,9 @@ use std::collections::BTreeMap;
 /// A sparse relation vector.
 pub type Sparse = BTreeMap<usize, i64>;
 
+/// Factor-base index after which the early-abort test is made.
+const EARLY_ABORT_INDEX: usize = 150;
+
 pub struct Searcher<'a> {
     d: &'a Integer,
     fb: &'a FactorBase,
@@ -37,19 +40,32 @@ impl<'a> Searcher<'a> {
         let mut pool = Vec::new();
         if k > 0 {
             let size = (2 * k).max(400);
-            let weight = k.min(5);
+            // enough factors that a product's norm is well past sqrt|D|,
+            // so that its reduced form is a fresh element
+            let top = (fb.primes[k - 1] as f64).ln().max(1.0);
+            let need =
+                (0.6 * d.significant_bits() as f64 * std::f64::consts::LN_2 / top).ceil() as usize;
+            let weight = need.max(5).min(2 * k.max(1));
             for slot in 0..size {
                 let mut f = Form::principal(d);
                 let mut ex = Vec::new();
                 // random weight, so that no parity of the exponent sum is
                 // forced on the relations
-                let w = 1 + rng.below(weight as u64) as usize;
+                let w = weight / 2 + 1 + rng.below(weight.div_ceil(2) as u64) as usize;
                 for t in 0..w {
                     // the first factor walks through every essential index,
                     // so each one takes part in some relation
-                    let i = if t == 0 { slot % k } else { rng.below(k as u64) as usize };
+                    let i = if t == 0 {
+                        slot % k
+                    } else {
+                        rng.below(k as u64) as usize
+                    };
                     let e = if rng.below(2) == 0 { 1 } else { -1 };
-                    let g = if e > 0 { fb.forms[i].clone() } else { fb.forms[i].inverse() };
+                    let g = if e > 0 {
+                        fb.forms[i].clone()
+                    } else {
+                        fb.forms[i].inverse()
+                    };
                     f = f.compose(&g).expect("forms of one discriminant compose");
                     ex.push((i, e));
                 }
@@ -80,6 +96,8 @@ impl<'a> Searcher<'a> {
             }
         };
         if let Some(mut a) = f.a.to_u128() {
+            let top = fb.primes[limit.saturating_sub(1).min(fb.len().saturating_sub(1))] as u128;
+            let limit_sq = top * top;
             for (i, &p) in fb.primes.iter().enumerate().take(limit) {
                 let pp = p as u128;
                 if pp * pp > a {
@@ -93,9 +111,10 @@ impl<'a> Searcher<'a> {
                     }
                     add(&mut out, i, sign(p, i) * e);
                 }
-                // early abort: after the first 64 primes the cofactor must be
-                // plausibly smooth
-                if i == 64 && a > (1u128 << 80) {
+                // early abort: once the small primes are divided out, go on
+                // only if the cofactor can be a product of at most two more
+                // primes below the limit (most candidates stop here)
+                if i == EARLY_ABORT_INDEX && a > limit_sq {
                     return None;
                 }
             }
@@ -185,7 +204,12 @@ impl<'a> Searcher<'a> {
                 for (j, e) in fac {
                     add(&mut rel, j, -e);
                 }
-                if !rel.is_empty() {
+                // products whose form was already reduced give back their
+                // own exponents: skip those (and ramified P^2 = 1 repeats)
+                let trivial = rel
+                    .iter()
+                    .all(|(&j, &e)| e % 2 == 0 && self.fb.bs[j] % self.fb.primes[j] == 0);
+                if !trivial {
                     return Some(rel);
                 }
             }

@@ -7,7 +7,10 @@ fn inv_text(inv: &[rug::Integer]) -> String {
     if inv.is_empty() {
         "trivial".into()
     } else {
-        inv.iter().map(|d| format!("Z/{d}")).collect::<Vec<_>>().join(" x ")
+        inv.iter()
+            .map(|d| format!("Z/{d}"))
+            .collect::<Vec<_>>()
+            .join(" x ")
     }
 }
 
@@ -26,15 +29,31 @@ pub fn text(c: &Decoded) -> String {
         Some(f) => {
             let parts: Vec<String> = f
                 .iter()
-                .map(|pp| if pp.exponent == 1 { pp.prime.to_string() } else { format!("{}^{}", pp.prime, pp.exponent) })
+                .map(|pp| {
+                    if pp.exponent == 1 {
+                        pp.prime.to_string()
+                    } else {
+                        format!("{}^{}", pp.prime, pp.exponent)
+                    }
+                })
                 .collect();
-            s.push_str(&format!("  maximality     claimed: |D| = {}\n", parts.join(" * ")));
+            s.push_str(&format!(
+                "  maximality     claimed: |D| = {}\n",
+                parts.join(" * ")
+            ));
         }
         None => s.push_str("  maximality     not claimed\n"),
     }
     if !b.conductor_small.is_empty() {
-        let parts: Vec<String> = b.conductor_small.iter().map(|(p, e)| format!("{p}^{e}")).collect();
-        s.push_str(&format!("  conductor      divisible by {}\n", parts.join(" * ")));
+        let parts: Vec<String> = b
+            .conductor_small
+            .iter()
+            .map(|(p, e)| format!("{p}^{e}"))
+            .collect();
+        s.push_str(&format!(
+            "  conductor      divisible by {}\n",
+            parts.join(" * ")
+        ));
     }
     s.push_str(&format!(
         "  class group    {}  (class number {})\n",
@@ -42,9 +61,16 @@ pub fn text(c: &Decoded) -> String {
         b.claim.class_number
     ));
     for (g, d) in b.claim.generators.iter().zip(b.claim.invariants.iter()) {
-        s.push_str(&format!("  generator      ({}, {}, {}) of order {d}\n", g.form.a, g.form.b, g.form.c));
+        s.push_str(&format!(
+            "  generator      ({}, {}, {}) of order {d}\n",
+            g.form.a, g.form.b, g.form.c
+        ));
     }
-    let maxp = b.factor_base.last().map(|PrimeIdeal::QuadraticForm { p, .. }| *p).unwrap_or(0);
+    let maxp = b
+        .factor_base
+        .last()
+        .map(|PrimeIdeal::QuadraticForm { p, .. }| *p)
+        .unwrap_or(0);
     s.push_str(&format!(
         "  factor base    {} prime ideals, p <= {maxp} ({})\n",
         b.factor_base.len(),
@@ -55,7 +81,10 @@ pub fn text(c: &Decoded) -> String {
         b.lattice.generators.len(),
         b.lattice.eliminations.len()
     ));
-    s.push_str(&format!("  Euler product  X = {} ({})\n", b.euler.x, b.euler.theorem));
+    s.push_str(&format!(
+        "  Euler product  X = {} ({})\n",
+        b.euler.x, b.euler.theorem
+    ));
     s
 }
 
@@ -71,7 +100,10 @@ pub fn json(c: &Decoded) -> Json {
         ("seed", Json::Num(b.producer.seed.to_string())),
         ("discriminant", num(discriminant)),
         ("class_number", num(&b.claim.class_number)),
-        ("invariants", Json::Arr(b.claim.invariants.iter().map(num).collect())),
+        (
+            "invariants",
+            Json::Arr(b.claim.invariants.iter().map(num).collect()),
+        ),
         (
             "generators",
             Json::Arr(
@@ -88,14 +120,28 @@ pub fn json(c: &Decoded) -> Json {
             Json::Arr(
                 b.conductor_small
                     .iter()
-                    .map(|(p, e)| Json::Arr(vec![Json::Num(p.to_string()), Json::Num(e.to_string())]))
+                    .map(|(p, e)| {
+                        Json::Arr(vec![Json::Num(p.to_string()), Json::Num(e.to_string())])
+                    })
                     .collect(),
             ),
         ),
-        ("generation_theorem", Json::str(b.generation_theorem.clone())),
-        ("factor_base_size", Json::Num(b.factor_base.len().to_string())),
-        ("generator_ideals", Json::Num(b.lattice.generators.len().to_string())),
-        ("eliminations", Json::Num(b.lattice.eliminations.len().to_string())),
+        (
+            "generation_theorem",
+            Json::str(b.generation_theorem.clone()),
+        ),
+        (
+            "factor_base_size",
+            Json::Num(b.factor_base.len().to_string()),
+        ),
+        (
+            "generator_ideals",
+            Json::Num(b.lattice.generators.len().to_string()),
+        ),
+        (
+            "eliminations",
+            Json::Num(b.lattice.eliminations.len().to_string()),
+        ),
         ("euler_x", Json::Num(b.euler.x.to_string())),
     ])
 }

@@ -284,7 +284,10 @@ impl Budget {
         }
         let cost = u64::from(max_bits) + ones;
         if cost > self.0 {
-            return reject(Reason::OverLimit, "relations need more form arithmetic than the verifier allows");
+            return reject(
+                Reason::OverLimit,
+                "relations need more form arithmetic than the verifier allows",
+            );
         }
         self.0 -= cost;
         Ok(())
@@ -292,13 +295,21 @@ impl Budget {
 }
 
 /// The product `∏ forms[i]^e` over `entries`, charged to `budget`.
-fn product(forms: &[Form], entries: &[(usize, &Integer)], d: &Integer, budget: &mut Budget) -> Check<Option<Form>> {
+fn product(
+    forms: &[Form],
+    entries: &[(usize, &Integer)],
+    d: &Integer,
+    budget: &mut Budget,
+) -> Check<Option<Form>> {
     let exps: Vec<&Integer> = entries.iter().map(|(_, e)| *e).collect();
     budget.charge(&exps)?;
     let mut terms = Vec::with_capacity(entries.len());
     for (i, e) in entries {
         let Some(f) = forms.get(*i) else {
-            return reject(Reason::EliminationStructure, format!("index {i} is outside the factor base"));
+            return reject(
+                Reason::EliminationStructure,
+                format!("index {i} is outside the factor base"),
+            );
         };
         terms.push((f, *e));
     }
@@ -306,7 +317,12 @@ fn product(forms: &[Form], entries: &[(usize, &Integer)], d: &Integer, budget: &
 }
 
 /// True if `∏ forms[i]^e` over `entries` reduces to the principal form.
-fn is_principal(forms: &[Form], entries: &[(usize, &Integer)], d: &Integer, budget: &mut Budget) -> Check<bool> {
+fn is_principal(
+    forms: &[Form],
+    entries: &[(usize, &Integer)],
+    d: &Integer,
+    budget: &mut Budget,
+) -> Check<bool> {
     Ok(product(forms, entries, d, budget)? == Some(Form::principal(d)))
 }
 
