@@ -165,20 +165,24 @@ impl Hnf {
         let h = self.clone();
         let mut rows: Matrix = h.rows.into_iter().collect::<Option<Vec<_>>>()?;
         let k = self.k;
-        for j in (0..k).rev() {
-            let pj = rows[j][j].clone();
-            let nz: Vec<usize> = (j..k).filter(|&c| !rows[j][c].is_zero()).collect();
-            for i in 0..j {
+        // bottom-up: rows below i are already reduced, so reducing row i
+        // column by column from the left leaves every entry in [0, pivot)
+        for i in (0..k).rev() {
+            for j in i + 1..k {
                 if rows[i][j].is_zero() {
                     continue;
                 }
-                let q = Integer::from((&rows[i][j]).div_floor(&pj));
+                let q = Integer::from((&rows[i][j]).div_floor(&rows[j][j]));
                 if q.is_zero() {
                     continue;
                 }
-                for &c in &nz {
-                    let t = Integer::from(&q * &rows[j][c]);
-                    rows[i][c] -= t;
+                let (top, bottom) = rows.split_at_mut(j);
+                let (ri, rj) = (&mut top[i], &bottom[0]);
+                for c in j..k {
+                    if !rj[c].is_zero() {
+                        let t = Integer::from(&q * &rj[c]);
+                        ri[c] -= t;
+                    }
                 }
             }
         }
@@ -566,5 +570,37 @@ mod det_tests {
         assert_eq!(det_crt(&m), 18);
         let s = vec![vec![0, 1], vec![1, 0]];
         assert_eq!(det_crt(&s), -1);
+    }
+}
+
+#[cfg(test)]
+mod reduce_tests {
+    use super::*;
+
+    #[test]
+    fn finished_rows_are_reduced() {
+        // random lattice: every entry above a pivot must end in [0, pivot)
+        let mut x: u64 = 12345;
+        let mut next = || {
+            x ^= x << 13;
+            x ^= x >> 7;
+            x ^= x << 17;
+            (x % 7) as i64 - 3
+        };
+        let k = 12;
+        let mut h = Hnf::with_modulus(k, &Integer::from(1_000_003u32 * 97));
+        for _ in 0..40 {
+            h.insert((0..k).map(|_| Integer::from(next())).collect());
+        }
+        let rows = h.finish().unwrap();
+        for i in 0..k {
+            for j in 0..k {
+                if j < i {
+                    assert!(rows[i][j].is_zero());
+                } else if j > i {
+                    assert!(rows[i][j] >= 0 && rows[i][j] < rows[j][j], "({i},{j})");
+                }
+            }
+        }
     }
 }

@@ -215,9 +215,9 @@ fn essential_count(fb: &FactorBase, abs_d: &Integer) -> usize {
     let l = abs_d.significant_bits() as f64 * std::f64::consts::LN_2;
     // grows like exp(c sqrt(log|D| log log|D|)), kept modest for the dense
     // Hermite form
-    let b = (0.4 * (l * l.ln()).sqrt()).exp().max(100.0);
+    let b = (0.45 * (l * l.ln()).sqrt()).exp().max(100.0);
     let k = fb.primes.iter().take_while(|&&p| (p as f64) <= b).count();
-    k.clamp(24.min(n), n.min(400))
+    k.clamp(24.min(n), n.min(800))
 }
 
 fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
@@ -351,7 +351,7 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         rels.push(v);
     }
     // some excess gives the elimination more unit pivots to choose from
-    for _ in 0..k / 10 {
+    for _ in 0..k / 3 {
         rels.push(next_relation(&mut searcher)?);
     }
     // Unit pivots leave the dense block.
