@@ -281,7 +281,7 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             ))
         })?;
         elim[i] = Some(rel);
-        if (i - k) % 500 == 0 {
+        if (i - k).is_multiple_of(500) {
             progress.say(&format!("eliminations {}/{}", i - k, n - k));
         }
     }
@@ -336,7 +336,7 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let mut rels: Vec<Sparse> = Vec::new();
     // ramified primes: P^2 = (p) is principal
     for i in 0..k {
-        if fb.bs[i] % fb.primes[i] == 0 {
+        if fb.bs[i].is_multiple_of(fb.primes[i]) {
             rels.push(Sparse::from([(i, 2)]));
         }
     }
@@ -409,7 +409,7 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             continue;
         };
         hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
-        if found.get() % 200 == 0 {
+        if found.get().is_multiple_of(200) {
             progress.say(&format!(
                 "{} relations ({} attempts)",
                 found.get(),

@@ -208,7 +208,7 @@ impl<'a> Searcher<'a> {
                 // own exponents: skip those (and ramified P^2 = 1 repeats)
                 let trivial = rel
                     .iter()
-                    .all(|(&j, &e)| e % 2 == 0 && self.fb.bs[j] % self.fb.primes[j] == 0);
+                    .all(|(&j, &e)| e % 2 == 0 && self.fb.bs[j].is_multiple_of(self.fb.primes[j]));
                 if !trivial {
                     return Some(rel);
                 }

@@ -94,13 +94,11 @@ impl Sge {
                     col_rows[c].remove(&oi);
                 }
                 let f = r[&pc] * sign;
-                if axpy(&mut r, f, &prow) && !r.contains_key(&pc) {
-                    if !r.is_empty() {
-                        for &c in r.keys() {
-                            col_rows[c].insert(oi);
-                        }
-                        rows[oi] = Some(r);
+                if axpy(&mut r, f, &prow) && !r.contains_key(&pc) && !r.is_empty() {
+                    for &c in r.keys() {
+                        col_rows[c].insert(oi);
                     }
+                    rows[oi] = Some(r);
                 }
                 // a row that overflowed is dropped: the lattice only shrinks,
                 // and the analytic check decides whether enough is left

@@ -36,13 +36,13 @@ pub fn primes_up_to(limit: u64) -> Vec<u64> {
 
 /// Jacobi symbol `(a/n)` for odd `n > 0`.
 pub fn jacobi(mut a: u64, mut n: u64) -> i8 {
-    if n % 2 == 0 {
+    if n.is_multiple_of(2) {
         return 0;
     }
     a %= n;
     let mut t = 1i8;
     while a != 0 {
-        while a % 2 == 0 {
+        while a.is_multiple_of(2) {
             a /= 2;
             let r = n % 8;
             if r == 3 || r == 5 {

@@ -152,7 +152,7 @@ impl Form {
         let v2r = Integer::from(&v2 * &r);
         let b3 = Integer::from(b2 + &v2r) + &v2r;
         let a3 = Integer::from(&v1 * &v2);
-        let num = Integer::from(c2 * &d1) + Integer::from(&r * Integer::from(b2 + &v2r));
+        let num = Integer::from(c2 * &d1) + &r * Integer::from(b2 + &v2r);
         if !num.is_divisible(&v1) {
             return Err(FormError);
         }

@@ -117,6 +117,10 @@ impl Assumption {
     }
 }
 
+/// Evidence that every check ran; only this crate can make one.
+#[derive(Debug, Clone)]
+pub struct AllChecksPassed(pub(crate) ());
+
 /// What is known once every check has passed. It can only be built by
 /// `check::verify_body`, from the tokens each check returns.
 #[derive(Debug, Clone)]
@@ -132,7 +136,7 @@ pub struct Verified {
     pub generation_bound: u64,
     pub log_h: Interval,
     pub factor_base_size: usize,
-    pub(crate) _sealed: (),
+    pub proof: AllChecksPassed,
 }
 
 /// What could be read of a certificate, whatever the outcome.
