@@ -124,7 +124,15 @@ pub fn decode_file(bytes: &[u8]) -> Result<Decoded, FileError> {
     let body = Body::from_value(top.req("body")?)?;
     let claimed = cbor::get_bytes(top.req("body-sha256")?, "file.body-sha256")?.to_vec();
     top.finish()?;
-    let (re, id) = encode_file(&body)?;
+    // Re-encode with the stated digest, so that a wrong digest is reported
+    // as such and any other difference as a non-canonical encoding.
+    let body_bytes = body.encode()?;
+    let id = sha256(&body_bytes);
+    let re = cbor::from_value(&cbor::map(vec![
+        ("format", cbor::uint(FORMAT_VERSION)),
+        ("body", body.to_value()),
+        ("body-sha256", Value::Bytes(claimed.clone())),
+    ]))?;
     if re != bytes {
         return Err(FileError::Decode(DecodeError::NonCanonical(
             "the bytes differ from the canonical encoding of their content",

@@ -77,7 +77,7 @@ pub fn text(c: &Decoded) -> String {
         b.generation_theorem
     ));
     s.push_str(&format!(
-        "  lattice        {} generator ideals, {} eliminations\n",
+        "  lattice        generator ideals: {}, eliminations: {}\n",
         b.lattice.generators.len(),
         b.lattice.eliminations.len()
     ));

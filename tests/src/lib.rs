@@ -1,1 +1,3 @@
+pub mod forge;
 pub mod oracle;
+pub mod support;

@@ -1,0 +1,29 @@
+#!/usr/bin/env bash
+# Prove and verify the benchmark discriminants; prints a Markdown table of
+# medians over RUNS runs (wall time from /usr/bin/time, peak RSS in MiB).
+#   ./bench.sh [RUNS] [DIGITS...]      e.g. ./bench.sh 3 20 30 40
+set -euo pipefail
+cd "$(dirname "$0")"
+runs=${1:-3}; shift || true
+digits=${*:-20 30}
+cargo build --release -q -p classcert-prover -p classcert-verifier --examples
+tmp=$(mktemp -d)
+median() { sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'; }
+echo "| digits | D | prove s (median of $runs) | verify s | verify/prove | certificate bytes | prove peak MiB | verify peak MiB |"
+echo "|---|---|---|---|---|---|---|---|"
+for n in $digits; do
+  d=$(./target/release/examples/bench_d "$n")
+  : > "$tmp/p"; : > "$tmp/v"
+  for _ in $(seq "$runs"); do
+    /usr/bin/time -f "%e %M" -o "$tmp/t" ./target/release/classcert prove "$d" -o "$tmp/c.cert" -q >/dev/null
+    cat "$tmp/t" >> "$tmp/p"
+    /usr/bin/time -f "%e %M" -o "$tmp/t" ./target/release/classcert-verify "$tmp/c.cert" >/dev/null
+    cat "$tmp/t" >> "$tmp/v"
+  done
+  ps=$(cut -d' ' -f1 "$tmp/p" | median); pm=$(cut -d' ' -f2 "$tmp/p" | median)
+  vs=$(cut -d' ' -f1 "$tmp/v" | median); vm=$(cut -d' ' -f2 "$tmp/v" | median)
+  size=$(stat -c %s "$tmp/c.cert")
+  ratio=$(awk -v a="$vs" -v b="$ps" 'BEGIN {printf "%.3f", (b > 0 ? a / b : 0)}')
+  echo "| $n | $d | $ps | $vs | $ratio | $size | $((pm / 1024)) | $((vm / 1024)) |"
+done
+rm -rf "$tmp"
