@@ -336,6 +336,7 @@ fn parse_decimal(s: &str) -> Result<Integer, String> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::rng::Rng;
 
     fn is_prime_ref(n: &Integer) -> bool {
         n.is_probably_prime(30) != IsPrime::No
@@ -356,32 +357,19 @@ mod tests {
         }
     }
 
-    /// Marsaglia's xorshift64 generator (G. Marsaglia, "Xorshift RNGs",
-    /// J. Statistical Software 8 (2003)), deterministic for reproducibility.
-    struct XorShift(u64);
-
-    impl XorShift {
-        fn next(&mut self) -> u64 {
-            let mut x = self.0;
-            x ^= x << 13;
-            x ^= x >> 7;
-            x ^= x << 17;
-            self.0 = x;
-            x
+    /// A random integer with exactly `bits` bits (top bit set), from the
+    /// prover's own seeded generator.
+    fn random_integer(rng: &mut Rng, bits: u32) -> Integer {
+        let mut n = Integer::new();
+        let mut have = 0;
+        while have < bits {
+            n <<= 64;
+            n += rng.next_u64();
+            have += 64;
         }
-
-        fn integer(&mut self, bits: u32) -> Integer {
-            let mut n = Integer::new();
-            let mut have = 0;
-            while have < bits {
-                n <<= 64;
-                n += self.next();
-                have += 64;
-            }
-            n >>= have - bits;
-            n.set_bit(bits - 1, true);
-            n
-        }
+        n >>= have - bits;
+        n.set_bit(bits - 1, true);
+        n
     }
 
     const BIG_BUDGET: u64 = 50_000_000;
@@ -456,21 +444,21 @@ mod tests {
 
     #[test]
     fn products_of_random_primes() {
-        let mut rng = XorShift(0x2545_F491_4F6C_DD1D);
+        let mut rng = Rng::new(0x2545_F491_4F6C_DD1D);
         for round in 0..200 {
-            let count = 1 + (rng.next() % 5) as usize;
+            let count = 1 + (rng.next_u64() % 5) as usize;
             let mut n = Integer::from(1);
             let mut expected: Vec<Integer> = Vec::new();
             for _ in 0..count {
                 // Mix of small primes (trial division) and primes up to 36
                 // bits (found by rho).
                 let bits = if round % 3 == 0 {
-                    2 + (rng.next() % 15) as u32
+                    2 + (rng.next_u64() % 15) as u32
                 } else {
-                    17 + (rng.next() % 20) as u32
+                    17 + (rng.next_u64() % 20) as u32
                 };
-                let p = rng.integer(bits).next_prime();
-                let e = 1 + (rng.next() % 3) as u32;
+                let p = random_integer(&mut rng, bits).next_prime();
+                let e = 1 + (rng.next_u64() % 3) as u32;
                 n *= Integer::from((&p).pow(e));
                 for _ in 0..e {
                     expected.push(p.clone());
@@ -478,7 +466,7 @@ mod tests {
             }
             // Occasionally one big prime cofactor that must be recognised.
             if round % 7 == 0 {
-                let p = rng.integer(120).next_prime();
+                let p = random_integer(&mut rng, 120).next_prime();
                 n *= &p;
                 expected.push(p);
             }
@@ -513,10 +501,10 @@ mod tests {
 
     #[test]
     fn budget_exhaustion() {
-        let mut rng = XorShift(77);
+        let mut rng = Rng::new(77);
         // Two primes of about 40 decimal digits (133 bits).
-        let p = rng.integer(133).next_prime();
-        let q = rng.integer(133).next_prime();
+        let p = random_integer(&mut rng, 133).next_prime();
+        let q = random_integer(&mut rng, 133).next_prime();
         let n = Integer::from(&p * &q);
         assert_eq!(factor(&n, 1000), None);
         assert_eq!(factor(&n, 0), None);

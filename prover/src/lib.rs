@@ -42,3 +42,16 @@ pub fn prove_to_bytes(d: &rug::Integer, opts: &Options) -> Result<(Vec<u8>, [u8;
     }
     Ok((bytes, id))
 }
+
+/// Writes a certificate through a temporary file and a rename, so a crash
+/// or a full disk never leaves a half-written certificate under `path`.
+pub fn write_certificate(path: &std::path::Path, bytes: &[u8]) -> std::io::Result<()> {
+    use std::io::Write;
+    let tmp = path.with_extension("cert.tmp");
+    {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+    }
+    std::fs::rename(&tmp, path)
+}

@@ -5,7 +5,7 @@ use clap::{Parser, Subcommand};
 use classcert_prover::{prove_to_bytes, Options};
 use rug::Integer;
 use std::io::Write;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 mod demo;
@@ -58,16 +58,6 @@ enum Cmd {
     },
 }
 
-fn write_atomic(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
-    let tmp = path.with_extension("cert.tmp");
-    {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-    }
-    std::fs::rename(&tmp, path)
-}
-
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.cmd {
@@ -100,7 +90,7 @@ fn main() -> ExitCode {
             };
             match prove_to_bytes(&d, &opts) {
                 Ok((bytes, id)) => {
-                    if let Err(e) = write_atomic(&output, &bytes) {
+                    if let Err(e) = classcert_prover::write_certificate(&output, &bytes) {
                         eprintln!("classcert: cannot write {}: {e}", output.display());
                         return ExitCode::from(2);
                     }

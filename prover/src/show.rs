@@ -2,17 +2,7 @@
 
 use classcert_format::json::Json;
 use classcert_format::{Decoded, Order, PrimeIdeal};
-
-fn inv_text(inv: &[rug::Integer]) -> String {
-    if inv.is_empty() {
-        "trivial".into()
-    } else {
-        inv.iter()
-            .map(|d| format!("Z/{d}"))
-            .collect::<Vec<_>>()
-            .join(" x ")
-    }
-}
+use classcert_verifier::verdict::invariants_text;
 
 pub fn text(c: &Decoded) -> String {
     let b = &c.body;
@@ -57,7 +47,7 @@ pub fn text(c: &Decoded) -> String {
     }
     s.push_str(&format!(
         "  class group    {}  (class number {})\n",
-        inv_text(&b.claim.invariants),
+        invariants_text(&b.claim.invariants),
         b.claim.class_number
     ));
     for (g, d) in b.claim.generators.iter().zip(b.claim.invariants.iter()) {

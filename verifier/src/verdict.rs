@@ -160,7 +160,8 @@ const NOT_PROVEN: &[&str] = &[
     "that the prover or this verifier is free of bugs: the verifier is small so that it can be reviewed",
 ];
 
-fn invariants_text(inv: &[Integer]) -> String {
+/// `Z/d_1 x Z/d_2 x …`, or `trivial`.
+pub fn invariants_text(inv: &[Integer]) -> String {
     if inv.is_empty() {
         "trivial".to_string()
     } else {
