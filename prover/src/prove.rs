@@ -296,32 +296,30 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 found.get()
             )));
         }
-        let Some(mut rel) = searcher.relation(5_000_000) else {
+        let Some(rel) = searcher.relation(5_000_000) else {
             return Err(ProveError::SearchFailed(
                 "relation search exhausted its attempts".into(),
             ));
         };
         found.set(found.get() + 1);
-        // substitute eliminations, largest index first
+        Ok(rel)
+    };
+    // The relation restricted to the essential block, by substituting the
+    // eliminations (largest index first); used only to test for full rank.
+    let substitute = |mut rel: Sparse| -> Option<Sparse> {
         while let Some((&j, &e)) = rel.iter().next_back() {
             if j < k {
                 break;
             }
-            let er = elim[j].as_ref().expect("elimination exists");
-            for (&c, &x) in er {
+            for (&c, &x) in elim[j].as_ref()? {
                 let t = rel.entry(c).or_insert(0);
-                let prod = e
-                    .checked_mul(x)
-                    .ok_or_else(|| ProveError::SearchFailed("exponent overflow".into()))?;
-                *t = t
-                    .checked_sub(prod)
-                    .ok_or_else(|| ProveError::SearchFailed("exponent overflow".into()))?;
+                *t = t.checked_sub(e.checked_mul(x)?)?;
                 if *t == 0 {
                     rel.remove(&c);
                 }
             }
         }
-        Ok(rel)
+        Some(rel)
     };
     let dense = |v: &Sparse, cols: &[usize]| -> Vec<i64> {
         let mut out = vec![0i64; cols.len()];
@@ -347,15 +345,20 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     }
     while rank.rank < k {
         let v = next_relation(&mut searcher)?;
-        rank.add(&dense(&v, &all_cols));
+        if let Some(sv) = substitute(v.clone()) {
+            rank.add(&dense(&sv, &all_cols));
+        }
         rels.push(v);
     }
     // some excess gives the elimination more unit pivots to choose from
     for _ in 0..k / 3 {
         rels.push(next_relation(&mut searcher)?);
     }
-    // Unit pivots leave the dense block.
-    let (sge, active) = Sge::run(k, rels);
+    // Unit pivots leave the dense block. The eliminations join the raw
+    // relations here, so large primes stay sparse columns (no fill-in
+    // from substituting them).
+    rels.extend(elim.iter().flatten().cloned());
+    let (sge, active) = Sge::run(n, rels);
     let cols = sge.remaining();
     let kd = cols.len();
     progress.say(&format!(
@@ -452,17 +455,6 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             },
         });
     }
-    for (i, e) in elim.iter().enumerate().skip(k) {
-        let rel = e.as_ref().expect("elimination exists");
-        eliminations.push(Elimination {
-            pivot: i as u32,
-            relation: Relation {
-                entries: to_entries(rel),
-                witness: Witness::FormReduction,
-            },
-        });
-    }
-
     // Generators of the cyclic factors: rows of V^{-1}, reduced modulo H_G.
     let mut generators = Vec::new();
     let mut invariants = Vec::new();

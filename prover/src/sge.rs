@@ -60,23 +60,27 @@ impl Sge {
             pivoted: vec![false; k],
         };
         loop {
-            // lightest active row with a unit entry; its unit column with the
-            // fewest other rows
-            let mut best: Option<(usize, usize, usize, usize)> = None; // (weight, colcount, row, col)
+            // the unit entry of least Markowitz cost (w - 1)(c - 1): w the
+            // row's weight, c the number of rows in its column, i.e. the
+            // fill-in its elimination can cause; singletons cost nothing
+            let mut best: Option<(usize, usize, usize, usize)> = None; // (cost, weight, row, col)
             for (i, r) in rows.iter().enumerate() {
                 let Some(r) = r else { continue };
                 let w = r.len();
-                if w > MAX_PIVOT_WEIGHT || best.is_some_and(|b| b.0 < w) {
+                if w > MAX_PIVOT_WEIGHT {
                     continue;
                 }
                 for (&c, &x) in r {
                     if x.abs() == 1 {
-                        let cc = col_rows[c].len();
-                        let cand = (w, cc, i, c);
+                        let cost = (w - 1) * (col_rows[c].len() - 1);
+                        let cand = (cost, w, i, c);
                         if best.is_none_or(|b| (cand.0, cand.1) < (b.0, b.1)) {
                             best = Some(cand);
                         }
                     }
+                }
+                if best.is_some_and(|b| b.0 == 0) {
+                    break;
                 }
             }
             let Some((_, _, pi, pc)) = best else { break };
