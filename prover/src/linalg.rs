@@ -491,13 +491,62 @@ impl RankModP {
     }
 }
 
+/// Montgomery arithmetic modulo an odd `p < 2^62` (P. L. Montgomery,
+/// "Modular multiplication without trial division", Math. Comp. 44 (1985)).
+struct Mont {
+    p: u64,
+    /// `-p^{-1} mod 2^64`
+    pinv: u64,
+    /// `2^128 mod p`
+    r2: u64,
+}
+
+impl Mont {
+    fn new(p: u64) -> Mont {
+        let mut inv: u64 = 1;
+        for _ in 0..6 {
+            inv = inv.wrapping_mul(2u64.wrapping_sub(p.wrapping_mul(inv)));
+        }
+        let r = ((1u128 << 64) % p as u128) as u64;
+        let r2 = ((r as u128 * r as u128) % p as u128) as u64;
+        Mont {
+            p,
+            pinv: inv.wrapping_neg(),
+            r2,
+        }
+    }
+
+    fn redc(&self, t: u128) -> u64 {
+        let m = (t as u64).wrapping_mul(self.pinv);
+        let u = ((t + m as u128 * self.p as u128) >> 64) as u64;
+        if u >= self.p {
+            u - self.p
+        } else {
+            u
+        }
+    }
+
+    fn mul(&self, a: u64, b: u64) -> u64 {
+        self.redc(a as u128 * b as u128)
+    }
+
+    fn to(&self, a: u64) -> u64 {
+        self.mul(a, self.r2)
+    }
+
+    fn from(&self, a: u64) -> u64 {
+        self.redc(a as u128)
+    }
+}
+
 fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
     let n = m.len();
+    let mt = Mont::new(p);
     let mut a: Vec<Vec<u64>> = m
         .iter()
-        .map(|r| r.iter().map(|&x| to_mod(x, p)).collect())
+        .map(|r| r.iter().map(|&x| mt.to(to_mod(x, p))).collect())
         .collect();
-    let mut det = 1u64;
+    let mut det = mt.to(1);
     for c in 0..n {
         let Some(piv) = (c..n).find(|&r| a[r][c] != 0) else {
             return 0;
@@ -506,20 +555,22 @@ fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
             a.swap(piv, c);
             det = (p - det) % p;
         }
-        det = mul_mod(det, a[c][c], p);
-        let inv = inv_mod(a[c][c], p);
-        for r in c + 1..n {
-            if a[r][c] == 0 {
+        det = mt.mul(det, a[c][c]);
+        let inv = mt.to(inv_mod(mt.from(a[c][c]), p));
+        let (top, bottom) = a.split_at_mut(c + 1);
+        let pivot_row = &top[c];
+        for row in bottom.iter_mut() {
+            if row[c] == 0 {
                 continue;
             }
-            let f = mul_mod(a[r][c], inv, p);
-            for cc in c..n {
-                let t = mul_mod(f, a[c][cc], p);
-                a[r][cc] = (a[r][cc] + p - t) % p;
+            let f = mt.mul(row[c], inv);
+            for (x, &y) in row[c..].iter_mut().zip(pivot_row[c..].iter()) {
+                let t = mt.mul(f, y);
+                *x = if *x >= t { *x - t } else { *x + p - t };
             }
         }
     }
-    det
+    mt.from(det)
 }
 
 /// The determinant of a square integer matrix, by Gaussian elimination

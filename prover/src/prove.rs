@@ -391,9 +391,35 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let mut hnf = if kd == 0 {
         Hnf::new(0)
     } else {
-        let m = Integer::from(det_crt(&independent).abs_ref());
+        // A second full-rank subset from the other rows: M·Z^kd lies in the
+        // lattice for both determinants, hence for their gcd, which is
+        // usually close to the class number and keeps the entries small.
+        let mut rank2 = RankModP::new(kd, (1u64 << 61) - 31);
+        let mut second = Vec::new();
+        let mut extra = Vec::new();
+        for v in pending.iter().filter(|v| !independent.contains(v)) {
+            if rank2.add(v) {
+                second.push(v.clone());
+            }
+        }
+        while rank2.rank < kd {
+            let Some(v) = sge.reduce(next_relation(&mut searcher)?) else {
+                continue;
+            };
+            let dv = dense(&v, &cols);
+            if rank2.add(&dv) {
+                second.push(dv.clone());
+            }
+            extra.push(dv);
+        }
+        pending.extend(extra);
+        let d1 = Integer::from(det_crt(&independent).abs_ref());
+        let d2 = Integer::from(det_crt(&second).abs_ref());
+        let m = d1.clone().gcd(&d2);
         progress.say(&format!(
-            "dense block {kd} x {kd}; determinant has {} bits",
+            "dense block {kd} x {kd}; determinants of {} and {} bits, gcd {} bits",
+            d1.significant_bits(),
+            d2.significant_bits(),
             m.significant_bits()
         ));
         Hnf::with_modulus(kd, &m)

@@ -10,7 +10,7 @@ use crate::search::Sparse;
 use std::collections::BTreeSet;
 
 /// Rows heavier than this are not used as pivots (they would fill in).
-const MAX_PIVOT_WEIGHT: usize = 64;
+const MAX_PIVOT_WEIGHT: usize = 128;
 /// Entries beyond this size stop a row from taking part.
 const MAX_ENTRY: i64 = 1 << 40;
 
