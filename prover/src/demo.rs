@@ -1,8 +1,8 @@
 //! `classcert demo`: a scenario of our own, with invented data.
 //!
 //! The (fictional) Quillmoor Cryptography Group proposes a toy parameter
-//! set "QM-37" for a group-action key exchange, built on the class group
-//! of the maximal order of discriminant D = -4p for a 37-digit prime
+//! set "QM-40" for a group-action key exchange, built on the class group
+//! of the maximal order of discriminant D = -4p for a 39-digit prime
 //! p ≡ 1 (mod 4) of their choosing. Before anyone deploys it, a reviewer
 //! wants the class group itself certified: the demo proves it, writes the
 //! certificate, and checks it with the independent verifier.
@@ -13,8 +13,8 @@ use std::path::Path;
 use std::process::ExitCode;
 use std::time::Instant;
 
-/// The invented prime of the scenario (37 digits, ≡ 1 mod 4).
-pub const DEMO_P: &str = "3141592653589793238462643383279503233";
+/// The invented prime of the scenario (39 digits, ≡ 1 mod 4: the first such prime above 2.5·10^38).
+pub const DEMO_P: &str = "250000000000000000000000000000000000061";
 
 pub fn run(dir: &Path) -> ExitCode {
     let p: Integer = match DEMO_P.parse() {
@@ -23,7 +23,7 @@ pub fn run(dir: &Path) -> ExitCode {
     };
     let d = Integer::from(-4) * &p;
     println!("Scenario (invented for this demo): the Quillmoor Cryptography Group proposes");
-    println!("the toy parameter set QM-37 on the class group of discriminant D = -4p with");
+    println!("the toy parameter set QM-40 on the class group of discriminant D = -4p with");
     println!("  p = {p}");
     println!("A reviewer asks for a certificate of Cl(O_D) before the set is considered.\n");
     println!("1. prove: classcert computes the class group and writes a certificate");
@@ -40,7 +40,7 @@ pub fn run(dir: &Path) -> ExitCode {
         }
     };
     let prove_s = t.elapsed().as_secs_f64();
-    let path = dir.join("qm-37.cert");
+    let path = dir.join("qm-40.cert");
     if let Err(e) = classcert_prover::write_certificate(&path, &bytes) {
         eprintln!("classcert: cannot write {}: {e}", path.display());
         return ExitCode::from(2);
@@ -59,7 +59,7 @@ pub fn run(dir: &Path) -> ExitCode {
     print!("{}", report.to_text());
     println!("\n   verified in {verify_s:.1} s");
     println!("\nNote: a verified certificate fixes the group structure under the listed");
-    println!("assumptions; it is not a security assessment of QM-37. That needs a proper review.");
+    println!("assumptions; it is not a security assessment of QM-40. That needs a proper review.");
     if report.is_verified() {
         ExitCode::SUCCESS
     } else {
