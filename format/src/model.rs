@@ -286,7 +286,7 @@ impl Body {
                     .collect(),
             ),
         };
-        let fb = Value::Array(
+        let ideals = Value::Array(
             self.factor_base
                 .iter()
                 .map(|PrimeIdeal::QuadraticForm { p, b }| {
@@ -294,6 +294,10 @@ impl Body {
                 })
                 .collect(),
         );
+        let fb = cbor::map(vec![
+            ("kind", Value::Text("quadratic-forms".into())),
+            ("ideals", ideals),
+        ]);
         let l = &self.lattice;
         let smith = cbor::map(vec![
             ("u", matrix(&l.smith.u)),
@@ -542,7 +546,13 @@ impl Body {
         let generation_theorem =
             cbor::get_text(top.req("generation-theorem")?, "generation-theorem")?.to_string();
 
-        let factor_base = cbor::get_array(top.req("factor-base")?, "factor-base")?
+        let (fb_kind, mut fbm) = get_kind(top.req("factor-base")?, "body.factor-base")?;
+        if fb_kind != "quadratic-forms" {
+            return Err(DecodeError::Schema(format!(
+                "unknown factor-base kind {fb_kind:?}"
+            )));
+        }
+        let factor_base = cbor::get_array(fbm.req("ideals")?, "factor-base.ideals")?
             .iter()
             .map(|x| {
                 let (p, b) = pair(x, "factor-base[]")?;
@@ -552,6 +562,7 @@ impl Body {
                 })
             })
             .collect::<Result<Vec<_>, DecodeError>>()?;
+        fbm.finish()?;
 
         let mut l = MapReader::new(top.req("lattice")?, "body.lattice")?;
         let mut s = MapReader::new(l.req("smith")?, "lattice.smith")?;
