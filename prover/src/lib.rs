@@ -17,10 +17,12 @@ pub mod fb;
 pub mod linalg;
 pub mod progress;
 pub mod prove;
+pub mod real;
 pub mod rng;
 pub mod search;
 pub mod sge;
 pub mod show;
+pub mod units;
 
 pub use prove::{prove, Options, ProveError};
 

@@ -200,6 +200,18 @@ pub struct Smith {
     pub diag: Vec<Integer>,
 }
 
+impl From<Smith> for classcert_format::Smith {
+    fn from(sm: Smith) -> Self {
+        classcert_format::Smith {
+            u: sm.u,
+            u_inv: sm.u_inv,
+            v: sm.v,
+            v_inv: sm.v_inv,
+            diagonal: sm.diag,
+        }
+    }
+}
+
 pub fn smith(a: &Matrix) -> Option<Smith> {
     let n = a.len();
     let mut a = a.clone();

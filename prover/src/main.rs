@@ -23,9 +23,9 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Cmd {
-    /// Compute Cl(O_D) and write a certificate.
+    /// Compute Cl(O_D) (and the unit group when D > 0) and write a certificate.
     Prove {
-        /// The discriminant D (negative, ≡ 0 or 1 mod 4), e.g. -3299.
+        /// The discriminant D (≡ 0 or 1 mod 4, not a square), e.g. -3299 or 316.
         #[arg(allow_negative_numbers = true)]
         discriminant: String,
         /// Where to write the certificate.

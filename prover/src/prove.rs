@@ -5,7 +5,7 @@
 
 use crate::factor;
 use crate::fb::FactorBase;
-use crate::linalg::{det_crt, smith, Hnf, RankModP};
+use crate::linalg::{det_crt, smith, Hnf, RankModP, Smith as SmithForm};
 use crate::progress::Progress;
 use crate::search::{Searcher, Sparse};
 use crate::sge::Sge;
@@ -72,34 +72,26 @@ impl std::error::Error for ProveError {}
 
 pub const TOOL: &str = "classcert-prover";
 
-/// Checks that `D` is an admissible negative discriminant.
+/// Checks that `D` is an admissible discriminant: `≡ 0, 1 (mod 4)`, not a
+/// square, and within the prover's size.
 pub fn validate(d: &Integer) -> Result<(), ProveError> {
-    if *d == 0 {
-        return Err(ProveError::InvalidInput(
-            "D = 0 is not a discriminant".into(),
-        ));
-    }
-    if *d > 0 {
-        let r = d.mod_u(4);
-        if r == 0 || r == 1 {
-            return Err(ProveError::Unsupported(format!(
-                "D = {d} is not a valid negative discriminant: real quadratic orders (D > 0) are not supported yet"
-            )));
-        }
-        return Err(ProveError::InvalidInput(format!(
-            "D = {d} is not a valid negative discriminant: D must be negative and ≡ 0 or 1 mod 4"
-        )));
-    }
     let r = d.mod_u(4);
     if r != 0 && r != 1 {
         return Err(ProveError::InvalidInput(format!(
-            "D = {d} is not a valid negative discriminant: D must be ≡ 0 or 1 mod 4 (here D ≡ {r} mod 4)"
+            "D = {d} is not a discriminant: D must be ≡ 0 or 1 mod 4 (here D ≡ {r} mod 4)"
         )));
     }
-    if d.significant_bits() > 400 {
+    if d.is_perfect_square() {
+        return Err(ProveError::InvalidInput(format!(
+            "D = {d} is a square, so it is not the discriminant of a quadratic order"
+        )));
+    }
+    let limit = if *d > 0 { 200 } else { 400 };
+    if d.significant_bits() > limit {
         return Err(ProveError::Unsupported(format!(
-            "|D| has {} bits; this prover handles up to 400 bits",
-            d.significant_bits()
+            "|D| has {} bits; this prover handles up to {limit} bits for D {} 0",
+            d.significant_bits(),
+            if *d > 0 { ">" } else { "<" }
         )));
     }
     Ok(())
@@ -123,7 +115,7 @@ pub fn is_fundamental(d: &Integer, factors: &[(Integer, u32)]) -> bool {
     }
 }
 
-fn maximality(
+pub(crate) fn maximality(
     d: &Integer,
     opts: &Options,
     progress: &mut Progress,
@@ -207,7 +199,7 @@ fn checkpoint_limits(x: u64) -> Vec<u64> {
 }
 
 /// How many factor-base ideals take part in the dense linear algebra.
-fn essential_count(fb: &FactorBase, abs_d: &Integer) -> usize {
+pub(crate) fn essential_count(fb: &FactorBase, abs_d: &Integer) -> usize {
     let n = fb.len();
     if n <= 48 {
         return n;
@@ -226,8 +218,22 @@ fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
         .collect()
 }
 
-pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
-    validate(d)?;
+/// What both signs of `D` share: maximality, the generation bound, the
+/// factor base and the analytic side.
+pub(crate) struct Setup {
+    pub max_claim: Option<Vec<PrimePower>>,
+    pub theorem: &'static str,
+    pub x: u64,
+    pub conductor: Vec<(u64, u32)>,
+    pub fb: FactorBase,
+    pub euler: euler::EulerResult,
+    /// Upper end allowed for `log h*` (`log h* R*` when `D > 0`): below
+    /// it the analytic check confirms the claim.
+    pub ceiling: rug::Float,
+    pub progress: Progress,
+}
+
+pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
     let mut progress = Progress::new(opts.progress);
     let abs_d = Integer::from(d.abs_ref());
     let max_claim = maximality(d, opts, &mut progress)?;
@@ -244,7 +250,6 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let (conductor, d_small) = small_conductor(d, &primes);
     let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
     let fb = FactorBase::new(d, &primes, bound, &cond_primes);
-    let n = fb.len();
 
     // Analytic side first: it tells the search when to stop.
     let log_delta = Interval::int(&abs_d).ln().expect("|D| > 0");
@@ -261,15 +266,118 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         .ok_or_else(|| ProveError::SearchFailed("analytic bound could not be evaluated".into()))?;
     let ceiling = log_h.add(&Interval::ln2()).lo.clone();
     progress.say(&format!(
-        "log h in [{:.4}, {:.4}] (h about {:.4e})",
+        "log {} in [{:.4}, {:.4}] (about {:.4e})",
+        if *d > 0 { "hR" } else { "h" },
         log_h.lo.to_f64(),
         log_h.hi.to_f64(),
         log_h.mid_f64().exp()
     ));
+    Ok(Setup {
+        max_claim,
+        theorem,
+        x,
+        conductor,
+        fb,
+        euler: res,
+        ceiling,
+        progress,
+    })
+}
 
-    let k = essential_count(&fb, &abs_d);
+impl Setup {
+    /// The certificate body around a lattice, a claim and (for `D > 0`)
+    /// the units.
+    pub(crate) fn body(
+        self,
+        d: &Integer,
+        opts: &Options,
+        claim: Claim,
+        lattice: Lattice,
+        units: Option<Units>,
+    ) -> Body {
+        let to_b = |i: &Interval| i.to_bounds().expect("finite interval");
+        let res = self.euler;
+        Body {
+            producer: Producer {
+                tool: TOOL.to_string(),
+                version: env!("CARGO_PKG_VERSION").to_string(),
+                seed: opts.seed,
+            },
+            order: Order::Quadratic {
+                discriminant: d.clone(),
+            },
+            claim,
+            conductor_small: self.conductor,
+            maximality: self.max_claim,
+            generation_theorem: self.theorem.to_string(),
+            factor_base: self
+                .fb
+                .primes
+                .iter()
+                .zip(self.fb.bs.iter())
+                .map(|(&p, &b)| PrimeIdeal::QuadraticForm { p, b })
+                .collect(),
+            lattice,
+            euler: EulerTrace {
+                theorem: registry::BELABAS_FRIEDMAN.to_string(),
+                x: self.x,
+                checkpoints: res
+                    .checkpoints
+                    .iter()
+                    .map(|c| Checkpoint {
+                        limit: c.limit,
+                        a: to_b(&c.a),
+                        c: to_b(&c.c),
+                    })
+                    .collect(),
+                log_l: to_b(&res.log_l),
+            },
+            units,
+        }
+    }
+}
+
+/// Generators of the cyclic factors `Z/d_i` with `d_i > 1`: rows of `V^{-1}`
+/// reduced modulo the upper triangular `H`. Returns `(d_i, exponents)`.
+pub(crate) fn cyclic_generators(
+    sm: &SmithForm,
+    h_g: &[Vec<Integer>],
+) -> Vec<(Integer, Vec<Integer>)> {
+    let r = h_g.len();
+    let mut out = Vec::new();
+    for (i, di) in sm.diag.iter().enumerate() {
+        if *di <= 1 {
+            continue;
+        }
+        let mut xv = sm.v_inv[i].clone();
+        for t in 0..r {
+            let q = Integer::from((&xv[t]).div_floor(&h_g[t][t]));
+            if !q.is_zero() {
+                for c in t..r {
+                    let s = Integer::from(&q * &h_g[t][c]);
+                    xv[c] -= s;
+                }
+            }
+        }
+        out.push((di.clone(), xv));
+    }
+    out
+}
+
+pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
+    validate(d)?;
+    if *d > 0 {
+        return crate::real::prove_real(d, opts);
+    }
+    let abs_d = Integer::from(d.abs_ref());
+    let mut setup = setup(d, opts)?;
+    let mut progress = std::mem::replace(&mut setup.progress, Progress::new(false));
+    let fb = &setup.fb;
+    let n = fb.len();
+    let ceiling = setup.ceiling.clone();
+    let k = essential_count(fb, &abs_d);
     progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
-    let mut searcher = Searcher::new(d, &fb, k, opts.seed);
+    let mut searcher = Searcher::new(d, fb, k, opts.seed);
 
     // Eliminations for every ideal beyond the essential block.
     let mut elim: Vec<Option<Sparse>> = vec![None; n];
@@ -450,7 +558,6 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     // positions in the dense block with a pivot > 1 are the generators
     let gpos: Vec<usize> = (0..kd).filter(|&j| rows[j][j] > 1).collect();
     let gens: Vec<usize> = gpos.iter().map(|&j| cols[j]).collect();
-    let r = gens.len();
     let h_g: Vec<Vec<Integer>> = gpos
         .iter()
         .map(|&g| gpos.iter().map(|&c| rows[g][c].clone()).collect())
@@ -484,21 +591,8 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     // Generators of the cyclic factors: rows of V^{-1}, reduced modulo H_G.
     let mut generators = Vec::new();
     let mut invariants = Vec::new();
-    for (i, di) in sm.diag.iter().enumerate() {
-        if *di <= 1 {
-            continue;
-        }
-        invariants.push(di.clone());
-        let mut xv = sm.v_inv[i].clone();
-        for t in 0..r {
-            let q = Integer::from((&xv[t]).div_floor(&h_g[t][t]));
-            if !q.is_zero() {
-                for c in t..r {
-                    let s = Integer::from(&q * &h_g[t][c]);
-                    xv[c] -= s;
-                }
-            }
-        }
+    for (di, xv) in cyclic_generators(&sm, &h_g) {
+        invariants.push(di);
         let mut f = Form::principal(d);
         for (t, e) in xv.iter().enumerate() {
             if !e.is_zero() {
@@ -508,66 +602,26 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         }
         generators.push(CyclicGenerator {
             exponents: xv,
-            form: classcert_format::Form {
+            form: Some(classcert_format::Form {
                 a: f.a,
                 b: f.b,
                 c: f.c,
-            },
+            }),
         });
     }
     let class_number: Integer = sm.diag.iter().product();
-
-    let to_b = |i: &Interval| i.to_bounds().expect("finite interval");
-    let body = Body {
-        producer: Producer {
-            tool: TOOL.to_string(),
-            version: env!("CARGO_PKG_VERSION").to_string(),
-            seed: opts.seed,
-        },
-        order: Order::Quadratic {
-            discriminant: d.clone(),
-        },
-        claim: Claim {
-            class_number,
-            invariants,
-            generators,
-        },
-        conductor_small: conductor,
-        maximality: max_claim,
-        generation_theorem: theorem.to_string(),
-        factor_base: fb
-            .primes
-            .iter()
-            .zip(fb.bs.iter())
-            .map(|(&p, &b)| PrimeIdeal::QuadraticForm { p, b })
-            .collect(),
-        lattice: Lattice {
-            generators: gens.iter().map(|&g| g as u32).collect(),
-            relations: h_g,
-            relation_witness: Witness::FormReduction,
-            smith: Smith {
-                u: sm.u,
-                u_inv: sm.u_inv,
-                v: sm.v,
-                v_inv: sm.v_inv,
-                diagonal: sm.diag,
-            },
-            eliminations,
-        },
-        euler: EulerTrace {
-            theorem: registry::BELABAS_FRIEDMAN.to_string(),
-            x,
-            checkpoints: res
-                .checkpoints
-                .iter()
-                .map(|c| Checkpoint {
-                    limit: c.limit,
-                    a: to_b(&c.a),
-                    c: to_b(&c.c),
-                })
-                .collect(),
-            log_l: to_b(&res.log_l),
-        },
+    let claim = Claim {
+        class_number,
+        invariants,
+        generators,
     };
-    Ok(body)
+    let lattice = Lattice {
+        generators: gens.iter().map(|&g| g as u32).collect(),
+        relations: h_g,
+        relation_witness: Witness::FormReduction,
+        smith: sm.into(),
+        eliminations,
+        raw_relations: None,
+    };
+    Ok(setup.body(d, opts, claim, lattice, None))
 }

@@ -1,8 +1,92 @@
 //! `classcert show`: what a certificate claims, read without checking it.
 
+use crate::units::{self, Factor};
 use classcert_format::json::Json;
-use classcert_format::{Decoded, Order, PrimeIdeal};
-use classcert_verifier::verdict::invariants_text;
+use classcert_format::{Body, CyclicGenerator, Decoded, Order, PrimeIdeal, Witness};
+use classcert_verifier::interval::Interval;
+use classcert_verifier::verdict::{
+    decimal, generator_json, generator_text, invariants_text, GeneratorView,
+};
+use rug::ops::Pow;
+use rug::Integer;
+
+/// Units with at most this many digits are printed in full.
+const MAX_UNIT_DIGITS: u32 = 200;
+
+/// A generator as stated: its reduced form (`D < 0`) or its ideals.
+fn generator_view(b: &Body, g: &CyclicGenerator) -> GeneratorView {
+    if let Some(f) = &g.form {
+        return GeneratorView::Form(f.a.clone(), f.b.clone(), f.c.clone());
+    }
+    let mut out = Vec::new();
+    for (gi, e) in b.lattice.generators.iter().zip(g.exponents.iter()) {
+        if let (false, Some(PrimeIdeal::QuadraticForm { p, b })) =
+            (e.is_zero(), b.factor_base.get(*gi as usize))
+        {
+            out.push((*p, *b, e.clone()));
+        }
+    }
+    GeneratorView::Ideals(out)
+}
+
+/// The stated fundamental unit, expanded when it is small enough:
+/// `(x, y)` with `ε = x + y ω`, `ω = (σ + sqrt D)/2`, `σ = D mod 2`.
+pub fn unit_coordinates(b: &Body) -> Option<(Integer, Integer)> {
+    let Order::Quadratic { discriminant: d } = &b.order;
+    let units = b.units.as_ref()?;
+    let raw = b.lattice.raw_relations.as_ref()?;
+    let mut factors = Vec::with_capacity(raw.len());
+    for r in raw {
+        let Witness::Element { x, y } = &r.witness else {
+            return None;
+        };
+        let mut s = Integer::from(1);
+        for (i, e) in &r.entries {
+            if *e < 0 {
+                let PrimeIdeal::QuadraticForm { p, .. } = b.factor_base.get(*i as usize)?;
+                s *= Integer::from(*p).pow(e.clone().abs().to_u32()?);
+            }
+        }
+        factors.push(Factor {
+            x: x.clone(),
+            y: y.clone(),
+            s,
+        });
+    }
+    let terms: Vec<(usize, Integer)> = units
+        .fundamental
+        .iter()
+        .map(|(j, e)| (*j as usize, e.clone()))
+        .collect();
+    let (mut big_x, mut big_y) = units::expand(d, &factors, &terms, MAX_UNIT_DIGITS)?;
+    // -ε is a fundamental unit too; print the one that is > 0
+    let x_dominates = Integer::from(big_x.square_ref()) > Integer::from(big_y.square_ref()) * d;
+    let negative = if x_dominates { big_x < 0 } else { big_y < 0 };
+    if negative {
+        big_x = -big_x;
+        big_y = -big_y;
+    }
+    let sigma = u32::from(d.is_odd());
+    let x = (big_x - Integer::from(&big_y * sigma)) >> 1u32;
+    Some((x, big_y))
+}
+
+/// The stated regulator in decimal, and about how many decimal digits the
+/// unit has.
+fn regulator_parts(b: &Body) -> Option<(String, u64)> {
+    let u = b.units.as_ref()?;
+    let r = Interval::from_bounds(&u.regulator)?;
+    let digits = (r.hi.to_f64() / std::f64::consts::LN_10).ceil() as u64;
+    Some((decimal(&r), digits))
+}
+
+fn omega_text(d: &Integer) -> String {
+    if d.is_odd() {
+        format!("(1 + sqrt {d})/2")
+    } else {
+        format!("sqrt {d}/2")
+    }
+}
 
 pub fn text(c: &Decoded) -> String {
     let b = &c.body;
@@ -52,9 +136,26 @@ pub fn text(c: &Decoded) -> String {
     ));
     for (g, d) in b.claim.generators.iter().zip(b.claim.invariants.iter()) {
         s.push_str(&format!(
-            "  generator      ({}, {}, {}) of order {d}\n",
-            g.form.a, g.form.b, g.form.c
+            "  generator      {} of order {d}\n",
+            generator_text(&generator_view(b, g))
         ));
+    }
+    if let (Some(u), Some((reg, digits))) = (&b.units, regulator_parts(b)) {
+        s.push_str(&format!("  regulator      {reg}\n"));
+        match unit_coordinates(b) {
+            Some((x, y)) => s.push_str(&format!(
+                "  unit           {x} {} {} w, w = {}, of norm {}\n",
+                if y < 0 { "-" } else { "+" },
+                Integer::from(y.abs_ref()),
+                omega_text(discriminant),
+                u.norm
+            )),
+            None => s.push_str(&format!(
+                "  unit           of norm {}, about {digits} digits: kept as a power product of {} elements\n",
+                u.norm,
+                u.fundamental.len()
+            )),
+        }
     }
     let maxp = b
         .factor_base
@@ -82,7 +183,7 @@ pub fn json(c: &Decoded) -> Json {
     let b = &c.body;
     let Order::Quadratic { discriminant } = &b.order;
     let num = |x: &rug::Integer| Json::str(x.to_string());
-    Json::obj(vec![
+    let mut out = vec![
         ("certificate_sha256", Json::str(c.id_hex())),
         ("checked", Json::Bool(false)),
         ("tool", Json::str(b.producer.tool.clone())),
@@ -100,7 +201,7 @@ pub fn json(c: &Decoded) -> Json {
                 b.claim
                     .generators
                     .iter()
-                    .map(|g| Json::Arr(vec![num(&g.form.a), num(&g.form.b), num(&g.form.c)]))
+                    .map(|g| generator_json(&generator_view(b, g)))
                     .collect(),
             ),
         ),
@@ -133,5 +234,22 @@ pub fn json(c: &Decoded) -> Json {
             Json::Num(b.lattice.eliminations.len().to_string()),
         ),
         ("euler_x", Json::Num(b.euler.x.to_string())),
-    ])
+    ];
+    if let (Some(u), Some((reg, digits))) = (&b.units, regulator_parts(b)) {
+        out.push(("regulator", Json::str(reg)));
+        out.push(("unit_norm", Json::Num(u.norm.to_string())));
+        out.push((
+            "unit_compact_length",
+            Json::Num(u.fundamental.len().to_string()),
+        ));
+        out.push(("unit_digits", Json::Num(digits.to_string())));
+        out.push((
+            "unit",
+            match unit_coordinates(b) {
+                Some((x, y)) => Json::Arr(vec![num(&x), num(&y)]),
+                None => Json::Null,
+            },
+        ));
+    }
+    Json::obj(out)
 }

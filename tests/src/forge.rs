@@ -214,11 +214,11 @@ pub fn rebuild_cyclic(b: &Body, m: u64) -> Body {
     b.claim.invariants = vec![mh];
     b.claim.generators = vec![classcert_format::CyclicGenerator {
         exponents: vec![Integer::from(1)],
-        form: classcert_format::Form {
+        form: Some(classcert_format::Form {
             a: gf.a.clone(),
             b: gf.b.clone(),
             c: gf.c.clone(),
-        },
+        }),
     }];
     b
 }
@@ -318,7 +318,8 @@ fn generator_form_inverted(b: &Body) -> Vec<u8> {
     let g = b.claim.generators.last_mut().expect("a generator");
     // (a, -b, c) is the inverse class; it differs from (a, b, c) for an
     // element of order > 2.
-    g.form.b = Integer::from(-&g.form.b);
+    let f = g.form.as_mut().expect("D < 0 generators carry a form");
+    f.b = Integer::from(-&f.b);
     encode(&b)
 }
 

@@ -152,9 +152,9 @@ fn prover_refuses_bad_input() {
     let dir = scratch("bad-input");
     let cert = dir.join("x.cert");
     let cert_s = cert.to_str().expect("utf-8 path");
-    // -5 ≡ 3 (mod 4) is not a discriminant; 5 > 0 is a real order
-    // (unsupported); "abc" is not an integer.
-    for d in ["-5", "5", "abc"] {
+    // -5 and 7 are ≡ 3 (mod 4), not discriminants; 16 is a square;
+    // "abc" is not an integer.
+    for d in ["-5", "7", "16", "abc"] {
         let o = run(&classcert, &["prove", d, "-o", cert_s, "-q"]);
         assert!(!o.status.success(), "prove {d} should fail");
         assert!(!cert.exists(), "prove {d} wrote a file");

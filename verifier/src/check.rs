@@ -8,24 +8,27 @@
 //! not compile.
 
 use crate::arith::{kronecker_prime, mod_small, primes_up_to, small_conductor};
+use crate::element;
 use crate::euler;
 use crate::form::Form;
 use crate::interval::Interval;
 use crate::limits::*;
 use crate::primality::{primality_evidence, Evidence};
 use crate::registry::{self, Theorem};
-use crate::verdict::{reject, Assumption, Reason, Rejection, Verified};
-use classcert_format::{Body, Order, PrimeIdeal, Witness};
+use crate::verdict::{reject, Assumption, GeneratorView, Reason, Rejection, UnitSummary, Verified};
+use classcert_format::{Body, Order, PrimeIdeal, Relation, Witness};
 use rug::ops::Pow;
 use rug::Integer;
 
 type Check<T> = Result<T, Rejection>;
 
-/// Step 0: a valid negative discriminant within limits.
+/// Step 0: a valid discriminant within limits.
 struct OrderOk {
     d: Integer,
     abs_d: Integer,
     w: u32,
+    /// `D > 0`.
+    real: bool,
 }
 
 /// Step 0 (continued): conductor part found by trial division, and the
@@ -46,6 +49,20 @@ struct GenerationOk {
     forms: Vec<Form>,
 }
 
+/// Step 2 (`D > 0`): every raw relation holds by its element witness.
+struct RawOk<'a> {
+    relations: &'a [Relation],
+    /// `N(α_j) < 0`, per raw relation.
+    negative_norm: Vec<bool>,
+}
+
+/// Step 4 (`D > 0`): a unit of infinite order, `R* = |log|ε|| > 0`.
+struct UnitsOk {
+    regulator: Interval,
+    norm: i8,
+    length: usize,
+}
+
 /// Steps 2–3: relations hold, and `Z^n / L ≅ ⊕ Z/d_i` with `h | ∏ d_i`.
 struct LatticeOk {
     h_star: Integer,
@@ -55,10 +72,10 @@ struct LatticeOk {
 /// The claim matches the lattice.
 struct ClaimOk {
     invariants: Vec<Integer>,
-    generators: Vec<(Integer, Integer, Integer)>,
+    generators: Vec<GeneratorView>,
 }
 
-/// Step 5: `h = h*`.
+/// Step 5: `h = h*` (and `R = R*` when `D > 0`).
 struct AnalyticOk {
     log_h: Interval,
     x: u64,
@@ -73,17 +90,17 @@ fn check_order(body: &Body) -> Check<OrderOk> {
             format!("|D| has more than {MAX_DISCRIMINANT_BITS} bits"),
         );
     }
-    if *d >= 0 {
-        return reject(
-            Reason::UnsupportedOrder,
-            "this verifier checks imaginary quadratic orders (D < 0) only",
-        );
-    }
     let r = d.mod_u(4);
     if r != 0 && r != 1 {
         return reject(
             Reason::InvalidDiscriminant,
             format!("D = {d} is not ≡ 0 or 1 mod 4"),
+        );
+    }
+    if d.is_perfect_square() {
+        return reject(
+            Reason::InvalidDiscriminant,
+            format!("D = {d} is a square, so it is not the discriminant of a quadratic order"),
         );
     }
     let w = match d.to_i32() {
@@ -95,6 +112,7 @@ fn check_order(body: &Body) -> Check<OrderOk> {
         d: d.clone(),
         abs_d,
         w,
+        real: *d > 0,
     })
 }
 
@@ -326,6 +344,85 @@ fn is_principal(
     Ok(product(forms, entries, d, budget)? == Some(Form::principal(d)))
 }
 
+/// How relations are shown to hold: by form reduction (`D < 0`), or as
+/// combinations of raw relations with element witnesses (`D > 0`).
+enum Witnesses<'a> {
+    Forms {
+        forms: &'a [Form],
+        d: &'a Integer,
+        budget: Budget,
+    },
+    Raw {
+        raw: &'a [Relation],
+        work: u64,
+    },
+}
+
+impl Witnesses<'_> {
+    /// True if the relation `entries` (sparse, by factor-base index) holds
+    /// by `witness`. `None` stands for the combination `terms` (a row of
+    /// `H` under a `combinations` witness).
+    fn holds(
+        &mut self,
+        entries: &[(usize, &Integer)],
+        witness: &Witness,
+        what: &str,
+    ) -> Check<bool> {
+        match (self, witness) {
+            (Witnesses::Forms { forms, d, budget }, Witness::FormReduction) => {
+                is_principal(forms, entries, d, budget)
+            }
+            (Witnesses::Raw { raw, work }, Witness::Combination { terms }) => {
+                let sum = element::combine(raw, terms, work)?;
+                Ok(sum.len() == entries.len()
+                    && entries
+                        .iter()
+                        .all(|(i, e)| u32::try_from(*i).ok().and_then(|i| sum.get(&i)) == Some(*e)))
+            }
+            (Witnesses::Forms { .. }, _) => reject(
+                Reason::WitnessKind,
+                format!("{what}: D < 0 relations are shown by form reduction"),
+            ),
+            (Witnesses::Raw { .. }, _) => reject(
+                Reason::WitnessKind,
+                format!("{what}: D > 0 relations are shown as combinations of raw relations"),
+            ),
+        }
+    }
+}
+
+/// Step 2 for `D > 0`: each raw relation holds by its element witness
+/// (see [`element`]). For `D < 0` there are none.
+fn check_raw_relations<'a>(body: &'a Body, order: &OrderOk) -> Check<Option<RawOk<'a>>> {
+    let raw = match (&body.lattice.raw_relations, order.real) {
+        (None, false) => return Ok(None),
+        (Some(raw), true) => raw,
+        (Some(_), false) => {
+            return reject(
+                Reason::WitnessKind,
+                "raw relations with element witnesses are for D > 0",
+            )
+        }
+        (None, true) => {
+            return reject(
+                Reason::WitnessKind,
+                "D > 0 needs raw relations with element witnesses",
+            )
+        }
+    };
+    if raw.len() > MAX_RAW_RELATIONS {
+        return reject(Reason::OverLimit, "too many raw relations");
+    }
+    let mut negative_norm = Vec::with_capacity(raw.len());
+    for (k, rel) in raw.iter().enumerate() {
+        negative_norm.push(element::check_raw(&order.d, &body.factor_base, k, rel)?);
+    }
+    Ok(Some(RawOk {
+        relations: raw,
+        negative_norm,
+    }))
+}
+
 fn mat_mul(a: &[Vec<Integer>], b: &[Vec<Integer>], n: usize) -> Vec<Vec<Integer>> {
     let mut out = vec![vec![Integer::new(); n]; n];
     for (row_out, row_a) in out.iter_mut().zip(a.iter()) {
@@ -357,7 +454,12 @@ fn is_identity(m: &[Vec<Integer>]) -> bool {
     })
 }
 
-fn check_lattice(body: &Body, order: &OrderOk, gen: &GenerationOk) -> Check<LatticeOk> {
+fn check_lattice(
+    body: &Body,
+    order: &OrderOk,
+    gen: &GenerationOk,
+    raw: Option<&RawOk>,
+) -> Check<LatticeOk> {
     let l = &body.lattice;
     let n = gen.forms.len();
     let r = l.generators.len();
@@ -379,8 +481,17 @@ fn check_lattice(body: &Body, order: &OrderOk, gen: &GenerationOk) -> Check<Latt
             }
         }
     }
-    let d = &order.d;
-    let mut budget = Budget(MAX_COMPOSITIONS);
+    let mut witnesses = match raw {
+        None => Witnesses::Forms {
+            forms: &gen.forms,
+            d: &order.d,
+            budget: Budget(MAX_COMPOSITIONS),
+        },
+        Some(raw) => Witnesses::Raw {
+            raw: raw.relations,
+            work: MAX_COMBINATION_WORK,
+        },
+    };
     // Relations among the generators (rows of H).
     if !is_square(&l.relations, r) {
         return reject(
@@ -388,7 +499,24 @@ fn check_lattice(body: &Body, order: &OrderOk, gen: &GenerationOk) -> Check<Latt
             format!("the relation matrix must be {r} x {r}"),
         );
     }
-    let Witness::FormReduction = l.relation_witness;
+    let row_witness = |i: usize| -> Check<Witness> {
+        match &l.relation_witness {
+            Witness::Combinations { rows } => match rows.get(i) {
+                Some(terms) if rows.len() == r => Ok(Witness::Combination {
+                    terms: terms.clone(),
+                }),
+                _ => reject(
+                    Reason::CombinationMismatch,
+                    format!("one combination per row of H is required ({r} rows)"),
+                ),
+            },
+            Witness::Combination { .. } | Witness::Element { .. } => reject(
+                Reason::WitnessKind,
+                "the rows of H need a combinations or form-reduction witness",
+            ),
+            Witness::FormReduction => Ok(Witness::FormReduction),
+        }
+    };
     for (i, row) in l.relations.iter().enumerate() {
         let entries: Vec<(usize, &Integer)> = l
             .generators
@@ -397,10 +525,17 @@ fn check_lattice(body: &Body, order: &OrderOk, gen: &GenerationOk) -> Check<Latt
             .filter(|(_, e)| !e.is_zero())
             .map(|(g, e)| (*g as usize, e))
             .collect();
-        if !is_principal(&gen.forms, &entries, d, &mut budget)? {
+        let mut entries = entries;
+        entries.sort_by_key(|(g, _)| *g);
+        if !witnesses.holds(&entries, &row_witness(i)?, &format!("row {i} of H"))? {
+            let reason = if order.real {
+                Reason::CombinationMismatch
+            } else {
+                Reason::RelationNotPrincipal
+            };
             return reject(
-                Reason::RelationNotPrincipal,
-                format!("generator relation {i} does not reduce to the principal form"),
+                reason,
+                format!("generator relation {i} does not hold by its witness"),
             );
         }
     }
@@ -473,7 +608,6 @@ fn check_lattice(body: &Body, order: &OrderOk, gen: &GenerationOk) -> Check<Latt
                 format!("elimination {k}: pivot {p} is already accounted for or out of range"),
             );
         }
-        let Witness::FormReduction = el.relation.witness;
         let ents = &el.relation.entries;
         if ents.len() > MAX_RELATION_ENTRIES {
             return reject(Reason::OverLimit, "a relation has too many entries");
@@ -506,10 +640,15 @@ fn check_lattice(body: &Body, order: &OrderOk, gen: &GenerationOk) -> Check<Latt
             );
         }
         let entries: Vec<(usize, &Integer)> = ents.iter().map(|(i, e)| (*i as usize, e)).collect();
-        if !is_principal(&gen.forms, &entries, d, &mut budget)? {
+        if !witnesses.holds(&entries, &el.relation.witness, &format!("elimination {k}"))? {
+            let reason = if order.real {
+                Reason::CombinationMismatch
+            } else {
+                Reason::EliminationNotPrincipal
+            };
             return reject(
-                Reason::EliminationNotPrincipal,
-                format!("elimination {k} (pivot {p}) does not reduce to the principal form"),
+                reason,
+                format!("elimination {k} (pivot {p}) does not hold by its witness"),
             );
         }
         if let Some(slot) = known.get_mut(p) {
@@ -599,10 +738,34 @@ fn check_claim(
             .filter(|(_, e)| !e.is_zero())
             .map(|(gi, e)| (*gi as usize, e))
             .collect();
+        if order.real {
+            // Reduced indefinite forms are not unique in their class, so the
+            // generator is stated by its exponents alone.
+            if g.form.is_some() {
+                return reject(
+                    Reason::GeneratorMismatch,
+                    "for D > 0 a generator is given by its exponents, without a form",
+                );
+            }
+            let mut ideals = Vec::with_capacity(entries.len());
+            for (gi, e) in &entries {
+                if let Some(PrimeIdeal::QuadraticForm { p, b }) = body.factor_base.get(*gi) {
+                    ideals.push((*p, *b, (*e).clone()));
+                }
+            }
+            out.push(GeneratorView::Ideals(ideals));
+            continue;
+        }
+        let Some(stated) = &g.form else {
+            return reject(
+                Reason::GeneratorMismatch,
+                format!("generator {i} has no reduced form"),
+            );
+        };
         let Some(acc) = product(&gen.forms, &entries, d, &mut budget)? else {
             return reject(Reason::GeneratorMismatch, "form arithmetic failed");
         };
-        if acc.a != g.form.a || acc.b != g.form.b || acc.c != g.form.c {
+        if acc.a != stated.a || acc.b != stated.b || acc.c != stated.c {
             return reject(
                 Reason::GeneratorMismatch,
                 format!(
@@ -611,7 +774,7 @@ fn check_claim(
                 ),
             );
         }
-        out.push((acc.a, acc.b, acc.c));
+        out.push(GeneratorView::Form(acc.a, acc.b, acc.c));
     }
     Ok(ClaimOk {
         invariants: inv,
@@ -619,9 +782,10 @@ fn check_claim(
     })
 }
 
-/// The enclosure of `log h(O_D)` from the class number formula and the
-/// Euler-product enclosure of `log L(1, χ_d)`; shared with the prover so
-/// both sides agree on what is checked.
+/// The enclosure of `log h(O_D)` (for `D > 0`, of `log h(O_D) R(O_D)`)
+/// from the class number formula and the Euler-product enclosure of
+/// `log L(1, χ_d)`; shared with the prover so both sides agree on what is
+/// checked.
 pub fn log_h_enclosure(
     d: &Integer,
     w: u32,
@@ -632,12 +796,13 @@ pub fn log_h_enclosure(
 ) -> Option<Interval> {
     let abs_d = Interval::int(&Integer::from(d.abs_ref()));
     let half_log_d = abs_d.ln()?.div(&Interval::u64(2))?;
-    let two_pi = Interval::pi().mul(&Interval::u64(2));
-    let mut acc = Interval::u64(u64::from(w))
-        .div(&two_pi)?
-        .ln()?
-        .add(&half_log_d)
-        .add(log_l);
+    // h = w sqrt|D| L / (2 pi) for D < 0; h R = sqrt D L / 2 for D > 0
+    let lead = if *d > 0 {
+        Interval::u64(1).div(&Interval::u64(2))?
+    } else {
+        Interval::u64(u64::from(w)).div(&Interval::pi().mul(&Interval::u64(2)))?
+    };
+    let mut acc = lead.ln()?.add(&half_log_d).add(log_l);
     for (p, _) in conductor {
         let chi = i64::from(kronecker_prime(d_small, *p));
         let pi = Interval::u64(*p);
@@ -664,11 +829,115 @@ pub fn log_h_enclosure(
     Some(acc)
 }
 
+/// Step 4 (`D > 0`): the power product `ε = ∏ α'_j^{e_j}` is a unit of
+/// infinite order, and the claimed regulator, norm and length match.
+///
+/// Its ideal is `∏ P_i^{Σ_j e_j r_{j,i}}`; the sum is the zero vector, so
+/// `εO = O` and `ε` is a unit (common practice). `log|ε| = Σ e_j log|α'_j|`
+/// in outward-rounded intervals; if it is bounded away from 0 then
+/// `R* = |log|ε||` is a positive integer multiple of the regulator:
+/// `R* = [O^* : <-1, ε>] R` (design note, section 4).
+fn check_units(body: &Body, order: &OrderOk, raw: Option<&RawOk>) -> Check<Option<UnitsOk>> {
+    let (units, raw) = match (&body.units, raw) {
+        (None, None) => return Ok(None),
+        (Some(u), Some(raw)) => (u, raw),
+        (Some(_), None) => return reject(Reason::UnitsShape, "a unit section is only for D > 0"),
+        (None, Some(_)) => {
+            return reject(
+                Reason::UnitsShape,
+                "D > 0 needs the fundamental unit and the regulator",
+            )
+        }
+    };
+    let terms = &units.fundamental;
+    if terms.len() > MAX_UNIT_TERMS {
+        return reject(Reason::OverLimit, "the unit's power product is too long");
+    }
+    let mut work = MAX_COMBINATION_WORK;
+    let kernel = element::combine(raw.relations, terms, &mut work)?;
+    if let Some((i, e)) = kernel.iter().next() {
+        return reject(
+            Reason::UnitNotInKernel,
+            format!(
+                "the power product's ideal is not trivial (exponent {e} at factor-base index {i}): it is not a unit"
+            ),
+        );
+    }
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let Some(log_eps) =
+        element::log_power_product(&order.d, &body.factor_base, raw.relations, terms)
+    else {
+        return bad();
+    };
+    // N(ε) = ∏ sign(N(α_j))^{e_j}
+    let mut odd_negative = false;
+    for (j, e) in terms {
+        if raw.negative_norm.get(*j as usize).copied().unwrap_or(false) && e.is_odd() {
+            odd_negative = !odd_negative;
+        }
+    }
+    let regulator = if log_eps.lo > 0 {
+        log_eps
+    } else if log_eps.hi < 0 {
+        log_eps.neg()
+    } else {
+        return reject(
+            Reason::UnitTrivial,
+            "log|ε| is not bounded away from 0: the power product is not a unit of infinite order",
+        );
+    };
+    let Some(claimed) = Interval::from_bounds(&units.regulator) else {
+        return reject(
+            Reason::RegulatorMismatch,
+            "the stated regulator is out of range",
+        );
+    };
+    if !claimed.contains(&regulator) {
+        return reject(
+            Reason::RegulatorMismatch,
+            format!(
+                "the stated regulator [{:.15}, {:.15}] does not contain |log|ε|| = {:.15}",
+                claimed.lo.to_f64(),
+                claimed.hi.to_f64(),
+                regulator.mid_f64()
+            ),
+        );
+    }
+    // at least 20 significant digits: hi - lo <= lo / 10^21
+    let width = claimed.sub(&Interval {
+        lo: claimed.lo.clone(),
+        hi: claimed.lo.clone(),
+    });
+    let scale = Interval::int(&Integer::from(10u32).pow(21));
+    if width.mul(&scale).hi > claimed.lo {
+        return reject(
+            Reason::RegulatorImprecise,
+            "the stated regulator interval is wider than 20 significant digits allow",
+        );
+    }
+    let norm: i8 = if odd_negative { -1 } else { 1 };
+    if units.norm != i64::from(norm) {
+        return reject(
+            Reason::UnitNormMismatch,
+            format!(
+                "the stated norm is {} but the unit's norm is {norm}",
+                units.norm
+            ),
+        );
+    }
+    Ok(Some(UnitsOk {
+        regulator,
+        norm,
+        length: terms.len(),
+    }))
+}
+
 fn check_analytic(
     body: &Body,
     order: &OrderOk,
     cond: &ConductorOk,
     lat: &LatticeOk,
+    units: Option<&UnitsOk>,
 ) -> Check<AnalyticOk> {
     let e = &body.euler;
     if registry::lookup(&e.theorem).map(|t| t.id) != Some(registry::BELABAS_FRIEDMAN) {
@@ -756,9 +1025,28 @@ fn check_analytic(
         return bad();
     };
     let hs = Interval::int(&lat.h_star);
-    let Some(log_hs) = hs.ln() else { return bad() };
-    // h* = k h with k >= 1. If log h* < lo(log h) + log 2 then k = 1.
+    let Some(mut log_hs) = hs.ln() else {
+        return bad();
+    };
+    if let Some(u) = units {
+        let Some(log_r) = u.regulator.ln() else {
+            return bad();
+        };
+        log_hs = log_hs.add(&log_r);
+    }
+    // h* R* = k h R with k >= 1 (R = R* = 1 for D < 0). If
+    // log h* R* < lo(log h R) + log 2 then k = 1.
     if log_hs.hi >= log_h.add(&ln2).lo {
+        if units.is_some() {
+            return reject(
+                Reason::ClassNumberRegulatorNotConfirmed,
+                format!(
+                    "h* R* is too large: log h* R* = {:.6} but log h R <= {:.6} + log 2 is all the analytic bound allows for h = h*, R = R*",
+                    log_hs.hi.to_f64(),
+                    log_h.lo.to_f64()
+                ),
+            );
+        }
         return reject(
             Reason::ClassNumberNotConfirmed,
             format!(
@@ -772,7 +1060,7 @@ fn check_analytic(
     if log_hs.hi < log_h.lo {
         return reject(
             Reason::AnalyticInconsistent,
-            format!("h* = {} is below the analytic lower bound exp({:.6}): relations and GRH cannot both hold", lat.h_star, log_h.lo.to_f64()),
+            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): relations and GRH cannot both hold", lat.h_star, units.map_or(1.0, |u| u.regulator.mid_f64()), log_h.lo.to_f64()),
         );
     }
     Ok(AnalyticOk { log_h, x })
@@ -812,9 +1100,11 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
         );
     }
     let gen = check_generation(body, &order, &cond, bound, gen_theorem)?;
-    let lat = check_lattice(body, &order, &gen)?;
+    let raw = check_raw_relations(body, &order)?;
+    let lat = check_lattice(body, &order, &gen, raw.as_ref())?;
     let claim = check_claim(body, &order, &gen, &lat)?;
-    let analytic = check_analytic(body, &order, &cond, &lat)?;
+    let units = check_units(body, &order, raw.as_ref())?;
+    let analytic = check_analytic(body, &order, &cond, &lat, units.as_ref())?;
     let _ = mod_small;
 
     let mut assumptions = vec![Assumption::Grh];
@@ -822,11 +1112,22 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
         assumptions.push(Assumption::BpswProbablePrime);
     }
     let mut theorems: Vec<&'static Theorem> = vec![gen.theorem];
-    for id in [
-        registry::LATTICE_INDEX,
-        registry::BELABAS_FRIEDMAN,
-        registry::CLASS_NUMBER_FORMULA,
-    ] {
+    let ids: &[&str] = if order.real {
+        &[
+            registry::ELEMENT_RELATIONS,
+            registry::LATTICE_INDEX,
+            registry::UNIT_INDEX,
+            registry::BELABAS_FRIEDMAN,
+            registry::CLASS_NUMBER_FORMULA_REAL,
+        ]
+    } else {
+        &[
+            registry::LATTICE_INDEX,
+            registry::BELABAS_FRIEDMAN,
+            registry::CLASS_NUMBER_FORMULA,
+        ]
+    };
+    for id in ids {
         if let Some(t) = registry::lookup(id) {
             theorems.push(t);
         }
@@ -840,6 +1141,11 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
         class_number: lat.h_star,
         invariants: claim.invariants,
         generators: claim.generators,
+        unit: units.map(|u| UnitSummary {
+            regulator: u.regulator,
+            norm: u.norm,
+            compact_length: u.length,
+        }),
         maximal: cond.maximal,
         assumptions,
         theorems,

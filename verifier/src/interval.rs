@@ -7,7 +7,9 @@ use classcert_format::{Bounds, Dyadic};
 use rug::float::{Constant, Round};
 use rug::{Float, Integer};
 
-/// Working precision in bits.
+/// Default working precision in bits. An operation works at the larger
+/// precision of its operands, so a computation started with
+/// [`Interval::int_prec`] stays at that precision.
 pub const PREC: u32 = 160;
 
 #[derive(Debug, Clone, PartialEq)]
@@ -16,20 +18,20 @@ pub struct Interval {
     pub hi: Float,
 }
 
-fn down<T>(v: T) -> Float
+fn down<T>(prec: u32, v: T) -> Float
 where
     Float: rug::ops::AssignRound<T, Round = Round, Ordering = std::cmp::Ordering>,
 {
-    let mut f = Float::new(PREC);
+    let mut f = Float::new(prec);
     rug::ops::AssignRound::assign_round(&mut f, v, Round::Down);
     f
 }
 
-fn up<T>(v: T) -> Float
+fn up<T>(prec: u32, v: T) -> Float
 where
     Float: rug::ops::AssignRound<T, Round = Round, Ordering = std::cmp::Ordering>,
 {
-    let mut f = Float::new(PREC);
+    let mut f = Float::new(prec);
     rug::ops::AssignRound::assign_round(&mut f, v, Round::Up);
     f
 }
@@ -52,8 +54,14 @@ fn max(a: Float, b: Float) -> Float {
 
 impl Interval {
     pub fn int(x: &Integer) -> Interval {
-        let mut lo = Float::new(PREC);
-        let mut hi = Float::new(PREC);
+        Interval::int_prec(x, PREC)
+    }
+
+    /// `x` at `prec` bits (at least [`PREC`]).
+    pub fn int_prec(x: &Integer, prec: u32) -> Interval {
+        let prec = prec.max(PREC);
+        let mut lo = Float::new(prec);
+        let mut hi = Float::new(prec);
         rug::ops::AssignRound::assign_round(&mut lo, x, Round::Down);
         rug::ops::AssignRound::assign_round(&mut hi, x, Round::Up);
         Interval { lo, hi }
@@ -70,16 +78,25 @@ impl Interval {
 
     pub fn pi() -> Interval {
         Interval {
-            lo: down(Constant::Pi),
-            hi: up(Constant::Pi),
+            lo: down(PREC, Constant::Pi),
+            hi: up(PREC, Constant::Pi),
         }
     }
 
     pub fn ln2() -> Interval {
         Interval {
-            lo: down(Constant::Log2),
-            hi: up(Constant::Log2),
+            lo: down(PREC, Constant::Log2),
+            hi: up(PREC, Constant::Log2),
         }
+    }
+
+    /// The precision results are computed at.
+    pub fn prec(&self) -> u32 {
+        self.lo.prec().max(self.hi.prec())
+    }
+
+    fn prec_with(&self, o: &Interval) -> u32 {
+        self.prec().max(o.prec())
     }
 
     pub fn zero() -> Interval {
@@ -87,27 +104,31 @@ impl Interval {
     }
 
     pub fn add(&self, o: &Interval) -> Interval {
+        let p = self.prec_with(o);
         Interval {
-            lo: down(&self.lo + &o.lo),
-            hi: up(&self.hi + &o.hi),
+            lo: down(p, &self.lo + &o.lo),
+            hi: up(p, &self.hi + &o.hi),
         }
     }
 
     pub fn sub(&self, o: &Interval) -> Interval {
+        let p = self.prec_with(o);
         Interval {
-            lo: down(&self.lo - &o.hi),
-            hi: up(&self.hi - &o.lo),
+            lo: down(p, &self.lo - &o.hi),
+            hi: up(p, &self.hi - &o.lo),
         }
     }
 
     pub fn neg(&self) -> Interval {
+        let p = self.prec();
         Interval {
-            lo: Float::with_val(PREC, -&self.hi),
-            hi: Float::with_val(PREC, -&self.lo),
+            lo: Float::with_val(p, -&self.hi),
+            hi: Float::with_val(p, -&self.lo),
         }
     }
 
     pub fn mul(&self, o: &Interval) -> Interval {
+        let p = self.prec_with(o);
         let pairs = [
             (&self.lo, &o.lo),
             (&self.lo, &o.hi),
@@ -117,8 +138,8 @@ impl Interval {
         let mut lo: Option<Float> = None;
         let mut hi: Option<Float> = None;
         for (x, y) in pairs {
-            let l = down(x * y);
-            let h = up(x * y);
+            let l = down(p, x * y);
+            let h = up(p, x * y);
             lo = Some(match lo {
                 None => l,
                 Some(c) => min(c, l),
@@ -129,17 +150,18 @@ impl Interval {
             });
         }
         Interval {
-            lo: lo.unwrap_or_else(|| Float::new(PREC)),
-            hi: hi.unwrap_or_else(|| Float::new(PREC)),
+            lo: lo.unwrap_or_else(|| Float::new(p)),
+            hi: hi.unwrap_or_else(|| Float::new(p)),
         }
     }
 
     /// Division by an interval that does not contain 0.
     pub fn div(&self, o: &Interval) -> Option<Interval> {
         if o.lo > 0 {
+            let p = self.prec_with(o);
             let inv = Interval {
-                lo: down(1 / &o.hi),
-                hi: up(1 / &o.lo),
+                lo: down(p, 1 / &o.hi),
+                hi: up(p, 1 / &o.lo),
             };
             Some(self.mul(&inv))
         } else if o.hi < 0 {
@@ -154,9 +176,10 @@ impl Interval {
         if self.lo <= 0 || !self.lo.is_finite() || !self.hi.is_finite() {
             return None;
         }
+        let p = self.prec();
         Some(Interval {
-            lo: down(self.lo.ln_ref()),
-            hi: up(self.hi.ln_ref()),
+            lo: down(p, self.lo.ln_ref()),
+            hi: up(p, self.hi.ln_ref()),
         })
     }
 
@@ -164,17 +187,19 @@ impl Interval {
         if self.lo < 0 || !self.hi.is_finite() {
             return None;
         }
+        let p = self.prec();
         Some(Interval {
-            lo: down(self.lo.sqrt_ref()),
-            hi: up(self.hi.sqrt_ref()),
+            lo: down(p, self.lo.sqrt_ref()),
+            hi: up(p, self.hi.sqrt_ref()),
         })
     }
 
     /// `[lo - e, hi + e]` for `e >= 0` given as an interval (its upper end is used).
     pub fn widen(&self, e: &Interval) -> Interval {
+        let p = self.prec_with(e);
         Interval {
-            lo: down(&self.lo - &e.hi),
-            hi: up(&self.hi + &e.hi),
+            lo: down(p, &self.lo - &e.hi),
+            hi: up(p, &self.hi + &e.hi),
         }
     }
 

@@ -28,6 +28,7 @@
 
 pub mod arith;
 pub mod check;
+pub mod element;
 pub mod euler;
 pub mod form;
 pub mod interval;

@@ -22,3 +22,9 @@ pub const MAX_COMPOSITIONS: u64 = 40_000_000;
 pub const MAX_CHECKPOINTS: usize = 64;
 /// Factors in a maximality claim.
 pub const MAX_FACTORS: usize = 4096;
+/// Raw relations with element witnesses (`D > 0`).
+pub const MAX_RAW_RELATIONS: usize = 2_000_000;
+/// Entries touched while adding up combinations of raw relations.
+pub const MAX_COMBINATION_WORK: u64 = 200_000_000;
+/// Factors in the fundamental unit's power product.
+pub const MAX_UNIT_TERMS: usize = 2_000_000;

@@ -39,6 +39,9 @@ pub const BELABAS_FRIEDMAN: &str = "belabas-friedman-2015-thm1";
 pub const CLASS_NUMBER_FORMULA: &str = "class-number-formula-orders";
 pub const LATTICE_INDEX: &str = "relation-lattice-index";
 pub const BPSW_SMALL: &str = "bpsw-below-2^64";
+pub const CLASS_NUMBER_FORMULA_REAL: &str = "class-number-formula-real-orders";
+pub const ELEMENT_RELATIONS: &str = "element-relations";
+pub const UNIT_INDEX: &str = "unit-index";
 
 /// Safety factor applied to the Belabas–Friedman error term until its
 /// constants are checked against the paper itself (see that entry's note).
@@ -86,6 +89,27 @@ pub static REGISTRY: &[Theorem] = &[
         hypothesis: Hypothesis::None,
         statement: "every odd n < 2^64 that passes the Baillie-PSW test is prime",
         note: "above 2^64 a BPSW pass is listed as the assumption \"BPSW probable prime\"",
+    },
+    Theorem {
+        id: CLASS_NUMBER_FORMULA_REAL,
+        citation: "Dirichlet's class number formula for orders; D. A. Cox, Primes of the form x^2 + ny^2, Theorem 7.24, with R(O) = [O_K^* : O^*] R(O_K)",
+        hypothesis: Hypothesis::None,
+        statement: "h(D) R(D) = sqrt(D) L(1, chi_D) / 2 for D > 0, with L(1, chi_D) = L(1, chi_d) prod_{p | f} (1 - chi_d(p)/p)",
+        note: "",
+    },
+    Theorem {
+        id: ELEMENT_RELATIONS,
+        citation: "elementary (common practice): N(alpha O) = |N(alpha)|; unique factorisation of ideals prime to the conductor; P = Zp + Z(b + sqrt D)/2 (H. Cohen, GTM 138, section 5.2; D. A. Cox, section 7)",
+        hypothesis: Hypothesis::None,
+        statement: "if |N(alpha)| = prod p_i^|e_i| and alpha is not in the conjugate of the named prime above each split p_i, then (alpha) = prod_{e>0} P_i^e_i prod_{e<0} conj(P_i)^-e_i, so prod P_i^e_i is principal",
+        note: "",
+    },
+    Theorem {
+        id: UNIT_INDEX,
+        citation: "elementary (common practice): Dirichlet's unit theorem for real quadratic orders, O^* = <-1, eps_0>",
+        hypothesis: Hypothesis::None,
+        statement: "a power product of relation generators whose exponent vector sums the relations to zero is a unit; if |log|eps|| > 0 then |log|eps|| = [O^* : <-1, eps>] R",
+        note: "",
     },
 ];
 

@@ -44,6 +44,16 @@ pub enum Reason {
     EulerIntervalUnderstated,
     ClassNumberNotConfirmed,
     AnalyticInconsistent,
+    WitnessKind,
+    RelationWitnessInvalid,
+    CombinationMismatch,
+    UnitsShape,
+    UnitNotInKernel,
+    UnitTrivial,
+    RegulatorMismatch,
+    RegulatorImprecise,
+    UnitNormMismatch,
+    ClassNumberRegulatorNotConfirmed,
 }
 
 impl Reason {
@@ -84,6 +94,16 @@ impl Reason {
             EulerIntervalUnderstated => "euler-interval-understated",
             ClassNumberNotConfirmed => "class-number-not-confirmed",
             AnalyticInconsistent => "analytic-inconsistent",
+            WitnessKind => "witness-kind",
+            RelationWitnessInvalid => "relation-witness-invalid",
+            CombinationMismatch => "combination-mismatch",
+            UnitsShape => "units-shape",
+            UnitNotInKernel => "unit-not-in-kernel",
+            UnitTrivial => "unit-trivial",
+            RegulatorMismatch => "regulator-mismatch",
+            RegulatorImprecise => "regulator-imprecise",
+            UnitNormMismatch => "unit-norm-mismatch",
+            ClassNumberRegulatorNotConfirmed => "class-number-regulator-not-confirmed",
         }
     }
 }
@@ -121,13 +141,106 @@ impl Assumption {
 #[derive(Debug, Clone)]
 pub struct AllChecksPassed(pub(crate) ());
 
+/// A generator of a cyclic factor, for the reader.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum GeneratorView {
+    /// `D < 0`: the reduced form `(a, b, c)` of its class.
+    Form(Integer, Integer, Integer),
+    /// `D > 0`: `∏ (p, (b + sqrt D)/2)^e` over `(p, b, e)`.
+    Ideals(Vec<(u64, u64, Integer)>),
+}
+
+/// The unit group of a real quadratic order, as verified.
+#[derive(Debug, Clone)]
+pub struct UnitSummary {
+    /// Rigorous enclosure of the regulator `R = |log|ε||`.
+    pub regulator: Interval,
+    /// The norm of `ε`, `1` or `-1`.
+    pub norm: i8,
+    /// Number of factors in the power product that gives `ε`.
+    pub compact_length: usize,
+}
+
+impl UnitSummary {
+    /// The regulator in decimal, with only digits the enclosure settles.
+    pub fn regulator_text(&self) -> String {
+        decimal(&self.regulator)
+    }
+}
+
+/// The digits of an enclosure that are certain: the midpoint rounded to as
+/// many significant digits as the width allows (at most 40), in plain
+/// decimal notation.
+pub fn decimal(i: &Interval) -> String {
+    use rug::ops::Pow;
+    let mid = rug::Float::with_val(i.prec(), &i.lo + &i.hi) / 2u32;
+    let width = rug::Float::with_val(i.prec(), &i.hi - &i.lo);
+    if mid.is_zero() || !mid.is_finite() {
+        return "0".into();
+    }
+    // significant digits: log10(|mid| / width) - 1, within [1, 40]
+    let ratio = if width.is_zero() {
+        1e300
+    } else {
+        (mid.clone().abs() / &width).to_f64()
+    };
+    let digits = (ratio.log10().floor() as i64 - 1).clamp(1, 40);
+    let neg = mid < 0;
+    let abs = mid.abs();
+    // e10 = floor(log10 |mid|), then the digits as an integer
+    let mut e10 = abs.to_f64().log10().floor() as i64;
+    let scaled = |e10: i64| -> Option<Integer> {
+        let shift = digits - 1 - e10;
+        let ten = rug::Float::with_val(abs.prec(), 10u32);
+        let factor = if shift >= 0 {
+            ten.pow(i32::try_from(shift).ok()?)
+        } else {
+            rug::Float::with_val(abs.prec(), 1u32) / ten.pow(i32::try_from(-shift).ok()?)
+        };
+        rug::Float::with_val(abs.prec(), &abs * &factor)
+            .round()
+            .to_integer()
+    };
+    let Some(mut m) = scaled(e10) else {
+        return "0".into();
+    };
+    let limit = Integer::from(10u32).pow(digits as u32);
+    if m >= limit {
+        e10 += 1;
+        m = scaled(e10).unwrap_or_default();
+    }
+    let ds = m.to_string();
+    // value = 0.ds × 10^(e10 + 1)
+    let point = e10 + 1;
+    let mut out = String::new();
+    if neg {
+        out.push('-');
+    }
+    if point <= 0 {
+        out.push_str("0.");
+        out.push_str(&"0".repeat(point.unsigned_abs() as usize));
+        out.push_str(&ds);
+    } else if (point as usize) >= ds.len() {
+        out.push_str(&ds);
+        out.push_str(&"0".repeat(point as usize - ds.len()));
+    } else {
+        let (a, b) = ds.split_at(point as usize);
+        out.push_str(a);
+        out.push('.');
+        out.push_str(b);
+    }
+    out
+}
+
 /// What is known once every check has passed. It can only be built by
 /// `check::verify_body`, from the tokens each check returns.
 #[derive(Debug, Clone)]
 pub struct Verified {
     pub class_number: Integer,
     pub invariants: Vec<Integer>,
-    pub generators: Vec<(Integer, Integer, Integer)>,
+    pub generators: Vec<GeneratorView>,
+    /// `D > 0`: the unit group and regulator.
+    pub unit: Option<UnitSummary>,
     pub maximal: bool,
     pub assumptions: Vec<Assumption>,
     pub theorems: Vec<&'static Theorem>,
@@ -172,6 +285,43 @@ pub fn invariants_text(inv: &[Integer]) -> String {
     }
 }
 
+/// A generator for JSON: `[a, b, c]` or `[[p, b, e], …]`.
+pub fn generator_json(g: &GeneratorView) -> Json {
+    let num = |x: &Integer| Json::str(x.to_string());
+    match g {
+        GeneratorView::Form(a, b, c) => Json::Arr(vec![num(a), num(b), num(c)]),
+        GeneratorView::Ideals(f) => Json::Arr(
+            f.iter()
+                .map(|(p, b, e)| {
+                    Json::Arr(vec![
+                        Json::Num(p.to_string()),
+                        Json::Num(b.to_string()),
+                        num(e),
+                    ])
+                })
+                .collect(),
+        ),
+    }
+}
+
+/// A generator for the text report.
+pub fn generator_text(g: &GeneratorView) -> String {
+    match g {
+        GeneratorView::Form(a, b, c) => format!("({a}, {b}, {c})"),
+        GeneratorView::Ideals(f) => f
+            .iter()
+            .map(|(p, b, e)| {
+                if *e == 1 {
+                    format!("({p}, {b})")
+                } else {
+                    format!("({p}, {b})^{e}")
+                }
+            })
+            .collect::<Vec<_>>()
+            .join(" "),
+    }
+}
+
 impl Report {
     pub fn is_verified(&self) -> bool {
         self.outcome.is_ok()
@@ -205,22 +355,38 @@ impl Report {
                     invariants_text(&v.invariants),
                     v.class_number
                 ));
-                for (i, (a, b, c)) in v.generators.iter().enumerate() {
+                for (i, g) in v.generators.iter().enumerate() {
                     let d = v
                         .invariants
                         .get(i)
                         .map(|d| d.to_string())
                         .unwrap_or_default();
-                    s.push_str(&format!("  generator     ({a}, {b}, {c})  of order {d}\n"));
+                    s.push_str(&format!(
+                        "  generator     {}  of order {d}\n",
+                        generator_text(g)
+                    ));
+                }
+                if let Some(u) = &v.unit {
+                    s.push_str(&format!("  regulator     R = {}\n", u.regulator_text()));
+                    s.push_str(&format!(
+                        "  unit          ε of norm {}, kept as a power product of {} elements\n",
+                        u.norm, u.compact_length
+                    ));
+                    if u.norm < 0 {
+                        s.push_str(
+                            "                a unit of norm -1 is exhibited: that fact holds unconditionally\n",
+                        );
+                    }
                 }
                 s.push_str(&format!("  roots of 1    w = {}\n", v.w));
                 let assumptions: Vec<&str> = v.assumptions.iter().map(|a| a.name()).collect();
                 s.push_str(&format!("  rests on      {}\n", assumptions.join(", ")));
                 s.push_str(&format!(
-                    "  checked       {} prime ideals up to {}, Euler product to X = {}, log h in [{:.6}, {:.6}]\n",
+                    "  checked       {} prime ideals up to {}, Euler product to X = {}, log {} in [{:.6}, {:.6}]\n",
                     v.factor_base_size,
                     v.generation_bound,
                     v.euler_x,
+                    if v.unit.is_some() { "hR" } else { "h" },
                     v.log_h.lo.to_f64(),
                     v.log_h.hi.to_f64()
                 ));
@@ -269,13 +435,16 @@ impl Report {
                 ));
                 e.push((
                     "generators",
-                    Json::Arr(
-                        v.generators
-                            .iter()
-                            .map(|(a, b, c)| Json::Arr(vec![num(a), num(b), num(c)]))
-                            .collect(),
-                    ),
+                    Json::Arr(v.generators.iter().map(generator_json).collect()),
                 ));
+                if let Some(u) = &v.unit {
+                    e.push(("regulator", Json::str(u.regulator_text())));
+                    e.push(("unit_norm", Json::Num(u.norm.to_string())));
+                    e.push((
+                        "unit_compact_length",
+                        Json::Num(u.compact_length.to_string()),
+                    ));
+                }
                 e.push((
                     "assumptions",
                     Json::Arr(v.assumptions.iter().map(|a| Json::str(a.name())).collect()),
@@ -340,5 +509,21 @@ impl Report {
                 .unwrap_or(Json::Null),
         ));
         Json::obj(e)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn decimals_put_the_point_in_the_right_place() {
+        let r = |n: i64, d: u64| Interval::ratio(n, d).unwrap();
+        // 62150.6 and 0.0481 (common practice: plain decimal notation)
+        assert!(decimal(&r(621506, 10)).starts_with("62150.6"));
+        assert!(decimal(&r(481, 10000)).starts_with("0.0481"));
+        assert!(decimal(&r(-25, 10)).starts_with("-2.5"));
+        assert!(decimal(&r(1079, 100)).starts_with("10.79"));
+        assert!(decimal(&Interval::u64(1000)).starts_with("1000.000"));
     }
 }

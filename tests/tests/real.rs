@@ -1,0 +1,343 @@
+//! Real quadratic orders (`D > 0`): published class numbers and regulators,
+//! the Pell example `D = 61`, independent oracles on random discriminants,
+//! non-maximal orders, and forged certificates, each rejected with the
+//! reason code named beside it.
+
+use classcert_format::{Body, Witness};
+use classcert_prover::show::unit_coordinates;
+use classcert_tests::oracle;
+use classcert_tests::support::{
+    encode, expect_verified, prove_and_verify, prove_body, read_published, rejection_code,
+    vectors_dir, SplitMix,
+};
+use rug::Integer;
+
+/// The verified regulator as the JSON prints it, parsed.
+fn regulator(report: &classcert_verifier::verdict::Report, what: &str) -> (f64, String) {
+    let v = expect_verified(report, what);
+    let u = v
+        .unit
+        .unwrap_or_else(|| panic!("{what}: a real order's verdict has a unit"));
+    let text = u.regulator_text();
+    (text.parse().expect("a decimal"), text)
+}
+
+fn significant_digits(s: &str) -> usize {
+    s.trim_start_matches(['-', '0', '.'])
+        .chars()
+        .filter(|c| c.is_ascii_digit())
+        .count()
+}
+
+#[test]
+fn class_numbers_of_real_fields_oeis_a003649() {
+    let table = read_published("real-class-numbers.txt");
+    for &(d, h) in &table.rows {
+        assert_eq!(
+            oracle::class_number_real_finite_formula(d),
+            h,
+            "the table says h({d}) = {h}; the oracle's finite formula disagrees"
+        );
+        let (body, report) = prove_and_verify(d);
+        let v = expect_verified(&report, &format!("D = {d}"));
+        assert_eq!(v.class_number, Integer::from(h), "h({d})");
+        assert!(v.maximal, "D = {d} is fundamental; maximality is certified");
+        assert!(body.units.is_some());
+        // R from the continued fraction of ω (oracle) against the verdict
+        let (r, _) = regulator(&report, &format!("D = {d}"));
+        let want = oracle::regulator_by_continued_fraction(d);
+        assert!(
+            (r - want).abs() < 1e-9 * want,
+            "R({d}): verified {r}, continued fraction {want}"
+        );
+    }
+}
+
+#[test]
+fn regulators_from_cohen_tables() {
+    let path = vectors_dir().join("published").join("real-regulators.txt");
+    let text = std::fs::read_to_string(&path).expect("the regulator table");
+    assert!(text.contains("# source:"));
+    let mut n = 0;
+    for line in text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
+    {
+        let mut it = line.split_whitespace();
+        let d: i64 = it.next().unwrap().parse().unwrap();
+        let want: f64 = it.next().unwrap().parse().unwrap();
+        let (_, report) = prove_and_verify(d);
+        let (r, text) = regulator(&report, &format!("D = {d}"));
+        assert!(
+            (r - want).abs() < 6e-10,
+            "R({d}) = {text}, the table says {want}"
+        );
+        assert!(
+            significant_digits(&text) >= 20,
+            "R({d}) = {text}: fewer than 20 significant digits"
+        );
+        assert!((oracle::regulator_by_continued_fraction(d) - want).abs() < 6e-10);
+        n += 1;
+    }
+    assert_eq!(n, 6);
+}
+
+/// `(x1 + y1 sqrt D)/2 · (x2 + y2 sqrt D)/2`, as `(x + y sqrt D)/2`.
+fn mul_half(d: i64, a: &(Integer, Integer), b: &(Integer, Integer)) -> (Integer, Integer) {
+    let x = (Integer::from(&a.0 * &b.0) + Integer::from(&a.1 * &b.1) * d) / 2;
+    let y = (Integer::from(&a.0 * &b.1) + Integer::from(&a.1 * &b.0)) / 2;
+    (x, y)
+}
+
+#[test]
+fn pell_61_fundamental_unit_and_its_sixth_power() {
+    // The fundamental unit of Q(sqrt 61) is (39 + 5 sqrt 61)/2, of norm -1,
+    // and its 6th power is 1766319049 + 226153980 sqrt 61, the smallest
+    // solution of x^2 - 61 y^2 = 1 (a commonly quoted Pell table).
+    let (body, report) = prove_and_verify(61);
+    let v = expect_verified(&report, "D = 61");
+    let u = v.unit.expect("a unit");
+    assert_eq!(u.norm, -1, "the fundamental unit of Q(sqrt 61) has norm -1");
+    let (x, y) = unit_coordinates(&body).expect("a unit of 2 digits is expanded");
+    // ε = x + y ω with ω = (1 + sqrt 61)/2, i.e. (2x + y + y sqrt 61)/2
+    let eps = (Integer::from(&x * 2) + &y, y.clone());
+    assert_eq!(
+        eps,
+        (Integer::from(39), Integer::from(5)),
+        "ε = {x} + {y} ω"
+    );
+    let mut p = eps.clone();
+    for _ in 1..6 {
+        p = mul_half(61, &p, &eps);
+    }
+    assert_eq!(
+        p,
+        (
+            Integer::from(2 * 1_766_319_049i64),
+            Integer::from(2 * 226_153_980i64)
+        )
+    );
+    // The regulator is log ε.
+    let (r, _) = regulator(&report, "D = 61");
+    assert!((r - ((39.0 + 5.0 * 61f64.sqrt()) / 2.0).ln()).abs() < 1e-12);
+    // The verifier's JSON carries regulator, unit_norm and unit_compact_length.
+    let json = report.to_json().render();
+    assert!(json.contains("\"regulator\": \"3.66421846088643"), "{json}");
+    assert!(json.contains("\"unit_norm\": -1"), "{json}");
+    assert!(json.contains("\"unit_compact_length\""), "{json}");
+}
+
+#[test]
+fn oeis_a349419_fundamental_units_of_norm_one() {
+    // OEIS A349419 (checked against the stored entry): Q(sqrt 79), D = 316,
+    // has class number 3 and fundamental unit 80 + 9 sqrt 79 of norm 1;
+    // D = 321 has class number 3 and fundamental unit 215 + 12 sqrt 321.
+    for (d, x, y) in [(316i64, 80i64, 9i64), (321, 215, 12)] {
+        let (body, report) = prove_and_verify(d);
+        let v = expect_verified(&report, &format!("D = {d}"));
+        assert_eq!(v.class_number, 3);
+        assert_eq!(v.unit.as_ref().unwrap().norm, 1);
+        let (ux, uy) = unit_coordinates(&body).expect("a small unit is expanded");
+        // x + y ω; for D = 316, ω = sqrt 79; for D = 321, ω = (1 + sqrt 321)/2
+        let (big_x, big_y) = if d % 2 == 0 {
+            (Integer::from(&ux * 2), Integer::from(&uy))
+        } else {
+            (Integer::from(&ux * 2) + &uy, uy.clone())
+        };
+        // (X + Y sqrt D)/2 against x + y sqrt(D/4) or (2x + 2y sqrt D)/2
+        let want = if d % 2 == 0 {
+            (Integer::from(2 * x), Integer::from(y))
+        } else {
+            (Integer::from(2 * x), Integer::from(2 * y))
+        };
+        assert_eq!((big_x, big_y), want, "fundamental unit of D = {d}");
+    }
+}
+
+#[test]
+fn random_fundamental_discriminants_against_independent_oracles() {
+    // Regulator from the continued fraction of ω (exact integers), h from
+    // the finite formula h R = -(1/2) Σ χ(a) log sin(π a / D); both in
+    // tests/src/oracle.rs, sharing no code with the prover or verifier.
+    let mut rng = SplitMix::new(0x5eed_0003);
+    let mut done = 0;
+    while done < 10 {
+        let d = rng.log_range(1_000, 1_000_000) as i64;
+        if !oracle::is_fundamental(d) {
+            continue;
+        }
+        let (_, report) = prove_and_verify(d);
+        let v = expect_verified(&report, &format!("D = {d}"));
+        assert_eq!(
+            v.class_number,
+            Integer::from(oracle::class_number_real_finite_formula(d)),
+            "h({d})"
+        );
+        let (r, _) = regulator(&report, &format!("D = {d}"));
+        let want = oracle::regulator_by_continued_fraction(d);
+        assert!((r - want).abs() < 1e-9 * want, "R({d}): {r} vs {want}");
+        done += 1;
+    }
+}
+
+#[test]
+fn non_maximal_real_orders() {
+    // For D = f^2 d: h(D) R(D) = h(d) R(d) f ∏_{p | f} (1 - χ_d(p)/p)
+    // (design note, section 5; Cox, Thm 7.24), with R(D) / R(d) a positive
+    // integer; R(D) from the oracle's continued fraction of the order.
+    for (d0, f) in [
+        (5i64, 2i64),
+        (5, 3),
+        (5, 5),
+        (8, 3),
+        (13, 2),
+        (12, 2),
+        (21, 3),
+        (61, 2),
+    ] {
+        let d = f * f * d0;
+        let (_, report) = prove_and_verify(d);
+        let v = expect_verified(&report, &format!("D = {d}"));
+        assert!(!v.maximal);
+        let (r, _) = regulator(&report, &format!("D = {d}"));
+        let r_order = oracle::regulator_by_continued_fraction(d);
+        assert!((r - r_order).abs() < 1e-9 * r_order, "R({d})");
+        let h0 = oracle::class_number_real_finite_formula(d0) as f64;
+        let r0 = oracle::regulator_by_continued_fraction(d0);
+        let mut euler = f as f64;
+        for p in 2..=f {
+            if f % p == 0 && (2..p).all(|q| p % q != 0) {
+                euler *= 1.0 - oracle::kronecker(d0, p) as f64 / p as f64;
+            }
+        }
+        let h = (h0 * r0 * euler / r_order).round();
+        assert_eq!(v.class_number, Integer::from(h as u64), "h({d})");
+    }
+}
+
+// ---------------------------------------------------------------- forgeries
+
+fn code(body: &Body) -> Option<&'static str> {
+    rejection_code(&encode(body))
+}
+
+fn halve(b: &mut classcert_format::Bounds, by: i64) {
+    b.lo.exponent += by;
+    b.hi.exponent += by;
+}
+
+#[test]
+fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
+    let genuine = prove_body(316);
+    assert_eq!(code(&genuine), None, "the genuine certificate verifies");
+    let units = |b: &mut Body| b.units.as_mut().expect("D > 0 has units").clone();
+    let mut seen = std::collections::BTreeMap::new();
+    let mut expect = |what: &str, b: Body, want: &str| {
+        assert_eq!(code(&b), Some(want), "{what}");
+        seen.insert(want.to_string(), what.to_string());
+    };
+
+    // an α witness changed: (x + 2 + y sqrt D)/2 has another norm
+    let mut b = genuine.clone();
+    let raw = b.lattice.raw_relations.as_mut().unwrap();
+    let j = raw.iter().position(|r| !r.entries.is_empty()).unwrap();
+    let Witness::Element { x, .. } = &mut raw[j].witness else {
+        panic!("raw relations carry elements")
+    };
+    *x += 2;
+    expect("α witness changed", b, "relation-witness-invalid");
+
+    // the unit's kernel vector changed: one exponent off by one
+    let mut b = genuine.clone();
+    let mut u = units(&mut b);
+    u.fundamental[0].1 += 1;
+    b.units = Some(u);
+    expect("kernel vector changed", b, "unit-not-in-kernel");
+
+    // a power product that is not a unit: one relation element alone
+    let mut b = genuine.clone();
+    let mut u = units(&mut b);
+    u.fundamental = vec![(j as u32, Integer::from(1))];
+    b.units = Some(u);
+    expect("not a unit", b.clone(), "unit-not-in-kernel");
+
+    // the empty power product is 1, a unit of finite order
+    let mut b = genuine.clone();
+    let mut u = units(&mut b);
+    u.fundamental = vec![];
+    b.units = Some(u);
+    expect("ε = 1", b, "unit-trivial");
+
+    // regulator claimed twice too small
+    let mut b = genuine.clone();
+    let mut u = units(&mut b);
+    halve(&mut u.regulator, -1);
+    b.units = Some(u);
+    expect("regulator halved", b, "regulator-mismatch");
+
+    // regulator twice too large, with a genuine unit to match: ε²
+    let mut b = genuine.clone();
+    let mut u = units(&mut b);
+    for (_, e) in u.fundamental.iter_mut() {
+        *e *= 2;
+    }
+    halve(&mut u.regulator, 1);
+    u.norm = 1;
+    b.units = Some(u);
+    expect(
+        "ε squared, regulator doubled",
+        b,
+        "class-number-regulator-not-confirmed",
+    );
+
+    // h and R traded: h doubled, R halved (h R unchanged)
+    let mut b = genuine.clone();
+    let mut u = units(&mut b);
+    halve(&mut u.regulator, -1);
+    b.units = Some(u);
+    b.claim.class_number *= 2;
+    expect("h doubled, R halved", b, "class-number-mismatch");
+
+    // the norm of ε flipped (D = 316: ε = 80 + 9 sqrt 79 has norm 1)
+    let mut b = genuine.clone();
+    let mut u = units(&mut b);
+    u.norm = -u.norm;
+    b.units = Some(u);
+    expect("norm flipped", b, "unit-norm-mismatch");
+
+    // an elimination's combination changed
+    let mut b = genuine.clone();
+    let el = b
+        .lattice
+        .eliminations
+        .iter_mut()
+        .find(
+            |e| matches!(&e.relation.witness, Witness::Combination { terms } if !terms.is_empty()),
+        )
+        .unwrap();
+    if let Witness::Combination { terms } = &mut el.relation.witness {
+        terms[0].1 += 1;
+    }
+    expect("elimination combination changed", b, "combination-mismatch");
+
+    // the unit section removed
+    let mut b = genuine.clone();
+    b.units = None;
+    expect("units removed", b, "units-shape");
+
+    // form-reduction witnesses do not prove anything for D > 0
+    let mut b = genuine.clone();
+    b.lattice.relation_witness = Witness::FormReduction;
+    expect("form reduction for D > 0", b, "witness-kind");
+
+    // the issue's four cases have four distinct codes
+    for c in [
+        "relation-witness-invalid",
+        "unit-not-in-kernel",
+        "regulator-mismatch",
+        "class-number-regulator-not-confirmed",
+        "class-number-mismatch",
+    ] {
+        assert!(seen.contains_key(c), "{c}");
+    }
+}
