@@ -86,14 +86,27 @@ pub enum Witness {
     Combinations { rows: Vec<Vec<(u32, Integer)>> },
 }
 
-/// The unit group of a real quadratic order: `±ε^Z` with `ε` given as a
-/// power product `∏ α'_j^{e_j}` of the raw relations' generators (a
-/// compact representation: its coordinates are never written out).
+/// One step of a compact representation: the ideal
+/// `a_j = [a, (b + sqrt D)/2]` and `β_j = (x + y sqrt D)/(2 s)` with
+/// `β_j a_j = a_{j-1}^2`.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CompactStep {
+    pub a: Integer,
+    pub b: Integer,
+    pub x: Integer,
+    pub y: Integer,
+    pub s: Integer,
+}
+
+/// The unit group of a real quadratic order: `±ε^Z` with `ε` in compact
+/// representation (J. Buchmann, C. Thiel and H. C. Williams, "Short
+/// representation of quadratic integers", 1995):
+/// `ε = ∏_{j=1}^{l} β_j^{2^{l-j}}`, with `a_0 = O`, `β_j a_j = a_{j-1}^2`
+/// and `a_l = O`, so `(ε) = O`. Its size grows with `log log ε`, its
+/// coordinates are never written out.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Units {
-    /// `(j, e_j)`, indices into the raw relations, increasing; the sum
-    /// `Σ e_j · raw_relation[j]` is the zero vector.
-    pub fundamental: Vec<(u32, Integer)>,
+    pub steps: Vec<CompactStep>,
     /// The claimed norm of `ε`, `1` or `-1`.
     pub norm: i64,
     /// The claimed enclosure of the regulator `|log|ε||`.
@@ -423,8 +436,24 @@ impl Body {
             top.push((
                 "units",
                 cbor::map(vec![
-                    ("kind", Value::Text("power-product".into())),
-                    ("fundamental", sparse(&u.fundamental)),
+                    ("kind", Value::Text("compact".into())),
+                    (
+                        "steps",
+                        Value::Array(
+                            u.steps
+                                .iter()
+                                .map(|t| {
+                                    Value::Array(vec![
+                                        cbor::int(&t.a),
+                                        cbor::int(&t.b),
+                                        cbor::int(&t.x),
+                                        cbor::int(&t.y),
+                                        cbor::int(&t.s),
+                                    ])
+                                })
+                                .collect(),
+                        ),
+                    ),
                     ("norm", cbor::sint(u.norm)),
                     ("regulator", bounds(&u.regulator)),
                 ]),
@@ -712,11 +741,23 @@ impl Body {
             None => None,
             Some(v) => {
                 let (kind, mut u) = get_kind(v, "body.units")?;
-                if kind != "power-product" {
+                if kind != "compact" {
                     return Err(DecodeError::Schema(format!("unknown units kind {kind:?}")));
                 }
                 let units = Units {
-                    fundamental: get_sparse(u.req("fundamental")?, "units.fundamental")?,
+                    steps: cbor::get_array(u.req("steps")?, "units.steps")?
+                        .iter()
+                        .map(|t| match cbor::get_array(t, "units.steps[]")? {
+                            [a, b, x, y, s] => Ok(CompactStep {
+                                a: cbor::get_int(a, "step a")?,
+                                b: cbor::get_int(b, "step b")?,
+                                x: cbor::get_int(x, "step x")?,
+                                y: cbor::get_int(y, "step y")?,
+                                s: cbor::get_int(s, "step s")?,
+                            }),
+                            _ => Err(cbor::schema("units.steps[]", "[a, b, x, y, s]")),
+                        })
+                        .collect::<Result<Vec<_>, DecodeError>>()?,
                     norm: cbor::get_i64(u.req("norm")?, "units.norm")?,
                     regulator: get_bounds(u.req("regulator")?, "units.regulator")?,
                 };

@@ -12,6 +12,7 @@
 // Matrix code here reads more plainly with explicit indices.
 #![allow(clippy::needless_range_loop)]
 
+pub mod compact;
 pub mod factor;
 pub mod fb;
 pub mod linalg;

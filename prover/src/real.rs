@@ -18,12 +18,12 @@
 //! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
 //! of their logarithms ([`crate::units::unit_gcd`]).
 
+use crate::compact;
 use crate::linalg::smith;
 use crate::prove::{cyclic_generators, essential_count, setup, Options, ProveError};
 use crate::rng::Rng;
 use crate::units::{self, Factor};
 use classcert_format::*;
-use classcert_verifier::element;
 use classcert_verifier::interval::Interval;
 use rug::ops::{DivRounding, Pow, RemRounding};
 use rug::Integer;
@@ -82,9 +82,8 @@ impl Row {
     }
 }
 
-/// Row echelon form over the integers, column by column from the left,
-/// by extended-gcd row operations (H. Cohen, GTM 138, §2.4.2); rows that
-/// vanish are kernel vectors.
+/// Row echelon form over the integers, column by column from the left
+/// (H. Cohen, GTM 138, §2.4.2); rows that vanish are kernel vectors.
 struct Echelon {
     pivots: Vec<Option<Row>>,
     kernel: Vec<Vector>,
@@ -98,41 +97,92 @@ impl Echelon {
         }
     }
 
-    fn full_rank(&self) -> bool {
-        self.pivots.iter().all(|p| p.is_some())
+    /// Echelon form of `rows` on `cols` (ascending). Combinations are what
+    /// the certificate carries, so the form is built from as few rows with
+    /// short combinations as will do: the shortest rows first, more only if
+    /// the others do not reduce to zero against the result (they then lie
+    /// in its lattice, and are units).
+    fn triangularise(&mut self, cols: &[usize], mut rows: Vec<Row>) {
+        rows.sort_by_key(|r| r.combo.len());
+        let mut take = rows.len().min(cols.len() + 8);
+        loop {
+            let mut trial = Echelon::new(self.pivots.len());
+            trial.euclid(cols, rows[..take].to_vec());
+            let complete = cols.iter().all(|&c| trial.pivots[c].is_some());
+            let mut left = Vec::new();
+            let mut units = Vec::new();
+            if complete {
+                for r in &rows[take..] {
+                    let mut r = r.clone();
+                    for &c in cols {
+                        let (Some(e), Some(p)) = (r.v.get(&c).cloned(), trial.pivots[c].as_ref())
+                        else {
+                            continue;
+                        };
+                        let q = e.div_floor(&p.v[&c]);
+                        r.sub_mul(&q, p);
+                    }
+                    if r.v.is_empty() {
+                        units.push(r.combo);
+                    } else {
+                        left.push(r);
+                    }
+                }
+            }
+            if complete && left.is_empty() || take == rows.len() {
+                self.pivots = trial.pivots;
+                self.kernel.extend(trial.kernel);
+                self.kernel
+                    .extend(units.into_iter().filter(|c| !c.is_empty()));
+                return;
+            }
+            take = rows.len().min(2 * take);
+        }
     }
 
-    fn insert(&mut self, mut row: Row) {
-        loop {
-            let Some((&c, b)) = row.v.iter().next() else {
-                if !row.combo.is_empty() {
-                    self.kernel.push(row.combo);
+    /// Echelon form by Euclid across all rows at once: in each column the
+    /// row with the smallest entry (and the shortest combination) reduces
+    /// every other, until one is left. Each pass at least halves the
+    /// largest entry, and combinations grow by small multiples only.
+    fn euclid(&mut self, cols: &[usize], mut rows: Vec<Row>) {
+        for &c in cols {
+            loop {
+                let with: Vec<usize> = (0..rows.len())
+                    .filter(|&i| rows[i].v.contains_key(&c))
+                    .collect();
+                let Some(&best) = with.iter().min_by(|&&i, &&j| {
+                    let key = |r: &Row| (r.v[&c].clone().abs(), r.combo.len());
+                    key(&rows[i]).cmp(&key(&rows[j]))
+                }) else {
+                    break;
+                };
+                if rows[best].v[&c] < 0 {
+                    let r = &rows[best];
+                    rows[best] = r.lin(&Integer::from(-1), r, &Integer::new());
                 }
-                return;
-            };
-            let b = b.clone();
-            match &mut self.pivots[c] {
-                slot @ None => {
-                    if b < 0 {
-                        row = row.lin(&Integer::from(-1), &row, &Integer::new());
-                    }
-                    *slot = Some(row);
-                    return;
+                if with.len() == 1 {
+                    self.pivots[c] = Some(rows.swap_remove(best));
+                    break;
                 }
-                Some(p) => {
-                    let a = p.v[&c].clone();
-                    if b.is_divisible(&a) {
-                        let q = Integer::from(&b / &a);
-                        row.sub_mul(&q, p);
+                let p = rows[best].clone();
+                let pc = p.v[&c].clone();
+                let two_pc = Integer::from(&pc << 1u32);
+                for &i in with.iter().filter(|&&i| i != best) {
+                    // the nearest integer to x / pc
+                    let q = (Integer::from(&rows[i].v[&c] << 1u32) + &pc).div_floor(&two_pc);
+                    rows[i].sub_mul(&q, &p);
+                }
+                let mut kept = Vec::with_capacity(rows.len());
+                for r in rows {
+                    if r.v.is_empty() {
+                        if !r.combo.is_empty() {
+                            self.kernel.push(r.combo);
+                        }
                     } else {
-                        let (g, s, t) = a.clone().extended_gcd(b.clone(), Integer::new());
-                        let new_p = p.lin(&s, &row, &t);
-                        let new_row =
-                            p.lin(&Integer::from(&b / &g), &row, &(-Integer::from(&a / &g)));
-                        *p = new_p;
-                        row = new_row;
+                        kept.push(r);
                     }
                 }
+                rows = kept;
             }
         }
     }
@@ -163,6 +213,99 @@ impl Echelon {
             .as_ref()
             .and_then(|p| p.v.get(&c).cloned())
             .unwrap_or_default()
+    }
+}
+
+/// The essential block solved: unit pivots first, chosen by least
+/// Markowitz cost so that combinations stay short (structured Gaussian
+/// elimination: B. A. LaMacchia and A. M. Odlyzko, CRYPTO '90), then an
+/// echelon form on the columns left.
+struct Algebra {
+    /// `(column, row)` in pivoting order; each row has `+1` at its column
+    /// and its other entries on columns pivoted later or left dense.
+    unit_pivots: Vec<(usize, Row)>,
+    dense: Echelon,
+    /// Columns left to the echelon form.
+    dense_cols: Vec<usize>,
+}
+
+impl Algebra {
+    fn solve(k: usize, rows: Vec<Row>) -> Algebra {
+        let mut active: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
+        let mut kernel = Vec::new();
+        active.retain(|r| {
+            if r.v.is_empty() {
+                kernel.push(r.combo.clone());
+                false
+            } else {
+                true
+            }
+        });
+        let mut done = vec![false; k];
+        let mut unit_pivots = Vec::new();
+        loop {
+            let mut count = vec![0usize; k];
+            for r in &active {
+                for c in r.v.keys() {
+                    count[*c] += 1;
+                }
+            }
+            let mut best: Option<(usize, usize, usize)> = None; // (cost, row, col)
+            for (ri, r) in active.iter().enumerate() {
+                let w = r.v.len();
+                for (c, e) in &r.v {
+                    if *e == 1 || *e == -1 {
+                        let cost = (w - 1) * (count[*c] - 1);
+                        if best.is_none_or(|(b, _, _)| cost < b) {
+                            best = Some((cost, ri, *c));
+                        }
+                    }
+                }
+            }
+            let Some((_, ri, c)) = best else { break };
+            let mut p = active.swap_remove(ri);
+            if p.v[&c] < 0 {
+                p = p.lin(&Integer::from(-1), &p, &Integer::new());
+            }
+            let mut next = Vec::with_capacity(active.len());
+            for mut r in active {
+                if let Some(e) = r.v.get(&c).cloned() {
+                    r.sub_mul(&e, &p);
+                }
+                if r.v.is_empty() {
+                    if !r.combo.is_empty() {
+                        kernel.push(r.combo);
+                    }
+                } else {
+                    next.push(r);
+                }
+            }
+            active = next;
+            done[c] = true;
+            unit_pivots.push((c, p));
+        }
+        let dense_cols: Vec<usize> = (0..k).filter(|&c| !done[c]).collect();
+        let mut dense = Echelon::new(k);
+        dense.kernel = kernel;
+        dense.triangularise(&dense_cols, active);
+        Algebra {
+            unit_pivots,
+            dense,
+            dense_cols,
+        }
+    }
+
+    fn full_rank(&self) -> bool {
+        self.dense_cols
+            .iter()
+            .all(|&c| self.dense.pivots[c].is_some())
+    }
+
+    fn h_star(&self) -> Integer {
+        self.dense_cols
+            .iter()
+            .map(|&c| self.dense.diagonal(c))
+            .product()
     }
 }
 
@@ -344,12 +487,6 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let n = fb.len();
     let k = essential_count(fb, d);
     progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
-    let ideals: Vec<PrimeIdeal> = fb
-        .primes
-        .iter()
-        .zip(fb.bs.iter())
-        .map(|(&p, &b)| PrimeIdeal::QuadraticForm { p, b })
-        .collect();
     let mut sieve = Sieve {
         d,
         primes: &fb.primes,
@@ -411,10 +548,9 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         }
         Row { v, combo }
     };
-    let mut ech = Echelon::new(k);
-    for j in (n - k)..raws.len() {
-        ech.insert(substitute(j, &raws));
-    }
+    let mut rows: Vec<Row> = ((n - k)..raws.len())
+        .map(|j| substitute(j, &raws))
+        .collect();
     let factors = |raws: &[Raw]| -> Vec<Factor> {
         raws.iter()
             .map(|r| {
@@ -434,9 +570,8 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     };
     let max_relations = 60 * k + 2000;
     let mut unit: Option<Vector> = None;
-    let mut used_kernel = 0;
     let mut batch = k.max(8);
-    loop {
+    let alg = loop {
         for _ in 0..batch {
             let Some(raw) = sieve.relation(k, n, 5_000_000) else {
                 return Err(ProveError::SearchFailed(
@@ -444,7 +579,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 ));
             };
             raws.push(raw);
-            ech.insert(substitute(raws.len() - 1, &raws));
+            rows.push(substitute(raws.len() - 1, &raws));
         }
         batch = (k / 4).max(4);
         if raws.len() > max_relations + n {
@@ -453,24 +588,22 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 raws.len()
             )));
         }
-        if !ech.full_rank() || ech.kernel.len() == used_kernel {
+        let alg = Algebra::solve(k, rows.clone());
+        if !alg.full_rank() || alg.dense.kernel.is_empty() {
             continue;
         }
-        // units: the current one and the new kernel vectors
-        let mut cands: Vec<Vec<(usize, Integer)>> = Vec::new();
-        if let Some(u) = &unit {
-            cands.push(u.iter().map(|(i, e)| (*i, e.clone())).collect());
-        }
-        for kv in &ech.kernel[used_kernel..] {
-            cands.push(kv.iter().map(|(i, e)| (*i, e.clone())).collect());
-        }
-        used_kernel = ech.kernel.len();
+        let cands: Vec<Vec<(usize, Integer)>> = alg
+            .dense
+            .kernel
+            .iter()
+            .map(|kv| kv.iter().map(|(i, e)| (*i, e.clone())).collect())
+            .collect();
         let fs = factors(&raws);
         if let Some(g) = units::unit_gcd(d, &fs, &cands) {
             unit = Some(g.into_iter().collect());
         }
         let Some(u) = &unit else { continue };
-        let h_star: Integer = (0..k).map(|c| ech.diagonal(c)).product();
+        let h_star = alg.h_star();
         let log_r = units::log_power_product(
             d,
             &fs,
@@ -490,18 +623,24 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         ));
         // a margin for the rigorous check that follows
         if log_hr < setup.ceiling.to_f64() - 1e-9 {
-            break;
+            break alg;
         }
-    }
+    };
+    let mut ech = alg.dense;
     ech.reduce();
 
-    // Generators: essential columns whose pivot is > 1.
-    let gens: Vec<usize> = (0..k).filter(|&c| ech.diagonal(c) > 1).collect();
+    // Generators: dense columns whose pivot is > 1.
+    let gens: Vec<usize> = alg
+        .dense_cols
+        .iter()
+        .copied()
+        .filter(|&c| ech.diagonal(c) > 1)
+        .collect();
     let pivot = |c: usize| ech.pivots[c].clone().expect("full rank");
     let mut h_rows: Vec<Row> = Vec::new();
     for &g in &gens {
         let mut row = pivot(g);
-        for c in g + 1..k {
+        for &c in alg.dense_cols.iter().filter(|&&c| c > g) {
             if gens.contains(&c) {
                 continue;
             }
@@ -521,8 +660,14 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         .collect();
     let sm = smith(&h_g).ok_or_else(|| ProveError::SearchFailed("Smith form failed".into()))?;
     let mut eliminations = Vec::new();
-    for c in (0..k).rev().filter(|c| !gens.contains(c)) {
-        let row = pivot(c);
+    let elimination_rows = alg
+        .dense_cols
+        .iter()
+        .rev()
+        .filter(|c| !gens.contains(c))
+        .map(|&c| (c, pivot(c)))
+        .chain(alg.unit_pivots.iter().rev().cloned());
+    for (c, row) in elimination_rows {
         eliminations.push(Elimination {
             pivot: c as u32,
             relation: Relation {
@@ -563,24 +708,24 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             },
         })
         .collect();
-    let fundamental = to_terms(unit.as_ref().expect("a unit was found"));
-    let log_eps = element::log_power_product(d, &ideals, &raw_relations, &fundamental)
-        .ok_or_else(|| ProveError::SearchFailed("the unit's logarithm failed".into()))?;
-    let (fundamental, regulator) = if log_eps.lo > 0 {
-        (fundamental, log_eps)
-    } else {
-        // ε < 1: use its inverse, so the stated unit is > 1 in absolute value
-        let neg: Vec<(u32, Integer)> = fundamental.into_iter().map(|(i, e)| (i, -e)).collect();
-        (neg, log_eps.neg())
-    };
-    let mut odd = false;
-    for (j, e) in &fundamental {
-        let r = &raws[*j as usize];
-        let n4 = Integer::from(r.x.square_ref()) - Integer::from(r.y.square_ref()) * d;
-        if n4 < 0 && e.is_odd() {
-            odd = !odd;
-        }
-    }
+    // The unit found from the relations, rewritten in compact form from
+    // its logarithm; the verifier's own check gives the stated enclosure.
+    let terms: Vec<(usize, Integer)> = unit
+        .as_ref()
+        .expect("a unit was found")
+        .iter()
+        .map(|(i, e)| (*i, e.clone()))
+        .collect();
+    let log_r = units::log_power_product(d, &factors(&raws), &terms)
+        .ok_or_else(|| ProveError::SearchFailed("the unit's logarithm failed".into()))?
+        .abs();
+    let steps = compact::compact(d, &log_r).ok_or_else(|| {
+        ProveError::SearchFailed("the compact representation of the unit failed".into())
+    })?;
+    let chain = classcert_verifier::compact::check_chain(d, &steps).map_err(|e| {
+        ProveError::SelfCheckFailed(format!("compact representation: {}", e.detail))
+    })?;
+    let regulator = chain.log_eps;
     let mut generators = Vec::new();
     let mut invariants = Vec::new();
     for (di, xv) in cyclic_generators(&sm, &h_g) {
@@ -606,8 +751,8 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         raw_relations: Some(raw_relations),
     };
     let units = Units {
-        fundamental,
-        norm: if odd { -1 } else { 1 },
+        steps,
+        norm: if chain.norm_negative { -1 } else { 1 },
         regulator: regulator
             .to_bounds()
             .ok_or_else(|| ProveError::SearchFailed("regulator out of range".into()))?,

@@ -2,12 +2,11 @@
 
 use crate::units::{self, Factor};
 use classcert_format::json::Json;
-use classcert_format::{Body, CyclicGenerator, Decoded, Order, PrimeIdeal, Witness};
+use classcert_format::{Body, CyclicGenerator, Decoded, Order, PrimeIdeal};
 use classcert_verifier::interval::Interval;
 use classcert_verifier::verdict::{
     decimal, generator_json, generator_text, invariants_text, GeneratorView,
 };
-use rug::ops::Pow;
 use rug::Integer;
 
 /// Units with at most this many digits are printed in full.
@@ -34,30 +33,20 @@ fn generator_view(b: &Body, g: &CyclicGenerator) -> GeneratorView {
 pub fn unit_coordinates(b: &Body) -> Option<(Integer, Integer)> {
     let Order::Quadratic { discriminant: d } = &b.order;
     let units = b.units.as_ref()?;
-    let raw = b.lattice.raw_relations.as_ref()?;
-    let mut factors = Vec::with_capacity(raw.len());
-    for r in raw {
-        let Witness::Element { x, y } = &r.witness else {
-            return None;
-        };
-        let mut s = Integer::from(1);
-        for (i, e) in &r.entries {
-            if *e < 0 {
-                let PrimeIdeal::QuadraticForm { p, .. } = b.factor_base.get(*i as usize)?;
-                s *= Integer::from(*p).pow(e.clone().abs().to_u32()?);
-            }
-        }
-        factors.push(Factor {
-            x: x.clone(),
-            y: y.clone(),
-            s,
-        });
-    }
-    let terms: Vec<(usize, Integer)> = units
-        .fundamental
+    // ε = ∏ β_j^{2^{l-j}}
+    let l = units.steps.len();
+    let factors: Vec<Factor> = units
+        .steps
         .iter()
-        .map(|(j, e)| (*j as usize, e.clone()))
+        .map(|t| Factor {
+            x: t.x.clone(),
+            y: t.y.clone(),
+            s: t.s.clone(),
+        })
         .collect();
+    let terms: Vec<(usize, Integer)> = (0..l)
+        .map(|j| Some((j, Integer::from(1) << u32::try_from(l - 1 - j).ok()?)))
+        .collect::<Option<Vec<_>>>()?;
     let (mut big_x, mut big_y) = units::expand(d, &factors, &terms, MAX_UNIT_DIGITS)?;
     // -ε is a fundamental unit too; print the one that is > 0
     let x_dominates = Integer::from(big_x.square_ref()) > Integer::from(big_y.square_ref()) * d;
@@ -151,9 +140,9 @@ pub fn text(c: &Decoded) -> String {
                 u.norm
             )),
             None => s.push_str(&format!(
-                "  unit           of norm {}, about {digits} digits: kept as a power product of {} elements\n",
+                "  unit           of norm {}, about {digits} digits: in compact representation of {} steps\n",
                 u.norm,
-                u.fundamental.len()
+                u.steps.len()
             )),
         }
     }
@@ -238,10 +227,7 @@ pub fn json(c: &Decoded) -> Json {
     if let (Some(u), Some((reg, digits))) = (&b.units, regulator_parts(b)) {
         out.push(("regulator", Json::str(reg)));
         out.push(("unit_norm", Json::Num(u.norm.to_string())));
-        out.push((
-            "unit_compact_length",
-            Json::Num(u.fundamental.len().to_string()),
-        ));
+        out.push(("unit_compact_length", Json::Num(u.steps.len().to_string())));
         out.push(("unit_digits", Json::Num(digits.to_string())));
         out.push((
             "unit",

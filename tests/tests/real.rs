@@ -228,7 +228,8 @@ fn halve(b: &mut classcert_format::Bounds, by: i64) {
 
 #[test]
 fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
-    let genuine = prove_body(316);
+    // h = 2 and R = 146.76…, so the compact representation has two steps
+    let genuine = prove_body(999_997);
     assert_eq!(code(&genuine), None, "the genuine certificate verifies");
     let units = |b: &mut Body| b.units.as_mut().expect("D > 0 has units").clone();
     let mut seen = std::collections::BTreeMap::new();
@@ -247,24 +248,24 @@ fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
     *x += 2;
     expect("α witness changed", b, "relation-witness-invalid");
 
-    // the unit's kernel vector changed: one exponent off by one
+    // a forged unit: one β of the compact representation changed
     let mut b = genuine.clone();
     let mut u = units(&mut b);
-    u.fundamental[0].1 += 1;
+    u.steps[0].x += 2;
     b.units = Some(u);
-    expect("kernel vector changed", b, "unit-not-in-kernel");
+    expect("compact step changed", b, "unit-chain-mismatch");
 
-    // a power product that is not a unit: one relation element alone
+    // a power product that is not a unit: the chain stops before O
     let mut b = genuine.clone();
     let mut u = units(&mut b);
-    u.fundamental = vec![(j as u32, Integer::from(1))];
+    u.steps.pop();
     b.units = Some(u);
-    expect("not a unit", b.clone(), "unit-not-in-kernel");
+    expect("chain cut short", b, "unit-chain-mismatch");
 
-    // the empty power product is 1, a unit of finite order
+    // the empty product is 1, a unit of finite order
     let mut b = genuine.clone();
     let mut u = units(&mut b);
-    u.fundamental = vec![];
+    u.steps.clear();
     b.units = Some(u);
     expect("ε = 1", b, "unit-trivial");
 
@@ -275,12 +276,17 @@ fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
     b.units = Some(u);
     expect("regulator halved", b, "regulator-mismatch");
 
-    // regulator twice too large, with a genuine unit to match: ε²
+    // regulator twice too large, with a genuine unit to match: ε², one
+    // more step with β = 1 and a_{l+1} = O = O^2
     let mut b = genuine.clone();
     let mut u = units(&mut b);
-    for (_, e) in u.fundamental.iter_mut() {
-        *e *= 2;
-    }
+    let last = u.steps.last().unwrap().clone();
+    u.steps.push(classcert_format::CompactStep {
+        x: Integer::from(2),
+        y: Integer::new(),
+        s: Integer::from(1),
+        ..last
+    });
     halve(&mut u.regulator, 1);
     u.norm = 1;
     b.units = Some(u);
@@ -298,7 +304,7 @@ fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
     b.claim.class_number *= 2;
     expect("h doubled, R halved", b, "class-number-mismatch");
 
-    // the norm of ε flipped (D = 316: ε = 80 + 9 sqrt 79 has norm 1)
+    // the norm of ε flipped
     let mut b = genuine.clone();
     let mut u = units(&mut b);
     u.norm = -u.norm;
@@ -333,7 +339,7 @@ fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
     // the four cases have four distinct codes
     for c in [
         "relation-witness-invalid",
-        "unit-not-in-kernel",
+        "unit-chain-mismatch",
         "regulator-mismatch",
         "class-number-regulator-not-confirmed",
         "class-number-mismatch",

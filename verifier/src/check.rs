@@ -8,6 +8,7 @@
 //! not compile.
 
 use crate::arith::{kronecker_prime, mod_small, primes_up_to, small_conductor};
+use crate::compact;
 use crate::element;
 use crate::euler;
 use crate::form::Form;
@@ -52,8 +53,6 @@ struct GenerationOk {
 /// Step 2 (`D > 0`): every raw relation holds by its element witness.
 struct RawOk<'a> {
     relations: &'a [Relation],
-    /// `N(α_j) < 0`, per raw relation.
-    negative_norm: Vec<bool>,
 }
 
 /// Step 4 (`D > 0`): a unit of infinite order, `R* = |log|ε|| > 0`.
@@ -413,14 +412,10 @@ fn check_raw_relations<'a>(body: &'a Body, order: &OrderOk) -> Check<Option<RawO
     if raw.len() > MAX_RAW_RELATIONS {
         return reject(Reason::OverLimit, "too many raw relations");
     }
-    let mut negative_norm = Vec::with_capacity(raw.len());
     for (k, rel) in raw.iter().enumerate() {
-        negative_norm.push(element::check_raw(&order.d, &body.factor_base, k, rel)?);
+        element::check_raw(&order.d, &body.factor_base, k, rel)?;
     }
-    Ok(Some(RawOk {
-        relations: raw,
-        negative_norm,
-    }))
+    Ok(Some(RawOk { relations: raw }))
 }
 
 fn mat_mul(a: &[Vec<Integer>], b: &[Vec<Integer>], n: usize) -> Vec<Vec<Integer>> {
@@ -829,53 +824,24 @@ pub fn log_h_enclosure(
     Some(acc)
 }
 
-/// Step 4 (`D > 0`): the power product `ε = ∏ α'_j^{e_j}` is a unit of
-/// infinite order, and the claimed regulator, norm and length match.
-///
-/// Its ideal is `∏ P_i^{Σ_j e_j r_{j,i}}`; the sum is the zero vector, so
-/// `εO = O` and `ε` is a unit (common practice). `log|ε| = Σ e_j log|α'_j|`
-/// in outward-rounded intervals; if it is bounded away from 0 then
-/// `R* = |log|ε||` is a positive integer multiple of the regulator:
-/// `R* = [O^* : <-1, ε>] R` (design note, section 4).
-fn check_units(body: &Body, order: &OrderOk, raw: Option<&RawOk>) -> Check<Option<UnitsOk>> {
-    let (units, raw) = match (&body.units, raw) {
-        (None, None) => return Ok(None),
-        (Some(u), Some(raw)) => (u, raw),
-        (Some(_), None) => return reject(Reason::UnitsShape, "a unit section is only for D > 0"),
-        (None, Some(_)) => {
+/// Step 4 (`D > 0`): the compact representation is a unit of infinite
+/// order (see [`compact`]), and the claimed regulator and norm match.
+/// `R* = |log|ε||`, bounded away from 0, is a positive integer multiple of
+/// the regulator: `R* = [O^* : <-1, ε>] R` (design note, section 4).
+fn check_units(body: &Body, order: &OrderOk) -> Check<Option<UnitsOk>> {
+    let units = match (&body.units, order.real) {
+        (None, false) => return Ok(None),
+        (Some(u), true) => u,
+        (Some(_), false) => return reject(Reason::UnitsShape, "a unit section is only for D > 0"),
+        (None, true) => {
             return reject(
                 Reason::UnitsShape,
                 "D > 0 needs the fundamental unit and the regulator",
             )
         }
     };
-    let terms = &units.fundamental;
-    if terms.len() > MAX_UNIT_TERMS {
-        return reject(Reason::OverLimit, "the unit's power product is too long");
-    }
-    let mut work = MAX_COMBINATION_WORK;
-    let kernel = element::combine(raw.relations, terms, &mut work)?;
-    if let Some((i, e)) = kernel.iter().next() {
-        return reject(
-            Reason::UnitNotInKernel,
-            format!(
-                "the power product's ideal is not trivial (exponent {e} at factor-base index {i}): it is not a unit"
-            ),
-        );
-    }
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
-    let Some(log_eps) =
-        element::log_power_product(&order.d, &body.factor_base, raw.relations, terms)
-    else {
-        return bad();
-    };
-    // N(ε) = ∏ sign(N(α_j))^{e_j}
-    let mut odd_negative = false;
-    for (j, e) in terms {
-        if raw.negative_norm.get(*j as usize).copied().unwrap_or(false) && e.is_odd() {
-            odd_negative = !odd_negative;
-        }
-    }
+    let chain = compact::check_chain(&order.d, &units.steps)?;
+    let log_eps = chain.log_eps;
     let regulator = if log_eps.lo > 0 {
         log_eps
     } else if log_eps.hi < 0 {
@@ -883,7 +849,7 @@ fn check_units(body: &Body, order: &OrderOk, raw: Option<&RawOk>) -> Check<Optio
     } else {
         return reject(
             Reason::UnitTrivial,
-            "log|ε| is not bounded away from 0: the power product is not a unit of infinite order",
+            "log|ε| is not bounded away from 0: the unit has finite order",
         );
     };
     let Some(claimed) = Interval::from_bounds(&units.regulator) else {
@@ -915,7 +881,7 @@ fn check_units(body: &Body, order: &OrderOk, raw: Option<&RawOk>) -> Check<Optio
             "the stated regulator interval is wider than 20 significant digits allow",
         );
     }
-    let norm: i8 = if odd_negative { -1 } else { 1 };
+    let norm: i8 = if chain.norm_negative { -1 } else { 1 };
     if units.norm != i64::from(norm) {
         return reject(
             Reason::UnitNormMismatch,
@@ -928,7 +894,7 @@ fn check_units(body: &Body, order: &OrderOk, raw: Option<&RawOk>) -> Check<Optio
     Ok(Some(UnitsOk {
         regulator,
         norm,
-        length: terms.len(),
+        length: units.steps.len(),
     }))
 }
 
@@ -1103,7 +1069,7 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
     let raw = check_raw_relations(body, &order)?;
     let lat = check_lattice(body, &order, &gen, raw.as_ref())?;
     let claim = check_claim(body, &order, &gen, &lat)?;
-    let units = check_units(body, &order, raw.as_ref())?;
+    let units = check_units(body, &order)?;
     let analytic = check_analytic(body, &order, &cond, &lat, units.as_ref())?;
     let _ = mod_small;
 

@@ -1,5 +1,5 @@
 //! Element witnesses for real quadratic orders (`D > 0`), combinations of
-//! relations, and logarithms of power products.
+//! relations, and logarithms of elements.
 //!
 //! A raw relation carries `α = (x + y sqrt D)/2` and a sparse vector `e`
 //! over the factor base, and claims the ideal equation
@@ -156,7 +156,7 @@ pub fn combine(
 /// `log|α|` for `α = (x + y sqrt D)/2 ≠ 0`, at `prec` bits. When `x` and
 /// `y sqrt D` have opposite signs it uses `|x + y sqrt D| =
 /// |x² - D y²| / (|x| + |y| sqrt D)`, so nothing cancels.
-fn log_abs_alpha(d: &Integer, x: &Integer, y: &Integer, prec: u32) -> Option<Interval> {
+pub fn log_abs_alpha(d: &Integer, x: &Integer, y: &Integer, prec: u32) -> Option<Interval> {
     let ax = Interval::int_prec(&Integer::from(x.abs_ref()), prec);
     let ay = Interval::int_prec(&Integer::from(y.abs_ref()), prec);
     let sum = ax.add(&ay.mul(&Interval::int_prec(d, prec).sqrt()?));
@@ -169,53 +169,6 @@ fn log_abs_alpha(d: &Integer, x: &Integer, y: &Integer, prec: u32) -> Option<Int
         Interval::int_prec(&n4.abs(), prec).ln()?.sub(&sum.ln()?)
     };
     Some(l.sub(&two.ln()?))
-}
-
-/// `log|α'|` for the generator `α' = α / ∏_{e_i < 0} p_i^{-e_i}` of raw
-/// relation `rel` (already checked by [`check_raw`]).
-pub fn log_generator(
-    d: &Integer,
-    ideals: &[PrimeIdeal],
-    rel: &Relation,
-    prec: u32,
-) -> Option<Interval> {
-    let Witness::Element { x, y } = &rel.witness else {
-        return None;
-    };
-    let mut l = log_abs_alpha(d, x, y, prec)?;
-    for (i, e) in &rel.entries {
-        if *e < 0 {
-            let PrimeIdeal::QuadraticForm { p, .. } = ideals.get(*i as usize)?;
-            let lp = Interval::int_prec(&Integer::from(*p), prec).ln()?;
-            l = l.sub(&lp.mul(&Interval::int_prec(&Integer::from(e.abs_ref()), prec)));
-        }
-    }
-    Some(l)
-}
-
-/// Enclosure of `log|ε|` for `ε = ∏ α'_j^{e_j}` over `terms = [(j, e_j)]`
-/// (raw relations already checked), at a precision that keeps its width
-/// near `2^-200 |log|ε||` or below.
-pub fn log_power_product(
-    d: &Integer,
-    ideals: &[PrimeIdeal],
-    raw: &[Relation],
-    terms: &[(u32, Integer)],
-) -> Option<Interval> {
-    let max_bits = terms
-        .iter()
-        .map(|(_, e)| e.significant_bits())
-        .max()
-        .unwrap_or(0);
-    let len_bits = usize::BITS - terms.len().leading_zeros();
-    // each term's error is about |e| |log α'| 2^-prec, and |log α'| < 2^32
-    let prec = 224 + max_bits.min(MAX_ENTRY_BITS) + len_bits;
-    let mut acc = Interval::int_prec(&Integer::new(), prec);
-    for (j, e) in terms {
-        let l = log_generator(d, ideals, raw.get(*j as usize)?, prec)?;
-        acc = acc.add(&l.mul(&Interval::int_prec(e, prec)));
-    }
-    Some(acc)
 }
 
 #[cfg(test)]

@@ -111,6 +111,15 @@ impl Form {
 
     /// The reduced form of the composition (Cohen Alg. 5.4.7).
     pub fn compose(&self, other: &Form) -> Result<Form, FormError> {
+        self.compose_unreduced(other)?.1.reduce()
+    }
+
+    /// Composition without reduction (Cohen Alg. 5.4.7, steps 1-4): returns
+    /// `(d, f3)` with `d = gcd(a1, a2, (b1 + b2)/2)`; for the ideals
+    /// `[a, (b + sqrt D)/2]` of primitive forms with `a > 0`, the product of
+    /// the two ideals is `d · [a3, (b3 + sqrt D)/2]`. Works for either sign
+    /// of `D`.
+    pub fn compose_unreduced(&self, other: &Form) -> Result<(Integer, Form), FormError> {
         let (f1, f2) = if self.a > other.a {
             (other, self)
         } else {
@@ -157,12 +166,14 @@ impl Form {
             return Err(FormError);
         }
         let c3 = num / &v1;
-        Form {
-            a: a3,
-            b: b3,
-            c: c3,
-        }
-        .reduce()
+        Ok((
+            d1,
+            Form {
+                a: a3,
+                b: b3,
+                c: c3,
+            },
+        ))
     }
 
     pub fn square(&self) -> Result<Form, FormError> {

@@ -28,6 +28,7 @@
 
 pub mod arith;
 pub mod check;
+pub mod compact;
 pub mod element;
 pub mod euler;
 pub mod form;

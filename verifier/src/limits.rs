@@ -26,5 +26,5 @@ pub const MAX_FACTORS: usize = 4096;
 pub const MAX_RAW_RELATIONS: usize = 2_000_000;
 /// Entries touched while adding up combinations of raw relations.
 pub const MAX_COMBINATION_WORK: u64 = 200_000_000;
-/// Factors in the fundamental unit's power product.
-pub const MAX_UNIT_TERMS: usize = 2_000_000;
+/// Steps of a unit's compact representation (about log2 of the regulator).
+pub const MAX_COMPACT_STEPS: usize = 4096;

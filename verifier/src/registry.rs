@@ -106,9 +106,9 @@ pub static REGISTRY: &[Theorem] = &[
     },
     Theorem {
         id: UNIT_INDEX,
-        citation: "elementary (common practice): Dirichlet's unit theorem for real quadratic orders, O^* = <-1, eps_0>",
+        citation: "J. Buchmann, C. Thiel and H. C. Williams, \"Short representation of quadratic integers\" (1995), compact representations; Dirichlet's unit theorem for real quadratic orders, O^* = <-1, eps_0> (common practice)",
         hypothesis: Hypothesis::None,
-        statement: "a power product of relation generators whose exponent vector sums the relations to zero is a unit; if |log|eps|| > 0 then |log|eps|| = [O^* : <-1, eps>] R",
+        statement: "if beta_j a_j = a_{j-1}^2 for j = 1..l with a_0 = a_l = O, then eps = prod beta_j^(2^(l-j)) is a unit; if |log|eps|| > 0 then |log|eps|| = [O^* : <-1, eps>] R",
         note: "",
     },
 ];

@@ -48,7 +48,7 @@ pub enum Reason {
     RelationWitnessInvalid,
     CombinationMismatch,
     UnitsShape,
-    UnitNotInKernel,
+    UnitChainMismatch,
     UnitTrivial,
     RegulatorMismatch,
     RegulatorImprecise,
@@ -98,7 +98,7 @@ impl Reason {
             RelationWitnessInvalid => "relation-witness-invalid",
             CombinationMismatch => "combination-mismatch",
             UnitsShape => "units-shape",
-            UnitNotInKernel => "unit-not-in-kernel",
+            UnitChainMismatch => "unit-chain-mismatch",
             UnitTrivial => "unit-trivial",
             RegulatorMismatch => "regulator-mismatch",
             RegulatorImprecise => "regulator-imprecise",
@@ -157,7 +157,7 @@ pub struct UnitSummary {
     pub regulator: Interval,
     /// The norm of `ε`, `1` or `-1`.
     pub norm: i8,
-    /// Number of factors in the power product that gives `ε`.
+    /// Number of steps in the compact representation of `ε`.
     pub compact_length: usize,
 }
 
@@ -369,7 +369,7 @@ impl Report {
                 if let Some(u) = &v.unit {
                     s.push_str(&format!("  regulator     R = {}\n", u.regulator_text()));
                     s.push_str(&format!(
-                        "  unit          ε of norm {}, kept as a power product of {} elements\n",
+                        "  unit          ε of norm {}, in compact representation of {} steps\n",
                         u.norm, u.compact_length
                     ));
                     if u.norm < 0 {
