@@ -37,6 +37,12 @@ struct Raw {
     y: Integer,
 }
 
+/// Kernel vectors offered to the unit search per round.
+const KERNEL_PER_ROUND: usize = 32;
+
+/// Columns beyond the generators that may be left to the echelon block.
+const DENSE_SLACK: usize = 4;
+
 /// Sparse integer vectors: over factor-base indices, or over raw relations.
 type Vector = BTreeMap<usize, Integer>;
 
@@ -569,7 +575,11 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             .collect()
     };
     let max_relations = 60 * k + 2000;
+    // how many essential relations may be spent on shrinking the echelon block
+    let dense_budget = 4 * k + 100;
     let mut unit: Option<Vector> = None;
+    let mut confirmed = false;
+    let mut log_r = f64::INFINITY;
     let mut batch = k.max(8);
     let alg = loop {
         for _ in 0..batch {
@@ -592,37 +602,52 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         if !alg.full_rank() || alg.dense.kernel.is_empty() {
             continue;
         }
-        let cands: Vec<Vec<(usize, Integer)>> = alg
-            .dense
-            .kernel
-            .iter()
-            .map(|kv| kv.iter().map(|(i, e)| (*i, e.clone())).collect())
-            .collect();
-        let fs = factors(&raws);
-        if let Some(g) = units::unit_gcd(d, &fs, &cands) {
-            unit = Some(g.into_iter().collect());
-        }
-        let Some(u) = &unit else { continue };
         let h_star = alg.h_star();
-        let log_r = units::log_power_product(
-            d,
-            &fs,
-            &u.iter().map(|(i, e)| (*i, e.clone())).collect::<Vec<_>>(),
-        )
-        .map(|l| l.abs().to_f64())
-        .unwrap_or(f64::INFINITY);
-        let log_hr = Interval::int(&h_star)
-            .ln()
-            .map(|l| l.hi.to_f64())
-            .unwrap_or(f64::INFINITY)
-            + log_r.ln();
+        if !confirmed {
+            // the current unit and kernel vectors spread over the kernel
+            let kernel = &alg.dense.kernel;
+            let step = kernel.len().div_ceil(KERNEL_PER_ROUND).max(1);
+            let cands: Vec<Vec<(usize, Integer)>> = unit
+                .iter()
+                .chain(kernel.iter().step_by(step))
+                .map(|kv| kv.iter().map(|(i, e)| (*i, e.clone())).collect())
+                .collect();
+            let fs = factors(&raws);
+            if let Some(g) = units::unit_gcd(d, &fs, &cands) {
+                unit = Some(g.into_iter().collect());
+            }
+            let Some(u) = &unit else { continue };
+            log_r = units::log_power_product(
+                d,
+                &fs,
+                &u.iter().map(|(i, e)| (*i, e.clone())).collect::<Vec<_>>(),
+            )
+            .map(|l| l.abs().to_f64())
+            .unwrap_or(f64::INFINITY);
+            let log_hr = Interval::int(&h_star)
+                .ln()
+                .map(|l| l.hi.to_f64())
+                .unwrap_or(f64::INFINITY)
+                + log_r.ln();
+            // a margin for the rigorous check that follows
+            confirmed = log_hr < setup.ceiling.to_f64() - 1e-9;
+        }
+        // Columns left to the echelon block carry long combinations into
+        // the certificate; more relations give more unit pivots.
+        let dense_gens = alg
+            .dense_cols
+            .iter()
+            .filter(|&&c| alg.dense.diagonal(c) > 1)
+            .count();
+        let dense_ok =
+            alg.dense_cols.len() <= dense_gens + DENSE_SLACK || raws.len() > dense_budget + n;
         progress.say(&format!(
-            "{} relations ({} candidates): h* = {h_star}, R* = {log_r:.6}",
+            "{} relations ({} candidates): h* = {h_star}, R* = {log_r:.6}, {} columns left to the echelon block",
             raws.len(),
-            sieve.candidates
+            sieve.candidates,
+            alg.dense_cols.len()
         ));
-        // a margin for the rigorous check that follows
-        if log_hr < setup.ceiling.to_f64() - 1e-9 {
+        if confirmed && dense_ok {
             break alg;
         }
     };

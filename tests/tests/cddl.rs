@@ -1,6 +1,9 @@
 //! Certificates written by the prover validate against the published
 //! schema `format/certificate.cddl` (CDDL, RFC 8610), and damaged ones do
 //! not, so the schema cannot drift from `format/src/model.rs` unnoticed.
+//! Both signs of the discriminant are covered: imaginary orders (form
+//! reduction witnesses) and real orders (raw relations with element
+//! witnesses, combinations, and the unit in compact representation).
 //!
 //! The validator is the `cddl` crate (a CDDL parser and CBOR/JSON
 //! validator), used here as an independent reading of the schema: it shares
@@ -23,6 +26,7 @@ use cddl::validator::cbor::CBORValidator;
 use cddl::validator::cbor_value::{decode_cbor, Value};
 use cddl::validator::Validator;
 use classcert_format::cbor::{self, WalkLimits};
+use classcert_format::Witness;
 use classcert_prover::{prove_to_bytes, Options};
 use rug::Integer;
 
@@ -161,6 +165,61 @@ fn golden_certificates_match_the_schema() {
     );
 }
 
+/// Real quadratic orders: fundamental discriminants with a nontrivial
+/// class group (316, h = 3) and a larger one with two prime factors.
+const REAL: [i64; 2] = [316, 999_997];
+
+/// The file for `D > 0`, through the prover's body and the format crate's
+/// encoder (the same bytes `prove_to_bytes` hands out after its self-check).
+fn real_certificate(d: i64) -> Vec<u8> {
+    let body = classcert_prover::prove(&Integer::from(d), &Options::default())
+        .unwrap_or_else(|e| panic!("the prover failed on D = {d}: {e}"));
+    let (bytes, _id) = classcert_format::encode_file(&body)
+        .unwrap_or_else(|e| panic!("encoding failed for D = {d}: {e}"));
+    bytes
+}
+
+#[test]
+fn real_certificates_match_the_schema() {
+    for d in REAL {
+        let bytes = real_certificate(d);
+        let decoded = classcert_format::decode_file(&bytes).expect("the prover's file decodes");
+        let body = &decoded.body;
+        // The optional parts of the schema that only D > 0 uses are really
+        // exercised: the unit section, the raw relations, element and
+        // combination witnesses, and generators without a form.
+        let units = body.units.as_ref().expect("D > 0 has a unit section");
+        assert!(
+            !units.steps.is_empty(),
+            "D = {d}: an empty compact representation"
+        );
+        let raw = body
+            .lattice
+            .raw_relations
+            .as_ref()
+            .expect("D > 0 has raw relations");
+        assert!(!raw.is_empty(), "D = {d}: no raw relations");
+        assert!(raw
+            .iter()
+            .all(|r| matches!(r.witness, Witness::Element { .. })));
+        assert!(matches!(
+            body.lattice.relation_witness,
+            Witness::Combinations { .. }
+        ));
+        assert!(body
+            .lattice
+            .eliminations
+            .iter()
+            .all(|e| matches!(e.relation.witness, Witness::Combination { .. })));
+        assert!(body.claim.generators.iter().all(|g| g.form.is_none()));
+        if d == 316 {
+            assert_eq!(body.claim.class_number, 3, "h(316)");
+            assert_eq!(body.claim.generators.len(), 1);
+        }
+        assert_valid(&format!("D = {d}"), &bytes);
+    }
+}
+
 #[test]
 fn a_hand_made_bignum_matches_the_schema() {
     // Replace the discriminant by a tagged bignum: the schema must accept
@@ -251,4 +310,111 @@ fn damaged_certificates_fail_the_schema() {
         t.as_map_mut().expect("a map").push((extra.clone(), extra));
     });
     assert_invalid("unknown top-level field", &out);
+}
+
+#[test]
+fn damaged_real_certificates_fail_the_schema() {
+    let real = real_certificate(316);
+
+    // The unit section: an unknown kind, missing fields, a step of the
+    // wrong length, and a norm that is not an integer.
+    let out = damaged!(&real, |t| {
+        let kind = field!(field!(field!(t, "body"), "units"), "kind");
+        *kind.as_text_mut().expect("text") = "explicit".into();
+    });
+    assert_invalid("units kind", &out);
+    for key in ["kind", "steps", "norm", "regulator"] {
+        let out = damaged!(&real, |t| {
+            remove!(field!(field!(t, "body"), "units"), key);
+        });
+        assert_invalid(&format!("no units.{key}"), &out);
+    }
+    let out = damaged!(&real, |t| {
+        let steps = field!(field!(field!(t, "body"), "units"), "steps");
+        let first = steps
+            .as_array_mut()
+            .expect("an array")
+            .first_mut()
+            .expect("a step");
+        first.as_array_mut().expect("a step is an array").pop();
+    });
+    assert_invalid("a compact step of four integers", &out);
+    let out = damaged!(&real, |t| {
+        let kind = field!(field!(field!(t, "body"), "units"), "kind").clone();
+        *field!(field!(field!(t, "body"), "units"), "norm") = kind;
+    });
+    assert_invalid("text units.norm", &out);
+
+    // Raw relations: an element witness without "y", and one of an unknown
+    // kind.
+    let out = damaged!(&real, |t| {
+        let raw = field!(field!(field!(t, "body"), "lattice"), "raw-relations");
+        let first = raw
+            .as_array_mut()
+            .expect("an array")
+            .first_mut()
+            .expect("a raw relation");
+        remove!(field!(first, "w"), "y");
+    });
+    assert_invalid("element witness without y", &out);
+    let out = damaged!(&real, |t| {
+        let raw = field!(field!(field!(t, "body"), "lattice"), "raw-relations");
+        let first = raw
+            .as_array_mut()
+            .expect("an array")
+            .first_mut()
+            .expect("a raw relation");
+        let kind = field!(field!(first, "w"), "kind");
+        *kind.as_text_mut().expect("text") = "ideal".into();
+    });
+    assert_invalid("raw relation witness kind", &out);
+
+    // The rows of H: a combinations witness without its rows, and a row
+    // whose coefficient is text.
+    let out = damaged!(&real, |t| {
+        remove!(
+            field!(field!(field!(t, "body"), "lattice"), "relation-witness"),
+            "rows"
+        );
+    });
+    assert_invalid("combinations witness without rows", &out);
+    let out = damaged!(&real, |t| {
+        let kind = field!(
+            field!(field!(field!(t, "body"), "lattice"), "relation-witness"),
+            "kind"
+        )
+        .clone();
+        let rows = field!(
+            field!(field!(field!(t, "body"), "lattice"), "relation-witness"),
+            "rows"
+        );
+        let term = rows
+            .as_array_mut()
+            .expect("an array")
+            .first_mut()
+            .expect("a row")
+            .as_array_mut()
+            .expect("a row is an array")
+            .first_mut()
+            .expect("a term");
+        *term
+            .as_array_mut()
+            .expect("a term is a pair")
+            .last_mut()
+            .expect("a coefficient") = kind;
+    });
+    assert_invalid("text combination coefficient", &out);
+
+    // A generator without its exponents (its form is optional, its
+    // exponents are not).
+    let out = damaged!(&real, |t| {
+        let gens = field!(field!(field!(t, "body"), "claim"), "generators");
+        let first = gens
+            .as_array_mut()
+            .expect("an array")
+            .first_mut()
+            .expect("a generator");
+        remove!(first, "exponents");
+    });
+    assert_invalid("generator without exponents", &out);
 }
