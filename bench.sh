@@ -1,9 +1,12 @@
 #!/usr/bin/env bash
 # Prove and verify the benchmark discriminants; prints a Markdown table of
 # medians over RUNS runs (wall time from /usr/bin/time, peak RSS in MiB).
-#   ./bench.sh [RUNS] [DIGITS...]      e.g. ./bench.sh 3 20 30 40
+#   ./bench.sh [--real] [RUNS] [DIGITS...]   e.g. ./bench.sh 3 20 30 40
+#   --real: real quadratic fields of prime discriminant D > 0
 set -euo pipefail
 cd "$(dirname "$0")"
+kind=""
+if [ "${1:-}" = "--real" ]; then kind=real; shift; fi
 runs=${1:-3}; shift || true
 digits=${*:-20 30}
 cargo build --release -q -p classcert-prover -p classcert-verifier --examples
@@ -12,7 +15,7 @@ median() { sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'; }
 echo "| digits | D | prove s (median of $runs) | verify s | verify/prove | certificate bytes | prove peak MiB | verify peak MiB |"
 echo "|---|---|---|---|---|---|---|---|"
 for n in $digits; do
-  d=$(./target/release/examples/bench_d "$n")
+  d=$(./target/release/examples/bench_d "$n" $kind)
   : > "$tmp/p"; : > "$tmp/v"
   for _ in $(seq "$runs"); do
     /usr/bin/time -f "%e %M" -o "$tmp/t" ./target/release/classcert prove "$d" -o "$tmp/c.cert" -q >/dev/null
