@@ -140,9 +140,10 @@ pub fn text(c: &Decoded) -> String {
                 u.norm
             )),
             None => s.push_str(&format!(
-                "  unit           of norm {}, about {digits} digits: in compact representation of {} steps\n",
+                "  unit           of norm {}, about {digits} digits: in compact representation of {} step{}\n",
                 u.norm,
-                u.steps.len()
+                u.steps.len(),
+                if u.steps.len() == 1 { "" } else { "s" }
             )),
         }
     }

@@ -24,6 +24,9 @@ pub const NONCYCLIC: i64 = -3299;
 pub const CYCLIC: i64 = -1_000_003;
 /// A non-maximal order: -300 = 10^2 · (-3), conductor 10.
 pub const NONMAXIMAL: i64 = -300;
+/// A real quadratic field: h = 2, R = 146.758…, so the unit's compact
+/// representation has two steps.
+pub const REAL: i64 = 999_997;
 
 /// What a forgery damages.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -493,6 +496,125 @@ fn format_value_null(b: &Body) -> Vec<u8> {
     f
 }
 
+// ---------------------------------------------------------------- real orders
+
+fn real_units(b: &Body) -> classcert_format::Units {
+    b.units
+        .clone()
+        .expect("a real order's certificate has units")
+}
+
+/// Multiplies a stated interval by 2^k.
+fn scale_bounds(x: &mut classcert_format::Bounds, k: i64) {
+    x.lo.exponent += k;
+    x.hi.exponent += k;
+}
+
+fn alpha_changed(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let raw = b.lattice.raw_relations.as_mut().expect("raw relations");
+    let r = raw
+        .iter_mut()
+        .find(|r| !r.entries.is_empty())
+        .expect("a raw relation with entries");
+    if let classcert_format::Witness::Element { x, .. } = &mut r.witness {
+        // (x + 2 + y sqrt D)/2 has another norm
+        *x += 2;
+    }
+    encode(&b)
+}
+
+fn unit_step_changed(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let mut u = real_units(&b);
+    u.steps[0].x += 2;
+    b.units = Some(u);
+    encode(&b)
+}
+
+fn unit_chain_cut(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let mut u = real_units(&b);
+    u.steps.pop();
+    b.units = Some(u);
+    encode(&b)
+}
+
+fn unit_one(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let mut u = real_units(&b);
+    u.steps.clear();
+    b.units = Some(u);
+    encode(&b)
+}
+
+fn regulator_halved(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let mut u = real_units(&b);
+    scale_bounds(&mut u.regulator, -1);
+    b.units = Some(u);
+    encode(&b)
+}
+
+fn unit_squared(b: &Body) -> Vec<u8> {
+    // ε²: one more step with β = 1 and a_{l+1} = O = O², regulator doubled
+    let mut b = b.clone();
+    let mut u = real_units(&b);
+    let last = u.steps.last().expect("a step").clone();
+    u.steps.push(classcert_format::CompactStep {
+        x: Integer::from(2),
+        y: Integer::new(),
+        s: Integer::from(1),
+        ..last
+    });
+    scale_bounds(&mut u.regulator, 1);
+    u.norm = 1;
+    b.units = Some(u);
+    encode(&b)
+}
+
+fn class_number_regulator_traded(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let mut u = real_units(&b);
+    scale_bounds(&mut u.regulator, -1);
+    b.units = Some(u);
+    b.claim.class_number *= 2;
+    encode(&b)
+}
+
+fn unit_norm_flipped(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let mut u = real_units(&b);
+    u.norm = -u.norm;
+    b.units = Some(u);
+    encode(&b)
+}
+
+fn combination_changed(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    for e in b.lattice.eliminations.iter_mut() {
+        if let classcert_format::Witness::Combination { terms } = &mut e.relation.witness {
+            if let Some(t) = terms.first_mut() {
+                t.1 += 1;
+                break;
+            }
+        }
+    }
+    encode(&b)
+}
+
+fn units_removed(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    b.units = None;
+    encode(&b)
+}
+
+fn form_reduction_for_real(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    b.lattice.relation_witness = classcert_format::Witness::FormReduction;
+    encode(&b)
+}
+
 // ---------------------------------------------------------------- catalogue
 
 macro_rules! forgery {
@@ -793,6 +915,105 @@ pub static CATALOGUE: &[Forgery] =
             false,
             "the format version replaced by CBOR null",
             format_value_null
+        ),
+        forgery!(
+            "real-alpha-changed",
+            "relation-witness-invalid",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: the x of a raw relation's element changed by 2",
+            alpha_changed
+        ),
+        forgery!(
+            "real-unit-step-changed",
+            "unit-chain-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: a forged unit: one β of the compact representation changed",
+            unit_step_changed
+        ),
+        forgery!(
+            "real-unit-chain-cut",
+            "unit-chain-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: not a unit: the compact representation stops before the order",
+            unit_chain_cut
+        ),
+        forgery!(
+            "real-unit-one",
+            "unit-trivial",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: the empty compact representation, ε = 1",
+            unit_one
+        ),
+        forgery!(
+            "real-regulator-halved",
+            "regulator-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: the regulator claimed twice too small",
+            regulator_halved
+        ),
+        forgery!(
+            "real-unit-squared",
+            "class-number-regulator-not-confirmed",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: the regulator twice too large, with ε² as the unit",
+            unit_squared
+        ),
+        forgery!(
+            "real-h-and-r-traded",
+            "class-number-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: h doubled and R halved, h R unchanged",
+            class_number_regulator_traded
+        ),
+        forgery!(
+            "real-unit-norm-flipped",
+            "unit-norm-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: the norm of ε negated",
+            unit_norm_flipped
+        ),
+        forgery!(
+            "real-combination-changed",
+            "combination-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: a coefficient of an elimination's combination changed by one",
+            combination_changed
+        ),
+        forgery!(
+            "real-units-removed",
+            "units-shape",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: the unit section removed",
+            units_removed
+        ),
+        forgery!(
+            "real-form-reduction",
+            "witness-kind",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: the rows of H claimed by form reduction",
+            form_reduction_for_real
         ),
     ];
 

@@ -3,13 +3,12 @@
 //! non-maximal orders, and forged certificates, each rejected with the
 //! reason code named beside it.
 
-use classcert_format::{Body, Witness};
 use classcert_prover::show::unit_coordinates;
-use classcert_tests::oracle;
 use classcert_tests::support::{
     encode, expect_verified, prove_and_verify, prove_body, read_published, rejection_code,
     vectors_dir, SplitMix,
 };
+use classcert_tests::{forge, oracle};
 use rug::Integer;
 
 /// The verified regulator as the JSON prints it, parsed.
@@ -217,133 +216,34 @@ fn non_maximal_real_orders() {
 
 // ---------------------------------------------------------------- forgeries
 
-fn code(body: &Body) -> Option<&'static str> {
-    rejection_code(&encode(body))
-}
-
-fn halve(b: &mut classcert_format::Bounds, by: i64) {
-    b.lo.exponent += by;
-    b.hi.exponent += by;
-}
-
 #[test]
 fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
-    // h = 2 and R = 146.76…, so the compact representation has two steps
-    let genuine = prove_body(999_997);
-    assert_eq!(code(&genuine), None, "the genuine certificate verifies");
-    let units = |b: &mut Body| b.units.as_mut().expect("D > 0 has units").clone();
-    let mut seen = std::collections::BTreeMap::new();
-    let mut expect = |what: &str, b: Body, want: &str| {
-        assert_eq!(code(&b), Some(want), "{what}");
-        seen.insert(want.to_string(), what.to_string());
-    };
-
-    // an α witness changed: (x + 2 + y sqrt D)/2 has another norm
-    let mut b = genuine.clone();
-    let raw = b.lattice.raw_relations.as_mut().unwrap();
-    let j = raw.iter().position(|r| !r.entries.is_empty()).unwrap();
-    let Witness::Element { x, .. } = &mut raw[j].witness else {
-        panic!("raw relations carry elements")
-    };
-    *x += 2;
-    expect("α witness changed", b, "relation-witness-invalid");
-
-    // a forged unit: one β of the compact representation changed
-    let mut b = genuine.clone();
-    let mut u = units(&mut b);
-    u.steps[0].x += 2;
-    b.units = Some(u);
-    expect("compact step changed", b, "unit-chain-mismatch");
-
-    // a power product that is not a unit: the chain stops before O
-    let mut b = genuine.clone();
-    let mut u = units(&mut b);
-    u.steps.pop();
-    b.units = Some(u);
-    expect("chain cut short", b, "unit-chain-mismatch");
-
-    // the empty product is 1, a unit of finite order
-    let mut b = genuine.clone();
-    let mut u = units(&mut b);
-    u.steps.clear();
-    b.units = Some(u);
-    expect("ε = 1", b, "unit-trivial");
-
-    // regulator claimed twice too small
-    let mut b = genuine.clone();
-    let mut u = units(&mut b);
-    halve(&mut u.regulator, -1);
-    b.units = Some(u);
-    expect("regulator halved", b, "regulator-mismatch");
-
-    // regulator twice too large, with a genuine unit to match: ε², one
-    // more step with β = 1 and a_{l+1} = O = O^2
-    let mut b = genuine.clone();
-    let mut u = units(&mut b);
-    let last = u.steps.last().unwrap().clone();
-    u.steps.push(classcert_format::CompactStep {
-        x: Integer::from(2),
-        y: Integer::new(),
-        s: Integer::from(1),
-        ..last
-    });
-    halve(&mut u.regulator, 1);
-    u.norm = 1;
-    b.units = Some(u);
-    expect(
-        "ε squared, regulator doubled",
-        b,
-        "class-number-regulator-not-confirmed",
+    // The forgeries of tests/src/forge.rs whose base is a real order, on a
+    // fresh proof (the stored copies are checked by tests/tests/vectors.rs).
+    let genuine = prove_body(forge::REAL);
+    assert_eq!(
+        rejection_code(&encode(&genuine)),
+        None,
+        "the genuine certificate verifies"
     );
-
-    // h and R traded: h doubled, R halved (h R unchanged)
-    let mut b = genuine.clone();
-    let mut u = units(&mut b);
-    halve(&mut u.regulator, -1);
-    b.units = Some(u);
-    b.claim.class_number *= 2;
-    expect("h doubled, R halved", b, "class-number-mismatch");
-
-    // the norm of ε flipped
-    let mut b = genuine.clone();
-    let mut u = units(&mut b);
-    u.norm = -u.norm;
-    b.units = Some(u);
-    expect("norm flipped", b, "unit-norm-mismatch");
-
-    // an elimination's combination changed
-    let mut b = genuine.clone();
-    let el = b
-        .lattice
-        .eliminations
-        .iter_mut()
-        .find(
-            |e| matches!(&e.relation.witness, Witness::Combination { terms } if !terms.is_empty()),
-        )
-        .unwrap();
-    if let Witness::Combination { terms } = &mut el.relation.witness {
-        terms[0].1 += 1;
+    let mut seen = std::collections::BTreeMap::new();
+    for f in forge::CATALOGUE.iter().filter(|f| f.base > 0) {
+        let got = rejection_code(&(f.apply)(&genuine));
+        assert_eq!(got, Some(f.code), "{}: {}", f.name, f.what);
+        seen.insert(f.code, f.name);
     }
-    expect("elimination combination changed", b, "combination-mismatch");
-
-    // the unit section removed
-    let mut b = genuine.clone();
-    b.units = None;
-    expect("units removed", b, "units-shape");
-
-    // form-reduction witnesses do not prove anything for D > 0
-    let mut b = genuine.clone();
-    b.lattice.relation_witness = Witness::FormReduction;
-    expect("form reduction for D > 0", b, "witness-kind");
-
-    // the issue's four cases have four distinct codes
-    for c in [
-        "relation-witness-invalid",
-        "unit-chain-mismatch",
-        "regulator-mismatch",
-        "class-number-regulator-not-confirmed",
-        "class-number-mismatch",
+    // issue 3's cases, each with its own code: a forged unit, the
+    // regulator twice too small and twice too large, an α changed, and
+    // h and R traded against each other
+    for (name, code) in [
+        ("real-unit-step-changed", "unit-chain-mismatch"),
+        ("real-unit-chain-cut", "unit-chain-mismatch"),
+        ("real-regulator-halved", "regulator-mismatch"),
+        ("real-unit-squared", "class-number-regulator-not-confirmed"),
+        ("real-alpha-changed", "relation-witness-invalid"),
+        ("real-h-and-r-traded", "class-number-mismatch"),
     ] {
-        assert!(seen.contains_key(c), "{c}");
+        assert_eq!(forge::find(name).code, code);
+        assert!(seen.contains_key(code), "{code}");
     }
 }

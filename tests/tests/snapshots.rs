@@ -4,7 +4,10 @@
 //! * D = -3299, Cl ≅ Z/3 × Z/9 — the standard example of a non-cyclic
 //!   class group (from memory; the oracle's brute force agrees, see
 //!   `tests/tests/vectors.rs`);
-//! * D = -300 = 10^2 · (-3), a non-maximal order (conductor 10).
+//! * D = -300 = 10^2 · (-3), a non-maximal order (conductor 10);
+//! * D = 316 = 4 · 79, a real quadratic field with Cl ≅ Z/3 and
+//!   fundamental unit 80 + 9 sqrt 79 of norm 1 (OEIS A349419, checked
+//!   against the stored entry; see `tests/tests/real.rs`).
 //!
 //! The snapshots come from the stored files, not fresh proofs, so prover
 //! changes do not move them; regenerating the golden files does (then run
@@ -50,8 +53,25 @@ fn minus_300_non_maximal() {
 }
 
 #[test]
+fn plus_316_real_with_unit() {
+    let text = show::text(&decode_file(&golden("plus-316.cert")).expect("decodes"));
+    assert!(
+        text.contains("80 + 9 w, w = sqrt 316/2, of norm 1"),
+        "{text}"
+    );
+    snapshot_all("plus_316", "plus-316.cert");
+}
+
+#[test]
 fn same_seed_gives_identical_bytes() {
-    for (d, seed) in [(-3299i64, 1u64), (-3299, 7), (-300, 1), (-1_000_003, 2)] {
+    for (d, seed) in [
+        (-3299i64, 1u64),
+        (-3299, 7),
+        (-300, 1),
+        (-1_000_003, 2),
+        (316, 1),
+        (999_997, 3),
+    ] {
         let opts = Options {
             seed,
             ..Options::default()

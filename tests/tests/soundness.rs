@@ -145,6 +145,17 @@ forgery_tests! {
     discriminant_3_mod_4 => "discriminant-3-mod-4",
     format_version_two => "format-version-two",
     format_value_null => "format-value-null",
+    real_alpha_changed => "real-alpha-changed",
+    real_unit_step_changed => "real-unit-step-changed",
+    real_unit_chain_cut => "real-unit-chain-cut",
+    real_unit_one => "real-unit-one",
+    real_regulator_halved => "real-regulator-halved",
+    real_unit_squared => "real-unit-squared",
+    real_h_and_r_traded => "real-h-and-r-traded",
+    real_unit_norm_flipped => "real-unit-norm-flipped",
+    real_combination_changed => "real-combination-changed",
+    real_units_removed => "real-units-removed",
+    real_form_reduction => "real-form-reduction",
 }
 
 /// The construction behind "class-number-doubled", with the true order:

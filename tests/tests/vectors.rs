@@ -18,11 +18,15 @@ use rug::Integer;
 use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 
-/// The discriminants of the golden certificates (all seed 1).
-const GOLDEN: &[i64] = &[-3, -4, -23, -27, -84, -300, -3299, -1_000_003];
+/// The discriminants of the golden certificates (all seed 1): imaginary
+/// and real, maximal and not (-27, -300, 20 = 2^2·5).
+const GOLDEN: &[i64] = &[
+    -3, -4, -23, -27, -84, -300, -3299, -1_000_003, 5, 20, 61, 316, 999_997,
+];
 
 fn golden_name(d: i64) -> String {
-    format!("minus-{}.cert", d.unsigned_abs())
+    let sign = if d < 0 { "minus" } else { "plus" };
+    format!("{sign}-{}.cert", d.unsigned_abs())
 }
 
 fn golden_dir() -> PathBuf {
@@ -115,12 +119,31 @@ fn golden_certificates_verify_and_state_the_true_group() {
     for &d in GOLDEN {
         let bytes = read(&golden_dir().join(golden_name(d)));
         let v = expect_verified(&verify_bytes(&bytes), &golden_name(d));
-        let truth = oracle::group_invariants_bruteforce(d);
-        assert_eq!(invariants_u64(&v), truth, "{}", golden_name(d));
-        assert_eq!(
-            v.class_number,
-            Integer::from(oracle::class_number_by_counting(d))
-        );
+        if d < 0 {
+            let truth = oracle::group_invariants_bruteforce(d);
+            assert_eq!(invariants_u64(&v), truth, "{}", golden_name(d));
+            assert_eq!(
+                v.class_number,
+                Integer::from(oracle::class_number_by_counting(d))
+            );
+        } else {
+            // the regulator of the order from its continued fraction
+            let r: f64 = v
+                .unit
+                .as_ref()
+                .expect("units")
+                .regulator_text()
+                .parse()
+                .unwrap();
+            let want = oracle::regulator_by_continued_fraction(d);
+            assert!((r - want).abs() < 1e-9 * want, "R({d})");
+            if oracle::is_fundamental(d) {
+                assert_eq!(
+                    v.class_number,
+                    Integer::from(oracle::class_number_real_finite_formula(d))
+                );
+            }
+        }
         assert_eq!(v.maximal, oracle::is_fundamental(d));
         assert!(rests_on_grh(&v));
         // The stored file is canonical: decoding and re-encoding is exact.

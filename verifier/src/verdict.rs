@@ -273,6 +273,20 @@ const NOT_PROVEN: &[&str] = &[
     "that the prover or this verifier is free of bugs: the verifier is small so that it can be reviewed",
 ];
 
+/// What a real order's verdict does not prove, beyond [`NOT_PROVEN`].
+const NOT_PROVEN_REAL: &[&str] = &[
+    "without GRH, that the unit is fundamental and R the regulator (only that it is a unit of infinite order)",
+    "without GRH, when the unit's norm is 1, that the order has no unit of norm -1",
+];
+
+fn not_proven(v: &Verified) -> Vec<&'static str> {
+    let mut out: Vec<&'static str> = NOT_PROVEN.to_vec();
+    if v.unit.is_some() {
+        out.extend_from_slice(NOT_PROVEN_REAL);
+    }
+    out
+}
+
 /// `Z/d_1 x Z/d_2 x …`, or `trivial`.
 pub fn invariants_text(inv: &[Integer]) -> String {
     if inv.is_empty() {
@@ -369,8 +383,10 @@ impl Report {
                 if let Some(u) = &v.unit {
                     s.push_str(&format!("  regulator     R = {}\n", u.regulator_text()));
                     s.push_str(&format!(
-                        "  unit          ε of norm {}, in compact representation of {} steps\n",
-                        u.norm, u.compact_length
+                        "  unit          ε of norm {}, in compact representation of {} step{}\n",
+                        u.norm,
+                        u.compact_length,
+                        if u.compact_length == 1 { "" } else { "s" }
                     ));
                     if u.norm < 0 {
                         s.push_str(
@@ -403,7 +419,7 @@ impl Report {
                     }
                 }
                 s.push_str("  not proven\n");
-                for n in NOT_PROVEN {
+                for n in not_proven(v) {
                     s.push_str(&format!("    - {n}\n"));
                 }
             }
@@ -474,7 +490,7 @@ impl Report {
                 ));
                 e.push((
                     "not_proven",
-                    Json::Arr(NOT_PROVEN.iter().map(|s| Json::str(*s)).collect()),
+                    Json::Arr(not_proven(v).into_iter().map(Json::str).collect()),
                 ));
             }
             Err(r) => {
