@@ -576,7 +576,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     };
     let max_relations = 60 * k + 2000;
     // how many essential relations may be spent on shrinking the echelon block
-    let dense_budget = 4 * k + 100;
+    let dense_budget = 6 * k + 100;
     let mut unit: Option<Vector> = None;
     let mut confirmed = false;
     let mut log_r = f64::INFINITY;
