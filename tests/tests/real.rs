@@ -247,3 +247,118 @@ fn forged_real_certificates_are_rejected_each_for_its_own_reason() {
         assert!(seen.contains_key(code), "{code}");
     }
 }
+
+#[test]
+fn bit_flips_in_a_real_certificate_never_verify_and_never_panic() {
+    let file = encode(&prove_body(61));
+    assert_eq!(rejection_code(&file), None);
+    let n = file.len();
+    for i in 0..n {
+        for bit in 0..8 {
+            let mut f = file.clone();
+            f[i] ^= 1 << bit;
+            let out = std::panic::catch_unwind(|| rejection_code(&f));
+            match out {
+                Err(_) => panic!("verifier panicked on byte {i} bit {bit}"),
+                Ok(None) => panic!("byte {i} bit {bit} flipped, yet verified"),
+                Ok(Some(_)) => {}
+            }
+        }
+    }
+}
+
+/// Random changes to the numbers that only real orders have, re-encoded
+/// with a correct digest: whatever still verifies must state the true
+/// class number and regulator (oracles), and nothing panics.
+#[test]
+fn random_changes_to_real_certificates_never_verify_a_false_claim() {
+    let d = forge::REAL;
+    let honest = prove_body(d);
+    let h_true = Integer::from(oracle::class_number_real_finite_formula(d));
+    let r_true = oracle::regulator_by_continued_fraction(d);
+    let mut rng = SplitMix::new(0x5eed_0004);
+    let mut rejected = 0;
+    for round in 0..300 {
+        let mut b = honest.clone();
+        let delta = Integer::from(match rng.range(0, 4) {
+            0 => 1,
+            1 => -1,
+            2 => 2,
+            _ => rng.range(3, 1000) as i64,
+        });
+        let raw = b.lattice.raw_relations.as_mut().unwrap();
+        let units = b.units.as_mut().unwrap();
+        let what = match rng.range(0, 7) {
+            0 => {
+                let j = rng.range(0, raw.len() as u64) as usize;
+                if let classcert_format::Witness::Element { x, y } = &mut raw[j].witness {
+                    if rng.range(0, 2) == 0 {
+                        *x += &delta;
+                    } else {
+                        *y += &delta;
+                    }
+                }
+                "element witness"
+            }
+            1 => {
+                let j = rng.range(0, raw.len() as u64) as usize;
+                if let Some(e) = raw[j].entries.first_mut() {
+                    e.1 += &delta;
+                }
+                "raw relation entry"
+            }
+            2 => {
+                let k = rng.range(0, b.lattice.eliminations.len() as u64) as usize;
+                if let classcert_format::Witness::Combination { terms } =
+                    &mut b.lattice.eliminations[k].relation.witness
+                {
+                    let t = rng.range(0, terms.len() as u64) as usize;
+                    terms[t].1 += &delta;
+                }
+                "combination coefficient"
+            }
+            3 => {
+                let t = rng.range(0, units.steps.len() as u64) as usize;
+                let s = &mut units.steps[t];
+                match rng.range(0, 5) {
+                    0 => s.a += &delta,
+                    1 => s.b += Integer::from(&delta * 2),
+                    2 => s.x += Integer::from(&delta * 2),
+                    3 => s.y += Integer::from(&delta * 2),
+                    _ => s.s += &delta,
+                }
+                "compact step"
+            }
+            4 => {
+                units.regulator.hi.mantissa += &delta;
+                "regulator bound"
+            }
+            5 => {
+                units.norm = -units.norm;
+                "unit norm"
+            }
+            _ => {
+                b.claim.class_number += &delta;
+                "class number"
+            }
+        };
+        if b == honest {
+            continue;
+        }
+        let bytes = encode(&b);
+        let out = std::panic::catch_unwind(|| classcert_verifier::verify_bytes(&bytes).outcome);
+        match out {
+            Err(_) => panic!("round {round}: verifier panicked after changing the {what}"),
+            Ok(Err(_)) => rejected += 1,
+            Ok(Ok(v)) => {
+                assert_eq!(v.class_number, h_true, "round {round}: changed {what}");
+                let r: f64 = v.unit.unwrap().regulator_text().parse().unwrap();
+                assert!((r - r_true).abs() < 1e-9 * r_true, "round {round}: {what}");
+            }
+        }
+    }
+    assert!(
+        rejected > 200,
+        "only {rejected} of 300 changes were rejected"
+    );
+}
