@@ -49,6 +49,20 @@ pub enum PrimalityEvidence {
     /// The Baillie–PSW test, which has no counterexample below 2^64; above
     /// that it is an assumption and the verdict lists it.
     Bpsw,
+    /// Pocklington's theorem on `N - 1 = F R` with `F = ∏ q^e` given: for
+    /// each listed `q`, `base^(N-1) ≡ 1` and `gcd(base^((N-1)/q) - 1, N) = 1`
+    /// (mod `N`); with `F² ≥ N` this proves `N` prime. Each `q` carries its
+    /// own evidence.
+    Pocklington { factors: Vec<PocklingtonFactor> },
+}
+
+/// One prime power `q^e` of the factored part of `N - 1`.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PocklingtonFactor {
+    pub q: Integer,
+    pub e: u32,
+    pub base: Integer,
+    pub evidence: Box<PrimalityEvidence>,
 }
 
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -286,6 +300,31 @@ fn relation(r: &Relation) -> Value {
     cbor::map(vec![("e", sparse(&r.entries)), ("w", witness(&r.witness))])
 }
 
+fn evidence(e: &PrimalityEvidence) -> Value {
+    match e {
+        PrimalityEvidence::Bpsw => cbor::map(vec![("kind", Value::Text("bpsw".into()))]),
+        PrimalityEvidence::Pocklington { factors } => cbor::map(vec![
+            ("kind", Value::Text("pocklington".into())),
+            (
+                "factors",
+                Value::Array(
+                    factors
+                        .iter()
+                        .map(|f| {
+                            Value::Array(vec![
+                                cbor::int(&f.q),
+                                cbor::uint(u64::from(f.e)),
+                                cbor::int(&f.base),
+                                evidence(&f.evidence),
+                            ])
+                        })
+                        .collect(),
+                ),
+            ),
+        ]),
+    }
+}
+
 fn form(f: &Form) -> Value {
     Value::Array(vec![cbor::int(&f.a), cbor::int(&f.b), cbor::int(&f.c)])
 }
@@ -333,14 +372,10 @@ impl Body {
             Some(f) => Value::Array(
                 f.iter()
                     .map(|pp| {
-                        let PrimalityEvidence::Bpsw = pp.evidence;
                         cbor::map(vec![
                             ("p", cbor::int(&pp.prime)),
                             ("e", cbor::uint(u64::from(pp.exponent))),
-                            (
-                                "evidence",
-                                cbor::map(vec![("kind", Value::Text("bpsw".into()))]),
-                            ),
+                            ("evidence", evidence(&pp.evidence)),
                         ])
                     })
                     .collect(),
@@ -562,6 +597,31 @@ fn get_relation(v: &Value, what: &str) -> Result<Relation, DecodeError> {
     Ok(Relation { entries, witness })
 }
 
+fn get_evidence(v: &Value) -> Result<PrimalityEvidence, DecodeError> {
+    let what = "primality evidence";
+    let (kind, mut m) = get_kind(v, what)?;
+    let e = match kind.as_str() {
+        "bpsw" => PrimalityEvidence::Bpsw,
+        "pocklington" => PrimalityEvidence::Pocklington {
+            factors: cbor::get_array(m.req("factors")?, what)?
+                .iter()
+                .map(|f| match cbor::get_array(f, what)? {
+                    [q, e, base, ev] => Ok(PocklingtonFactor {
+                        q: cbor::get_int(q, what)?,
+                        e: get_u32(e, what)?,
+                        base: cbor::get_int(base, what)?,
+                        evidence: Box::new(get_evidence(ev)?),
+                    }),
+                    _ => Err(cbor::schema(what, "[q, e, base, evidence]")),
+                })
+                .collect::<Result<Vec<_>, DecodeError>>()?,
+        },
+        _ => return Err(DecodeError::Schema(format!("unknown evidence {kind:?}"))),
+    };
+    m.finish()?;
+    Ok(e)
+}
+
 fn get_form(v: &Value, what: &str) -> Result<Form, DecodeError> {
     match cbor::get_array(v, what)? {
         [a, b, c] => Ok(Form {
@@ -637,16 +697,7 @@ impl Body {
                         let mut m = MapReader::new(x, "maximality[]")?;
                         let prime = cbor::get_int(m.req("p")?, "maximality.p")?;
                         let exponent = get_u32(m.req("e")?, "maximality.e")?;
-                        let (kind, ev) = get_kind(m.req("evidence")?, "maximality.evidence")?;
-                        let evidence = match kind.as_str() {
-                            "bpsw" => PrimalityEvidence::Bpsw,
-                            _ => {
-                                return Err(DecodeError::Schema(format!(
-                                    "unknown evidence {kind:?}"
-                                )))
-                            }
-                        };
-                        ev.finish()?;
+                        let evidence = get_evidence(m.req("evidence")?)?;
                         m.finish()?;
                         Ok(PrimePower {
                             prime,

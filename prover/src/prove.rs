@@ -165,9 +165,9 @@ pub(crate) fn maximality(
     Ok(Some(
         fac.into_iter()
             .map(|(prime, exponent)| PrimePower {
+                evidence: factor::primality_evidence(&prime, opts.factor_budget),
                 prime,
                 exponent,
-                evidence: PrimalityEvidence::Bpsw,
             })
             .collect(),
     ))

@@ -27,6 +27,10 @@ pub const NONMAXIMAL: i64 = -300;
 /// A real quadratic field: h = 2, R = 146.758…, so the unit's compact
 /// representation has two steps.
 pub const REAL: i64 = 999_997;
+/// D = -4p with p = 4294967357, the first prime ≡ 1 (mod 4) above 2^32: the
+/// maximality claim carries a Pocklington proof for p (p - 1 = 4 ·
+/// 1073741839).
+pub const PRIME_PROOF: i64 = -17_179_869_428;
 
 /// What a forgery damages.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -615,6 +619,53 @@ fn form_reduction_for_real(b: &Body) -> Vec<u8> {
     encode(&b)
 }
 
+// ---------------------------------------------------------------- primality proofs
+
+/// The Pocklington proof of the largest prime factor of |D|.
+fn proof_mut(b: &mut Body) -> &mut Vec<classcert_format::PocklingtonFactor> {
+    let m = b.maximality.as_mut().expect("maximality is claimed");
+    let last = m.last_mut().expect("a factor");
+    match &mut last.evidence {
+        classcert_format::PrimalityEvidence::Pocklington { factors } => factors,
+        _ => panic!("the largest factor carries a Pocklington proof"),
+    }
+}
+
+fn pocklington_base_square(b: &Body) -> Vec<u8> {
+    // 4 is a square, so 4^((p-1)/2) = 1 and the gcd is p
+    let mut b = b.clone();
+    proof_mut(&mut b)[0].base = Integer::from(4);
+    encode(&b)
+}
+
+fn pocklington_factor_dropped(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    proof_mut(&mut b).pop();
+    encode(&b)
+}
+
+fn pocklington_exponent(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    proof_mut(&mut b)[0].e += 1;
+    encode(&b)
+}
+
+fn pocklington_q_changed(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    if let Some(f) = proof_mut(&mut b).last_mut() {
+        f.q += 2;
+    }
+    encode(&b)
+}
+
+fn pocklington_sub_proof(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    if let Some(f) = proof_mut(&mut b).last_mut() {
+        *f.evidence = classcert_format::PrimalityEvidence::Pocklington { factors: vec![] };
+    }
+    encode(&b)
+}
+
 // ---------------------------------------------------------------- catalogue
 
 macro_rules! forgery {
@@ -1014,6 +1065,51 @@ pub static CATALOGUE: &[Forgery] =
             false,
             "D > 0: the rows of H claimed by form reduction",
             form_reduction_for_real
+        ),
+        forgery!(
+            "pocklington-base-square",
+            "primality-proof-invalid",
+            PRIME_PROOF,
+            Mathematics,
+            false,
+            "Pocklington proof: the base for q = 2 replaced by the square 4",
+            pocklington_base_square
+        ),
+        forgery!(
+            "pocklington-factor-dropped",
+            "primality-proof-invalid",
+            PRIME_PROOF,
+            Mathematics,
+            false,
+            "Pocklington proof: the largest q dropped, so F^2 < N",
+            pocklington_factor_dropped
+        ),
+        forgery!(
+            "pocklington-exponent",
+            "primality-proof-invalid",
+            PRIME_PROOF,
+            Mathematics,
+            false,
+            "Pocklington proof: the exponent of q = 2 raised, so F does not divide N - 1",
+            pocklington_exponent
+        ),
+        forgery!(
+            "pocklington-q-changed",
+            "primality-proof-invalid",
+            PRIME_PROOF,
+            Mathematics,
+            false,
+            "Pocklington proof: the largest q changed by 2",
+            pocklington_q_changed
+        ),
+        forgery!(
+            "pocklington-sub-proof",
+            "primality-proof-invalid",
+            PRIME_PROOF,
+            Mathematics,
+            false,
+            "Pocklington proof: the largest q's own proof replaced by an empty one",
+            pocklington_sub_proof
         ),
     ];
 

@@ -147,7 +147,13 @@ fn schema_parses() {
 #[test]
 fn golden_certificates_match_the_schema() {
     let mut bignums = 0;
-    for (d, maximal) in [(-3299, true), (-3299 * 4, false), (-3, true)] {
+    // -17179869428 = -4 · 4294967357 carries a Pocklington proof
+    for (d, maximal) in [
+        (-3299, true),
+        (-3299 * 4, false),
+        (-3, true),
+        (-17_179_869_428, true),
+    ] {
         let bytes = certificate(d);
         let decoded = classcert_format::decode_file(&bytes).expect("the prover's file decodes");
         assert_eq!(

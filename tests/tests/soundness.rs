@@ -156,6 +156,11 @@ forgery_tests! {
     real_combination_changed => "real-combination-changed",
     real_units_removed => "real-units-removed",
     real_form_reduction => "real-form-reduction",
+    pocklington_base_square => "pocklington-base-square",
+    pocklington_factor_dropped => "pocklington-factor-dropped",
+    pocklington_exponent => "pocklington-exponent",
+    pocklington_q_changed => "pocklington-q-changed",
+    pocklington_sub_proof => "pocklington-sub-proof",
 }
 
 /// The construction behind "class-number-doubled", with the true order:

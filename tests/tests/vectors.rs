@@ -21,8 +21,24 @@ use std::path::{Path, PathBuf};
 /// The discriminants of the golden certificates (all seed 1): imaginary
 /// and real, maximal and not (-27, -300, 20 = 2^2·5).
 const GOLDEN: &[i64] = &[
-    -3, -4, -23, -27, -84, -300, -3299, -1_000_003, 5, 20, 61, 316, 999_997,
+    -3,
+    -4,
+    -23,
+    -27,
+    -84,
+    -300,
+    -3299,
+    -1_000_003,
+    forge::PRIME_PROOF,
+    5,
+    20,
+    61,
+    316,
+    999_997,
 ];
+
+/// Below this |D| the oracles' brute force states the group.
+const ORACLE_LIMIT: i64 = 10_000_000;
 
 fn golden_name(d: i64) -> String {
     let sign = if d < 0 { "minus" } else { "plus" };
@@ -119,7 +135,10 @@ fn golden_certificates_verify_and_state_the_true_group() {
     for &d in GOLDEN {
         let bytes = read(&golden_dir().join(golden_name(d)));
         let v = expect_verified(&verify_bytes(&bytes), &golden_name(d));
-        if d < 0 {
+        if d < 0 && d.abs() > ORACLE_LIMIT {
+            // too large for the brute force; its group is re-derived by a
+            // fresh proof in golden_groups_match_a_fresh_proof
+        } else if d < 0 {
             let truth = oracle::group_invariants_bruteforce(d);
             assert_eq!(invariants_u64(&v), truth, "{}", golden_name(d));
             assert_eq!(

@@ -14,7 +14,7 @@ use crate::euler;
 use crate::form::Form;
 use crate::interval::Interval;
 use crate::limits::*;
-use crate::primality::{primality_evidence, Evidence};
+use crate::pocklington::{self, ProofError, Status, Used};
 use crate::registry::{self, Theorem};
 use crate::verdict::{reject, Assumption, GeneratorView, Reason, Rejection, UnitSummary, Verified};
 use classcert_format::{Body, Order, PrimeIdeal, Relation, Witness};
@@ -40,6 +40,8 @@ struct ConductorOk {
     conductor: Vec<(u64, u32)>,
     maximal: bool,
     bpsw_assumed: bool,
+    /// A Pocklington proof was checked.
+    pocklington: bool,
 }
 
 /// Step 1: the factor base holds an invertible prime ideal above every
@@ -133,6 +135,7 @@ fn check_conductor_and_maximality(
     }
     let mut maximal = false;
     let mut bpsw_assumed = false;
+    let mut used = Used::default();
     if let Some(factors) = &body.maximality {
         if factors.len() > MAX_FACTORS {
             return reject(
@@ -143,6 +146,7 @@ fn check_conductor_and_maximality(
         let mut product = Integer::from(1);
         let mut prev = Integer::new();
         let mut two_exp = 0u32;
+        let mut work = MAX_PROOF_POWERS;
         let mut squarefree_odd = true;
         for f in factors {
             if f.prime <= prev || f.exponent == 0 || f.exponent > MAX_DISCRIMINANT_BITS {
@@ -154,15 +158,27 @@ fn check_conductor_and_maximality(
             if f.prime.significant_bits() > MAX_DISCRIMINANT_BITS {
                 return reject(Reason::OverLimit, "a factor is too large");
             }
-            match primality_evidence(&f.prime) {
-                Evidence::Composite => {
+            match pocklington::check(&f.prime, &f.evidence, 0, &mut work, &mut used) {
+                Err(ProofError::Composite(q)) => {
                     return reject(
                         Reason::MaximalityFactorisation,
-                        format!("{} is not prime (it fails the BPSW test)", f.prime),
+                        format!("{q} is not prime (it fails the BPSW test)"),
                     )
                 }
-                Evidence::ProvenPrime => {}
-                Evidence::ProbablePrime => bpsw_assumed = true,
+                Err(ProofError::Invalid(why)) => {
+                    return reject(
+                        Reason::PrimalityProofInvalid,
+                        format!("the primality proof of {} fails: {why}", f.prime),
+                    )
+                }
+                Err(ProofError::OverLimit) => {
+                    return reject(
+                        Reason::OverLimit,
+                        "a primality proof is too deep or too long",
+                    )
+                }
+                Ok(Status::Proven) => {}
+                Ok(Status::AssumedBpsw) => bpsw_assumed = true,
             }
             if f.prime == 2 {
                 two_exp = f.exponent;
@@ -209,6 +225,7 @@ fn check_conductor_and_maximality(
         conductor,
         maximal,
         bpsw_assumed,
+        pocklington: used.pocklington,
     })
 }
 
@@ -1100,6 +1117,11 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
     }
     if cond.maximal {
         if let Some(t) = registry::lookup(registry::BPSW_SMALL) {
+            theorems.push(t);
+        }
+    }
+    if cond.pocklington {
+        if let Some(t) = registry::lookup(registry::POCKLINGTON) {
             theorems.push(t);
         }
     }

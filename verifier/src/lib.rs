@@ -34,6 +34,7 @@ pub mod euler;
 pub mod form;
 pub mod interval;
 pub mod limits;
+pub mod pocklington;
 pub mod primality;
 pub mod registry;
 pub mod verdict;

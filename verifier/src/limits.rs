@@ -28,3 +28,9 @@ pub const MAX_RAW_RELATIONS: usize = 2_000_000;
 pub const MAX_COMBINATION_WORK: u64 = 200_000_000;
 /// Steps of a unit's compact representation (about log2 of the regulator).
 pub const MAX_COMPACT_STEPS: usize = 4096;
+/// Depth of a primality proof tree.
+pub const MAX_PROOF_DEPTH: u32 = 64;
+/// Prime factors listed in one Pocklington step.
+pub const MAX_PROOF_FACTORS: usize = 4096;
+/// Modular exponentiations all primality proofs of a certificate may cost.
+pub const MAX_PROOF_POWERS: u64 = 100_000;

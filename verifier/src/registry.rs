@@ -42,6 +42,7 @@ pub const BPSW_SMALL: &str = "bpsw-below-2^64";
 pub const CLASS_NUMBER_FORMULA_REAL: &str = "class-number-formula-real-orders";
 pub const ELEMENT_RELATIONS: &str = "element-relations";
 pub const UNIT_INDEX: &str = "unit-index";
+pub const POCKLINGTON: &str = "pocklington-1914";
 
 /// Safety factor applied to the Belabas–Friedman error term until its
 /// constants are checked against the paper itself (see that entry's note).
@@ -109,6 +110,13 @@ pub static REGISTRY: &[Theorem] = &[
         citation: "J. Buchmann, C. Thiel and H. C. Williams, \"Short representation of quadratic integers\" (1995), compact representations; Dirichlet's unit theorem for real quadratic orders, O^* = <-1, eps_0> (common practice)",
         hypothesis: Hypothesis::None,
         statement: "if beta_j a_j = a_{j-1}^2 for j = 1..l with a_0 = a_l = O, then eps = prod beta_j^(2^(l-j)) is a unit; if |log|eps|| > 0 then |log|eps|| = [O^* : <-1, eps>] R",
+        note: "",
+    },
+    Theorem {
+        id: POCKLINGTON,
+        citation: "H. C. Pocklington, Proc. Cambridge Phil. Soc. 18 (1914); J. Brillhart, D. H. Lehmer and J. L. Selfridge, \"New primality criteria and factorizations of 2^m +- 1\", Math. Comp. 29 (1975)",
+        hypothesis: Hypothesis::None,
+        statement: "if N - 1 = F R with F = prod q^e, q prime, and for each q some a has a^(N-1) = 1 and gcd(a^((N-1)/q) - 1, N) = 1 (mod N), then every prime factor of N is 1 mod F; if F^2 >= N, N is prime",
         note: "",
     },
 ];

@@ -54,6 +54,7 @@ pub enum Reason {
     RegulatorImprecise,
     UnitNormMismatch,
     ClassNumberRegulatorNotConfirmed,
+    PrimalityProofInvalid,
 }
 
 impl Reason {
@@ -104,6 +105,7 @@ impl Reason {
             RegulatorImprecise => "regulator-imprecise",
             UnitNormMismatch => "unit-norm-mismatch",
             ClassNumberRegulatorNotConfirmed => "class-number-regulator-not-confirmed",
+            PrimalityProofInvalid => "primality-proof-invalid",
         }
     }
 }
