@@ -54,6 +54,24 @@ pub enum PrimalityEvidence {
     /// (mod `N`); with `F² ≥ N` this proves `N` prime. Each `q` carries its
     /// own evidence.
     Pocklington { factors: Vec<PocklingtonFactor> },
+    /// Morrison's `N + 1` theorem with the Lucas sequence `U_k(P, Q)`:
+    /// `N + 1 = F R` with `F = ∏ q^e` given, `((P² - 4Q)/N) = -1`,
+    /// `gcd(Q, N) = 1`, `N | U_{N+1}` and `gcd(U_{(N+1)/q}, N) = 1` for
+    /// each `q`; with `(F - 1)² > N` this proves `N` prime. Each `q`
+    /// carries its own evidence.
+    Morrison {
+        lucas_p: Integer,
+        lucas_q: Integer,
+        factors: Vec<MorrisonFactor>,
+    },
+}
+
+/// One prime power `q^e` of the factored part of `N + 1`.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct MorrisonFactor {
+    pub q: Integer,
+    pub e: u32,
+    pub evidence: Box<PrimalityEvidence>,
 }
 
 /// One prime power `q^e` of the factored part of `N - 1`.
@@ -315,6 +333,30 @@ fn evidence(e: &PrimalityEvidence) -> Value {
                                 cbor::int(&f.q),
                                 cbor::uint(u64::from(f.e)),
                                 cbor::int(&f.base),
+                                evidence(&f.evidence),
+                            ])
+                        })
+                        .collect(),
+                ),
+            ),
+        ]),
+        PrimalityEvidence::Morrison {
+            lucas_p,
+            lucas_q,
+            factors,
+        } => cbor::map(vec![
+            ("kind", Value::Text("morrison".into())),
+            ("lucas-p", cbor::int(lucas_p)),
+            ("lucas-q", cbor::int(lucas_q)),
+            (
+                "factors",
+                Value::Array(
+                    factors
+                        .iter()
+                        .map(|f| {
+                            Value::Array(vec![
+                                cbor::int(&f.q),
+                                cbor::uint(u64::from(f.e)),
                                 evidence(&f.evidence),
                             ])
                         })
@@ -613,6 +655,21 @@ fn get_evidence(v: &Value) -> Result<PrimalityEvidence, DecodeError> {
                         evidence: Box::new(get_evidence(ev)?),
                     }),
                     _ => Err(cbor::schema(what, "[q, e, base, evidence]")),
+                })
+                .collect::<Result<Vec<_>, DecodeError>>()?,
+        },
+        "morrison" => PrimalityEvidence::Morrison {
+            lucas_p: cbor::get_int(m.req("lucas-p")?, what)?,
+            lucas_q: cbor::get_int(m.req("lucas-q")?, what)?,
+            factors: cbor::get_array(m.req("factors")?, what)?
+                .iter()
+                .map(|f| match cbor::get_array(f, what)? {
+                    [q, e, ev] => Ok(MorrisonFactor {
+                        q: cbor::get_int(q, what)?,
+                        e: get_u32(e, what)?,
+                        evidence: Box::new(get_evidence(ev)?),
+                    }),
+                    _ => Err(cbor::schema(what, "[q, e, evidence]")),
                 })
                 .collect::<Result<Vec<_>, DecodeError>>()?,
         },

@@ -27,10 +27,15 @@ pub const NONMAXIMAL: i64 = -300;
 /// A real quadratic field: h = 2, R = 146.758…, so the unit's compact
 /// representation has two steps.
 pub const REAL: i64 = 999_997;
-/// D = -4p with p = 4294967357, the first prime ≡ 1 (mod 4) above 2^32: the
-/// maximality claim carries a Pocklington proof for p (p - 1 = 4 ·
-/// 1073741839).
-pub const PRIME_PROOF: i64 = -17_179_869_428;
+/// D = -4p with p = 11647055677 = 4 · 3 · 83 · 157 · 211 · 353 + 1 (prime;
+/// the factors are our own choice, and (p + 1)/2 is prime so the N + 1
+/// side does not factor): the maximality claim carries a Pocklington
+/// proof for p.
+pub const PRIME_PROOF: i64 = -46_588_222_708;
+/// D = -p with p = 18544966547 = 4 · 3 · 79 · 151 · 353 · 367 - 1 (prime;
+/// the factors are our own choice): the maximality claim carries
+/// Morrison's N + 1 proof for p.
+pub const MORRISON_PROOF: i64 = -18_544_966_547;
 
 /// What a forgery damages.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -638,9 +643,9 @@ fn pocklington_base_square(b: &Body) -> Vec<u8> {
     encode(&b)
 }
 
-fn pocklington_factor_dropped(b: &Body) -> Vec<u8> {
+fn pocklington_factors_truncated(b: &Body) -> Vec<u8> {
     let mut b = b.clone();
-    proof_mut(&mut b).pop();
+    proof_mut(&mut b).truncate(2);
     encode(&b)
 }
 
@@ -661,6 +666,75 @@ fn pocklington_q_changed(b: &Body) -> Vec<u8> {
 fn pocklington_sub_proof(b: &Body) -> Vec<u8> {
     let mut b = b.clone();
     if let Some(f) = proof_mut(&mut b).last_mut() {
+        *f.evidence = classcert_format::PrimalityEvidence::Pocklington { factors: vec![] };
+    }
+    encode(&b)
+}
+
+/// The Morrison proof of the largest prime factor of |D|.
+fn morrison_mut(
+    b: &mut Body,
+) -> (
+    &mut Integer,
+    &mut Integer,
+    &mut Vec<classcert_format::MorrisonFactor>,
+) {
+    let m = b.maximality.as_mut().expect("maximality is claimed");
+    let last = m.last_mut().expect("a factor");
+    match &mut last.evidence {
+        classcert_format::PrimalityEvidence::Morrison {
+            lucas_p,
+            lucas_q,
+            factors,
+        } => (lucas_p, lucas_q, factors),
+        _ => panic!("the largest factor carries a Morrison proof"),
+    }
+}
+
+fn morrison_square_discriminant(b: &Body) -> Vec<u8> {
+    // P = 3, Q = 2: P^2 - 4Q = 1 is a square, so (Δ/N) = 1
+    let mut b = b.clone();
+    let (p, q, _) = morrison_mut(&mut b);
+    *p = Integer::from(3);
+    *q = Integer::from(2);
+    encode(&b)
+}
+
+fn morrison_q_shares_n(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let n = b
+        .maximality
+        .as_ref()
+        .and_then(|m| m.last())
+        .map(|f| f.prime.clone());
+    let (_, q, _) = morrison_mut(&mut b);
+    *q = n.expect("a prime");
+    encode(&b)
+}
+
+fn morrison_factors_truncated(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    morrison_mut(&mut b).2.truncate(2);
+    encode(&b)
+}
+
+fn morrison_exponent(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    morrison_mut(&mut b).2[0].e += 1;
+    encode(&b)
+}
+
+fn morrison_q_changed(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    if let Some(f) = morrison_mut(&mut b).2.last_mut() {
+        f.q += 2;
+    }
+    encode(&b)
+}
+
+fn morrison_sub_proof(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    if let Some(f) = morrison_mut(&mut b).2.last_mut() {
         *f.evidence = classcert_format::PrimalityEvidence::Pocklington { factors: vec![] };
     }
     encode(&b)
@@ -1076,13 +1150,13 @@ pub static CATALOGUE: &[Forgery] =
             pocklington_base_square
         ),
         forgery!(
-            "pocklington-factor-dropped",
+            "pocklington-factors-truncated",
             "primality-proof-invalid",
             PRIME_PROOF,
             Mathematics,
             false,
-            "Pocklington proof: the largest q dropped, so F^2 < N",
-            pocklington_factor_dropped
+            "Pocklington proof: only 2^2 and 3 kept, so F^2 < N",
+            pocklington_factors_truncated
         ),
         forgery!(
             "pocklington-exponent",
@@ -1110,6 +1184,60 @@ pub static CATALOGUE: &[Forgery] =
             false,
             "Pocklington proof: the largest q's own proof replaced by an empty one",
             pocklington_sub_proof
+        ),
+        forgery!(
+            "morrison-square-discriminant",
+            "primality-proof-invalid",
+            MORRISON_PROOF,
+            Mathematics,
+            false,
+            "Morrison proof: P = 3, Q = 2, whose discriminant 1 is a square",
+            morrison_square_discriminant
+        ),
+        forgery!(
+            "morrison-q-shares-n",
+            "primality-proof-invalid",
+            MORRISON_PROOF,
+            Mathematics,
+            false,
+            "Morrison proof: Q replaced by N itself",
+            morrison_q_shares_n
+        ),
+        forgery!(
+            "morrison-factors-truncated",
+            "primality-proof-invalid",
+            MORRISON_PROOF,
+            Mathematics,
+            false,
+            "Morrison proof: only 2^2 and 3 kept, so (F - 1)^2 <= N",
+            morrison_factors_truncated
+        ),
+        forgery!(
+            "morrison-exponent",
+            "primality-proof-invalid",
+            MORRISON_PROOF,
+            Mathematics,
+            false,
+            "Morrison proof: the exponent of 2 raised, so F does not divide N + 1",
+            morrison_exponent
+        ),
+        forgery!(
+            "morrison-q-changed",
+            "primality-proof-invalid",
+            MORRISON_PROOF,
+            Mathematics,
+            false,
+            "Morrison proof: the largest q changed by 2",
+            morrison_q_changed
+        ),
+        forgery!(
+            "morrison-sub-proof",
+            "primality-proof-invalid",
+            MORRISON_PROOF,
+            Mathematics,
+            false,
+            "Morrison proof: the largest q's own proof replaced by an empty one",
+            morrison_sub_proof
         ),
     ];
 

@@ -147,12 +147,14 @@ fn schema_parses() {
 #[test]
 fn golden_certificates_match_the_schema() {
     let mut bignums = 0;
-    // -17179869428 = -4 · 4294967357 carries a Pocklington proof
+    // -46588222708 = -4 · 11647055677 carries a Pocklington proof,
+    // -18544966547 a Morrison proof
     for (d, maximal) in [
         (-3299, true),
         (-3299 * 4, false),
         (-3, true),
-        (-17_179_869_428, true),
+        (-46_588_222_708, true),
+        (-18_544_966_547, true),
     ] {
         let bytes = certificate(d);
         let decoded = classcert_format::decode_file(&bytes).expect("the prover's file decodes");

@@ -7,7 +7,7 @@
 use classcert_format::PrimalityEvidence;
 use classcert_prover::factor::primality_evidence;
 use classcert_tests::support::{is_prime_u64, SplitMix};
-use classcert_verifier::pocklington::{check, ProofError, Status, Used};
+use classcert_verifier::proofs::{check, ProofError, Status, Used};
 use rug::integer::IsPrime;
 use rug::Integer;
 
@@ -91,5 +91,47 @@ fn carmichael_number_is_refused() {
                 .collect(),
         };
         assert!(verify(&n, &ev).is_err(), "base {a}");
+    }
+}
+
+/// A prime N = 4 · ∏ ℓ_i - 1 >= 2^bits with small random primes ℓ_i (our
+/// own choice, in the style of the primes of isogeny-based parameters).
+fn plus_one_smooth_prime(rng: &mut SplitMix, bits: u32) -> Integer {
+    loop {
+        let mut n = Integer::from(4);
+        while n.significant_bits() < bits {
+            let l = loop {
+                let l = rng.range(3, 2000);
+                if is_prime_u64(l) {
+                    break l;
+                }
+            };
+            n *= l;
+        }
+        n -= 1;
+        if n.is_probably_prime(40) != IsPrime::No {
+            return n;
+        }
+    }
+}
+
+#[test]
+fn primes_of_the_form_4_prod_l_minus_1_get_morrison_proofs() {
+    let mut rng = SplitMix::new(0x5eed_0007);
+    for bits in [64, 300, 512] {
+        let n = plus_one_smooth_prime(&mut rng, bits);
+        assert!(n.significant_bits() >= bits);
+        let ev = primality_evidence(&n, 3_000_000);
+        let PrimalityEvidence::Morrison { factors, .. } = &ev else {
+            panic!("{n}: expected an N + 1 proof, got {ev:?}");
+        };
+        assert_eq!(verify(&n, &ev), Ok(Status::Proven), "{bits} bits: {n}");
+        // the same factors with a square discriminant (P = 3, Q = 2) fail
+        let bad = PrimalityEvidence::Morrison {
+            lucas_p: Integer::from(3),
+            lucas_q: Integer::from(2),
+            factors: factors.clone(),
+        };
+        assert!(matches!(verify(&n, &bad), Err(ProofError::Invalid(_))));
     }
 }

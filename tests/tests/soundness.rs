@@ -157,10 +157,16 @@ forgery_tests! {
     real_units_removed => "real-units-removed",
     real_form_reduction => "real-form-reduction",
     pocklington_base_square => "pocklington-base-square",
-    pocklington_factor_dropped => "pocklington-factor-dropped",
+    pocklington_factors_truncated => "pocklington-factors-truncated",
     pocklington_exponent => "pocklington-exponent",
     pocklington_q_changed => "pocklington-q-changed",
     pocklington_sub_proof => "pocklington-sub-proof",
+    morrison_square_discriminant => "morrison-square-discriminant",
+    morrison_q_shares_n => "morrison-q-shares-n",
+    morrison_factors_truncated => "morrison-factors-truncated",
+    morrison_exponent => "morrison-exponent",
+    morrison_q_changed => "morrison-q-changed",
+    morrison_sub_proof => "morrison-sub-proof",
 }
 
 /// The construction behind "class-number-doubled", with the true order:

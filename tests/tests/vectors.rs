@@ -30,6 +30,7 @@ const GOLDEN: &[i64] = &[
     -3299,
     -1_000_003,
     forge::PRIME_PROOF,
+    forge::MORRISON_PROOF,
     5,
     20,
     61,

@@ -14,7 +14,7 @@ use crate::euler;
 use crate::form::Form;
 use crate::interval::Interval;
 use crate::limits::*;
-use crate::pocklington::{self, ProofError, Status, Used};
+use crate::proofs::{self, ProofError, Status, Used};
 use crate::registry::{self, Theorem};
 use crate::verdict::{reject, Assumption, GeneratorView, Reason, Rejection, UnitSummary, Verified};
 use classcert_format::{Body, Order, PrimeIdeal, Relation, Witness};
@@ -40,8 +40,8 @@ struct ConductorOk {
     conductor: Vec<(u64, u32)>,
     maximal: bool,
     bpsw_assumed: bool,
-    /// A Pocklington proof was checked.
-    pocklington: bool,
+    /// Primality proofs that were checked.
+    proofs: Used,
 }
 
 /// Step 1: the factor base holds an invertible prime ideal above every
@@ -158,7 +158,7 @@ fn check_conductor_and_maximality(
             if f.prime.significant_bits() > MAX_DISCRIMINANT_BITS {
                 return reject(Reason::OverLimit, "a factor is too large");
             }
-            match pocklington::check(&f.prime, &f.evidence, 0, &mut work, &mut used) {
+            match proofs::check(&f.prime, &f.evidence, 0, &mut work, &mut used) {
                 Err(ProofError::Composite(q)) => {
                     return reject(
                         Reason::MaximalityFactorisation,
@@ -225,7 +225,7 @@ fn check_conductor_and_maximality(
         conductor,
         maximal,
         bpsw_assumed,
-        pocklington: used.pocklington,
+        proofs: used,
     })
 }
 
@@ -1120,8 +1120,11 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
             theorems.push(t);
         }
     }
-    if cond.pocklington {
-        if let Some(t) = registry::lookup(registry::POCKLINGTON) {
+    for (used, id) in [
+        (cond.proofs.pocklington, registry::POCKLINGTON),
+        (cond.proofs.morrison, registry::MORRISON),
+    ] {
+        if let (true, Some(t)) = (used, registry::lookup(id)) {
             theorems.push(t);
         }
     }

@@ -34,8 +34,8 @@ pub mod euler;
 pub mod form;
 pub mod interval;
 pub mod limits;
-pub mod pocklington;
 pub mod primality;
+pub mod proofs;
 pub mod registry;
 pub mod verdict;
 

@@ -43,6 +43,7 @@ pub const CLASS_NUMBER_FORMULA_REAL: &str = "class-number-formula-real-orders";
 pub const ELEMENT_RELATIONS: &str = "element-relations";
 pub const UNIT_INDEX: &str = "unit-index";
 pub const POCKLINGTON: &str = "pocklington-1914";
+pub const MORRISON: &str = "morrison-1975";
 
 /// Safety factor applied to the Belabas–Friedman error term until its
 /// constants are checked against the paper itself (see that entry's note).
@@ -117,6 +118,13 @@ pub static REGISTRY: &[Theorem] = &[
         citation: "H. C. Pocklington, Proc. Cambridge Phil. Soc. 18 (1914); J. Brillhart, D. H. Lehmer and J. L. Selfridge, \"New primality criteria and factorizations of 2^m +- 1\", Math. Comp. 29 (1975)",
         hypothesis: Hypothesis::None,
         statement: "if N - 1 = F R with F = prod q^e, q prime, and for each q some a has a^(N-1) = 1 and gcd(a^((N-1)/q) - 1, N) = 1 (mod N), then every prime factor of N is 1 mod F; if F^2 >= N, N is prime",
+        note: "",
+    },
+    Theorem {
+        id: MORRISON,
+        citation: "M. A. Morrison, \"A note on primality testing using Lucas sequences\", Math. Comp. 29 (1975); J. Brillhart, D. H. Lehmer and J. L. Selfridge, Math. Comp. 29 (1975)",
+        hypothesis: Hypothesis::None,
+        statement: "if N + 1 = F R with F = prod q^e, q prime, ((P^2 - 4)/N) = -1, N | U_(N+1)(P, 1) and gcd(U_((N+1)/q), N) = 1 for each q, then every prime factor of N is +-1 mod F; if (F - 1)^2 > N, N is prime",
         note: "",
     },
 ];
