@@ -138,6 +138,19 @@ fn verifier_exit_codes() {
     let r = run(&verify, &[cert_s, "--frobnicate"]);
     assert_eq!(r.status.code(), Some(2), "an unknown option exits 2");
 
+    // --require unconditional refuses a certificate that rests on GRH
+    let r = run(&verify, &[cert_s]);
+    assert_eq!(r.status.code(), Some(0));
+    let r = run(&verify, &[cert_s, "--json", "--require", "unconditional"]);
+    assert_eq!(r.status.code(), Some(1), "a GRH result fails the policy");
+    assert!(
+        stdout(&r).contains("\"reason\": \"policy\""),
+        "{}",
+        stdout(&r)
+    );
+    let r = run(&verify, &[cert_s, "--require", "sometimes"]);
+    assert_eq!(r.status.code(), Some(2), "an unknown requirement exits 2");
+
     // `show` refuses a damaged file instead of printing it.
     let s = run(&classcert, &["show", bad_s]);
     assert!(!s.status.success());

@@ -1,24 +1,38 @@
-//! `classcert-verify <FILE> [--json]`
+//! `classcert-verify <FILE> [--json] [--require unconditional]`
 //!
 //! Exit codes: 0 verified; 1 not verified (a check failed, or the input is
 //! malformed or over limits); 2 usage or I/O error.
 
 #![forbid(unsafe_code)]
 
+use classcert_verifier::verdict::Requirement;
 use std::io::Write;
 use std::process::ExitCode;
 
-const USAGE: &str = "usage: classcert-verify <FILE> [--json]\n\
-  Re-checks a classcert certificate and prints a verdict.\n\
-  --json   print one JSON object instead of text\n\
-  exit codes: 0 verified, 1 not verified, 2 usage or I/O error\n";
+const USAGE: &str = concat!(
+    "usage: classcert-verify <FILE> [--json] [--require unconditional]\n",
+    "Re-checks a classcert certificate and prints a verdict.\n",
+    "  --json                    print one JSON object instead of text\n",
+    "  --require unconditional   refuse (reason policy) a result that rests on\n",
+    "                            any assumption, such as GRH\n",
+    "exit codes: 0 verified, 1 not verified, 2 usage or I/O error\n",
+);
 
 fn main() -> ExitCode {
     let mut file: Option<String> = None;
     let mut json = false;
-    for arg in std::env::args().skip(1) {
+    let mut require = Vec::new();
+    let mut args = std::env::args().skip(1);
+    while let Some(arg) = args.next() {
         match arg.as_str() {
             "--json" => json = true,
+            "--require" => match args.next().as_deref().and_then(Requirement::parse) {
+                Some(r) => require.push(r),
+                None => {
+                    eprint!("classcert-verify: --require takes: unconditional\n{USAGE}");
+                    return ExitCode::from(2);
+                }
+            },
             "-h" | "--help" => {
                 print!("{USAGE}");
                 return ExitCode::SUCCESS;
@@ -50,7 +64,10 @@ fn main() -> ExitCode {
             return ExitCode::from(2);
         }
     };
-    let report = classcert_verifier::verify_bytes(&bytes);
+    let mut report = classcert_verifier::verify_bytes(&bytes);
+    for r in require {
+        report = report.require(r);
+    }
     let text = if json {
         report.to_json().render()
     } else {

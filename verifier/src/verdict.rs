@@ -55,6 +55,7 @@ pub enum Reason {
     UnitNormMismatch,
     ClassNumberRegulatorNotConfirmed,
     PrimalityProofInvalid,
+    Policy,
 }
 
 impl Reason {
@@ -106,6 +107,7 @@ impl Reason {
             UnitNormMismatch => "unit-norm-mismatch",
             ClassNumberRegulatorNotConfirmed => "class-number-regulator-not-confirmed",
             PrimalityProofInvalid => "primality-proof-invalid",
+            Policy => "policy",
         }
     }
 }
@@ -338,7 +340,48 @@ pub fn generator_text(g: &GeneratorView) -> String {
     }
 }
 
+/// What a caller may demand of a verified certificate beyond its checks
+/// (`classcert-verify --require`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Requirement {
+    /// No assumption at all: neither GRH nor "BPSW probable prime".
+    Unconditional,
+}
+
+impl Requirement {
+    pub fn parse(s: &str) -> Option<Requirement> {
+        match s {
+            "unconditional" => Some(Requirement::Unconditional),
+            _ => None,
+        }
+    }
+}
+
 impl Report {
+    /// Refuses a verified report that does not meet `r`, with reason
+    /// `policy`; the checks themselves are unchanged.
+    pub fn require(self, r: Requirement) -> Report {
+        let Ok(v) = &self.outcome else {
+            return self;
+        };
+        match r {
+            Requirement::Unconditional if !v.assumptions.is_empty() => {
+                let names: Vec<&str> = v.assumptions.iter().map(|a| a.name()).collect();
+                Report {
+                    summary: self.summary,
+                    outcome: Err(Rejection {
+                        reason: Reason::Policy,
+                        detail: format!(
+                            "every check passed, but the result rests on {}, and --require unconditional allows no assumption",
+                            names.join(", ")
+                        ),
+                    }),
+                }
+            }
+            Requirement::Unconditional => self,
+        }
+    }
+
     pub fn is_verified(&self) -> bool {
         self.outcome.is_ok()
     }
