@@ -371,18 +371,72 @@ fn form(f: &Form) -> Value {
     Value::Array(vec![cbor::int(&f.a), cbor::int(&f.b), cbor::int(&f.c)])
 }
 
+fn order_value(o: &Order) -> Value {
+    let Order::Quadratic { discriminant } = o;
+    cbor::map(vec![
+        ("kind", Value::Text("quadratic".into())),
+        ("discriminant", cbor::int(discriminant)),
+    ])
+}
+
+fn producer_value(p: &Producer) -> Value {
+    cbor::map(vec![
+        ("tool", Value::Text(p.tool.clone())),
+        ("version", Value::Text(p.version.clone())),
+        ("seed", cbor::uint(p.seed)),
+    ])
+}
+
+fn conductor_value(c: &[(u64, u32)]) -> Value {
+    Value::Array(
+        c.iter()
+            .map(|(p, e)| Value::Array(vec![cbor::uint(*p), cbor::uint(u64::from(*e))]))
+            .collect(),
+    )
+}
+
+fn prime_powers_value(f: &[PrimePower]) -> Value {
+    Value::Array(
+        f.iter()
+            .map(|pp| {
+                cbor::map(vec![
+                    ("p", cbor::int(&pp.prime)),
+                    ("e", cbor::uint(u64::from(pp.exponent))),
+                    ("evidence", evidence(&pp.evidence)),
+                ])
+            })
+            .collect(),
+    )
+}
+
+fn maximality_value(m: &Option<Vec<PrimePower>>) -> Value {
+    match m {
+        None => Value::Null,
+        Some(f) => prime_powers_value(f),
+    }
+}
+
+fn euler_value(e: &EulerTrace) -> Value {
+    cbor::map(vec![
+        ("theorem", Value::Text(e.theorem.clone())),
+        ("x", cbor::uint(e.x)),
+        (
+            "checkpoints",
+            Value::Array(
+                e.checkpoints
+                    .iter()
+                    .map(|c| Value::Array(vec![cbor::uint(c.limit), bounds(&c.a), bounds(&c.c)]))
+                    .collect(),
+            ),
+        ),
+        ("log-l", bounds(&e.log_l)),
+    ])
+}
+
 impl Body {
     pub fn to_value(&self) -> Value {
-        let Order::Quadratic { discriminant } = &self.order;
-        let order = cbor::map(vec![
-            ("kind", Value::Text("quadratic".into())),
-            ("discriminant", cbor::int(discriminant)),
-        ]);
-        let producer = cbor::map(vec![
-            ("tool", Value::Text(self.producer.tool.clone())),
-            ("version", Value::Text(self.producer.version.clone())),
-            ("seed", cbor::uint(self.producer.seed)),
-        ]);
+        let order = order_value(&self.order);
+        let producer = producer_value(&self.producer);
         let claim = cbor::map(vec![
             ("class-number", cbor::int(&self.claim.class_number)),
             ("invariants", ints(&self.claim.invariants)),
@@ -403,26 +457,8 @@ impl Body {
                 ),
             ),
         ]);
-        let conductor = Value::Array(
-            self.conductor_small
-                .iter()
-                .map(|(p, e)| Value::Array(vec![cbor::uint(*p), cbor::uint(u64::from(*e))]))
-                .collect(),
-        );
-        let maximality = match &self.maximality {
-            None => Value::Null,
-            Some(f) => Value::Array(
-                f.iter()
-                    .map(|pp| {
-                        cbor::map(vec![
-                            ("p", cbor::int(&pp.prime)),
-                            ("e", cbor::uint(u64::from(pp.exponent))),
-                            ("evidence", evidence(&pp.evidence)),
-                        ])
-                    })
-                    .collect(),
-            ),
-        };
+        let conductor = conductor_value(&self.conductor_small);
+        let maximality = maximality_value(&self.maximality);
         let ideals = Value::Array(
             self.factor_base
                 .iter()
@@ -478,23 +514,7 @@ impl Body {
             ));
         }
         let lattice = cbor::map(lattice);
-        let e = &self.euler;
-        let euler = cbor::map(vec![
-            ("theorem", Value::Text(e.theorem.clone())),
-            ("x", cbor::uint(e.x)),
-            (
-                "checkpoints",
-                Value::Array(
-                    e.checkpoints
-                        .iter()
-                        .map(|c| {
-                            Value::Array(vec![cbor::uint(c.limit), bounds(&c.a), bounds(&c.c)])
-                        })
-                        .collect(),
-                ),
-            ),
-            ("log-l", bounds(&e.log_l)),
-        ]);
+        let euler = euler_value(&self.euler);
         let mut top = vec![
             ("producer", producer),
             ("order", order),
@@ -690,26 +710,95 @@ fn get_form(v: &Value, what: &str) -> Result<Form, DecodeError> {
     }
 }
 
+fn get_producer(v: &Value) -> Result<Producer, DecodeError> {
+    let mut p = MapReader::new(v, "body.producer")?;
+    let producer = Producer {
+        tool: cbor::get_text(p.req("tool")?, "producer.tool")?.to_string(),
+        version: cbor::get_text(p.req("version")?, "producer.version")?.to_string(),
+        seed: cbor::get_u64(p.req("seed")?, "producer.seed")?,
+    };
+    p.finish()?;
+    Ok(producer)
+}
+
+fn get_order(v: &Value) -> Result<Order, DecodeError> {
+    let (kind, mut o) = get_kind(v, "body.order")?;
+    let order = match kind.as_str() {
+        "quadratic" => Order::Quadratic {
+            discriminant: cbor::get_int(o.req("discriminant")?, "order.discriminant")?,
+        },
+        _ => return Err(DecodeError::Schema(format!("unknown order kind {kind:?}"))),
+    };
+    o.finish()?;
+    Ok(order)
+}
+
+fn get_conductor(v: &Value) -> Result<Vec<(u64, u32)>, DecodeError> {
+    cbor::get_array(v, "conductor-small")?
+        .iter()
+        .map(|x| {
+            let (p, e) = pair(x, "conductor-small[]")?;
+            Ok((
+                cbor::get_u64(p, "conductor prime")?,
+                get_u32(e, "conductor exponent")?,
+            ))
+        })
+        .collect()
+}
+
+fn get_prime_powers(v: &Value, what: &str) -> Result<Vec<PrimePower>, DecodeError> {
+    cbor::get_array(v, what)?
+        .iter()
+        .map(|x| {
+            let mut m = MapReader::new(x, what)?;
+            let prime = cbor::get_int(m.req("p")?, what)?;
+            let exponent = get_u32(m.req("e")?, what)?;
+            let evidence = get_evidence(m.req("evidence")?)?;
+            m.finish()?;
+            Ok(PrimePower {
+                prime,
+                exponent,
+                evidence,
+            })
+        })
+        .collect()
+}
+
+fn get_maximality(v: &Value) -> Result<Option<Vec<PrimePower>>, DecodeError> {
+    match v {
+        Value::Null => Ok(None),
+        v => Ok(Some(get_prime_powers(v, "maximality")?)),
+    }
+}
+
+fn get_euler(v: &Value) -> Result<EulerTrace, DecodeError> {
+    let mut e = MapReader::new(v, "body.euler")?;
+    let euler = EulerTrace {
+        theorem: cbor::get_text(e.req("theorem")?, "euler.theorem")?.to_string(),
+        x: cbor::get_u64(e.req("x")?, "euler.x")?,
+        checkpoints: cbor::get_array(e.req("checkpoints")?, "euler.checkpoints")?
+            .iter()
+            .map(|x| match cbor::get_array(x, "checkpoint")? {
+                [n, a, c] => Ok(Checkpoint {
+                    limit: cbor::get_u64(n, "checkpoint limit")?,
+                    a: get_bounds(a, "checkpoint a")?,
+                    c: get_bounds(c, "checkpoint c")?,
+                }),
+                _ => Err(cbor::schema("checkpoint", "[limit, a, c]")),
+            })
+            .collect::<Result<Vec<_>, DecodeError>>()?,
+        log_l: get_bounds(e.req("log-l")?, "euler.log-l")?,
+    };
+    e.finish()?;
+    Ok(euler)
+}
+
 impl Body {
     pub fn from_value(v: &Value) -> Result<Body, DecodeError> {
         let mut top = MapReader::new(v, "body")?;
 
-        let mut p = MapReader::new(top.req("producer")?, "body.producer")?;
-        let producer = Producer {
-            tool: cbor::get_text(p.req("tool")?, "producer.tool")?.to_string(),
-            version: cbor::get_text(p.req("version")?, "producer.version")?.to_string(),
-            seed: cbor::get_u64(p.req("seed")?, "producer.seed")?,
-        };
-        p.finish()?;
-
-        let (kind, mut o) = get_kind(top.req("order")?, "body.order")?;
-        let order = match kind.as_str() {
-            "quadratic" => Order::Quadratic {
-                discriminant: cbor::get_int(o.req("discriminant")?, "order.discriminant")?,
-            },
-            _ => return Err(DecodeError::Schema(format!("unknown order kind {kind:?}"))),
-        };
-        o.finish()?;
+        let producer = get_producer(top.req("producer")?)?;
+        let order = get_order(top.req("order")?)?;
 
         let mut c = MapReader::new(top.req("claim")?, "body.claim")?;
         let generators = cbor::get_array(c.req("generators")?, "claim.generators")?
@@ -734,37 +823,8 @@ impl Body {
         };
         c.finish()?;
 
-        let conductor_small = cbor::get_array(top.req("conductor-small")?, "conductor-small")?
-            .iter()
-            .map(|x| {
-                let (p, e) = pair(x, "conductor-small[]")?;
-                Ok((
-                    cbor::get_u64(p, "conductor prime")?,
-                    get_u32(e, "conductor exponent")?,
-                ))
-            })
-            .collect::<Result<Vec<_>, DecodeError>>()?;
-
-        let maximality = match top.req("maximality")? {
-            Value::Null => None,
-            v => Some(
-                cbor::get_array(v, "maximality")?
-                    .iter()
-                    .map(|x| {
-                        let mut m = MapReader::new(x, "maximality[]")?;
-                        let prime = cbor::get_int(m.req("p")?, "maximality.p")?;
-                        let exponent = get_u32(m.req("e")?, "maximality.e")?;
-                        let evidence = get_evidence(m.req("evidence")?)?;
-                        m.finish()?;
-                        Ok(PrimePower {
-                            prime,
-                            exponent,
-                            evidence,
-                        })
-                    })
-                    .collect::<Result<Vec<_>, DecodeError>>()?,
-            ),
-        };
+        let conductor_small = get_conductor(top.req("conductor-small")?)?;
+        let maximality = get_maximality(top.req("maximality")?)?;
 
         let generation_theorem =
             cbor::get_text(top.req("generation-theorem")?, "generation-theorem")?.to_string();
@@ -827,24 +887,7 @@ impl Body {
         };
         l.finish()?;
 
-        let mut e = MapReader::new(top.req("euler")?, "body.euler")?;
-        let euler = EulerTrace {
-            theorem: cbor::get_text(e.req("theorem")?, "euler.theorem")?.to_string(),
-            x: cbor::get_u64(e.req("x")?, "euler.x")?,
-            checkpoints: cbor::get_array(e.req("checkpoints")?, "euler.checkpoints")?
-                .iter()
-                .map(|x| match cbor::get_array(x, "checkpoint")? {
-                    [n, a, c] => Ok(Checkpoint {
-                        limit: cbor::get_u64(n, "checkpoint limit")?,
-                        a: get_bounds(a, "checkpoint a")?,
-                        c: get_bounds(c, "checkpoint c")?,
-                    }),
-                    _ => Err(cbor::schema("checkpoint", "[limit, a, c]")),
-                })
-                .collect::<Result<Vec<_>, DecodeError>>()?,
-            log_l: get_bounds(e.req("log-l")?, "euler.log-l")?,
-        };
-        e.finish()?;
+        let euler = get_euler(top.req("euler")?)?;
         let units = match top.opt("units") {
             None => None,
             Some(v) => {
