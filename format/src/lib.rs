@@ -81,6 +81,19 @@ impl Decoded {
     }
 }
 
+/// A decoded certificate of either kind.
+#[derive(Debug, Clone)]
+pub struct DecodedDocument {
+    pub document: Document,
+    pub id: [u8; 32],
+}
+
+impl DecodedDocument {
+    pub fn id_hex(&self) -> String {
+        hex(&self.id)
+    }
+}
+
 pub fn hex(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()
 }
@@ -89,12 +102,12 @@ fn sha256(bytes: &[u8]) -> [u8; 32] {
     Sha256::digest(bytes).into()
 }
 
-fn file_value(body: &Body) -> Result<(Value, [u8; 32]), DecodeError> {
-    let body_bytes = body.encode()?;
+fn file_value(body: Value) -> Result<(Value, [u8; 32]), DecodeError> {
+    let body_bytes = cbor::from_value(&body)?;
     let id = sha256(&body_bytes);
     let v = cbor::map(vec![
         ("format", cbor::uint(FORMAT_VERSION)),
-        ("body", body.to_value()),
+        ("body", body),
         ("body-sha256", Value::Bytes(id.to_vec())),
     ]);
     Ok((v, id))
@@ -102,13 +115,33 @@ fn file_value(body: &Body) -> Result<(Value, [u8; 32]), DecodeError> {
 
 /// Encodes a certificate file; returns the bytes and the certificate id.
 pub fn encode_file(body: &Body) -> Result<(Vec<u8>, [u8; 32]), DecodeError> {
-    let (v, id) = file_value(body)?;
+    let (v, id) = file_value(body.to_value())?;
     Ok((cbor::from_value(&v)?, id))
 }
 
-/// Decodes a certificate file strictly (see [`cbor`]): canonical bytes only,
-/// no trailing data, and a matching digest.
+/// Encodes a certificate file of either kind.
+pub fn encode_document(doc: &Document) -> Result<(Vec<u8>, [u8; 32]), DecodeError> {
+    let (v, id) = file_value(doc.to_value())?;
+    Ok((cbor::from_value(&v)?, id))
+}
+
+/// Decodes a full certificate (relations); an order witness is refused.
 pub fn decode_file(bytes: &[u8]) -> Result<Decoded, FileError> {
+    let d = decode_document(bytes)?;
+    match d.document {
+        Document::Relations(body) => Ok(Decoded {
+            body: *body,
+            id: d.id,
+        }),
+        Document::OrderWitness(_) => Err(FileError::Decode(DecodeError::Schema(
+            "an order-witness certificate, not a full one".into(),
+        ))),
+    }
+}
+
+/// Decodes a certificate file of either kind strictly (see [`cbor`]):
+/// canonical bytes only, no trailing data, and a matching digest.
+pub fn decode_document(bytes: &[u8]) -> Result<DecodedDocument, FileError> {
     if bytes.len() > MAX_FILE_BYTES {
         return Err(FileError::TooLarge {
             bytes: bytes.len(),
@@ -121,16 +154,16 @@ pub fn decode_file(bytes: &[u8]) -> Result<Decoded, FileError> {
     if version != FORMAT_VERSION {
         return Err(FileError::UnsupportedVersion(version));
     }
-    let body = Body::from_value(top.req("body")?)?;
+    let document = Document::from_value(top.req("body")?)?;
     let claimed = cbor::get_bytes(top.req("body-sha256")?, "file.body-sha256")?.to_vec();
     top.finish()?;
     // Re-encode with the stated digest, so that a wrong digest is reported
     // as such and any other difference as a non-canonical encoding.
-    let body_bytes = body.encode()?;
+    let body_bytes = document.encode()?;
     let id = sha256(&body_bytes);
     let re = cbor::from_value(&cbor::map(vec![
         ("format", cbor::uint(FORMAT_VERSION)),
-        ("body", body.to_value()),
+        ("body", document.to_value()),
         ("body-sha256", Value::Bytes(claimed.clone())),
     ]))?;
     if re != bytes {
@@ -141,5 +174,5 @@ pub fn decode_file(bytes: &[u8]) -> Result<Decoded, FileError> {
     if claimed != id {
         return Err(FileError::DigestMismatch);
     }
-    Ok(Decoded { body, id })
+    Ok(DecodedDocument { document, id })
 }

@@ -24,6 +24,7 @@ pub mod search;
 pub mod sge;
 pub mod show;
 pub mod units;
+pub mod witness;
 
 pub use prove::{prove, Options, ProveError};
 
@@ -31,7 +32,16 @@ pub use prove::{prove, Options, ProveError};
 /// bytes (decoding included) before handing them out.
 pub fn prove_to_bytes(d: &rug::Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
     let body = prove(d, opts)?;
-    let (bytes, id) = classcert_format::encode_file(&body)
+    encode_and_check(&classcert_format::Document::Relations(Box::new(body)), opts)
+}
+
+/// Encodes a certificate and runs the verifier on the bytes (decoding
+/// included); a rejection is a prover bug and is reported as such.
+pub fn encode_and_check(
+    doc: &classcert_format::Document,
+    opts: &Options,
+) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
+    let (bytes, id) = classcert_format::encode_document(doc)
         .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
     let mut progress = progress::Progress::new(opts.progress);
     progress.say("self-check: verifying the encoded certificate");

@@ -40,6 +40,14 @@ enum Cmd {
         /// Euler-product cut-off X (default: chosen so the error term is at most 0.2).
         #[arg(long)]
         euler_x: Option<u64>,
+        /// Certify this class number with an order witness (a class of exact
+        /// order H and the analytic bound #Cl < 2H) instead of computing the
+        /// class group; D < 0, cyclic groups only.
+        #[arg(long, value_name = "H")]
+        claim_class_number: Option<String>,
+        /// Prime factors of H, comma-separated, instead of factoring H.
+        #[arg(long, value_name = "LIST", requires = "claim_class_number")]
+        factors_of_h: Option<String>,
         /// No progress lines on stderr.
         #[arg(short, long)]
         quiet: bool,
@@ -67,6 +75,8 @@ fn main() -> ExitCode {
             seed,
             factors,
             euler_x,
+            claim_class_number,
+            factors_of_h,
             quiet,
         } => {
             let Ok(d) = discriminant.trim().parse::<Integer>() else {
@@ -88,7 +98,27 @@ fn main() -> ExitCode {
                 progress: !quiet,
                 ..Options::default()
             };
-            match prove_to_bytes(&d, &opts) {
+            let result = match claim_class_number {
+                None => prove_to_bytes(&d, &opts),
+                Some(h) => {
+                    let Ok(h) = h.trim().parse::<Integer>() else {
+                        eprintln!("classcert: --claim-class-number {h:?} is not an integer");
+                        return ExitCode::from(2);
+                    };
+                    let hf = match factors_of_h
+                        .map(|s| classcert_prover::factor::parse_factor_list(&s))
+                    {
+                        None => None,
+                        Some(Ok(f)) => Some(f),
+                        Some(Err(e)) => {
+                            eprintln!("classcert: --factors-of-h: {e}");
+                            return ExitCode::from(2);
+                        }
+                    };
+                    classcert_prover::witness::prove_witness_to_bytes(&d, &h, hf, &opts)
+                }
+            };
+            match result {
                 Ok((bytes, id)) => {
                     if let Err(e) = classcert_prover::write_certificate(&output, &bytes) {
                         eprintln!("classcert: cannot write {}: {e}", output.display());
@@ -116,12 +146,26 @@ fn main() -> ExitCode {
                     return ExitCode::from(2);
                 }
             };
-            match classcert_format::decode_file(&bytes) {
-                Ok(c) => {
-                    let out = if json {
-                        classcert_prover::show::json(&c).render()
-                    } else {
-                        classcert_prover::show::text(&c)
+            match classcert_format::decode_document(&bytes) {
+                Ok(doc) => {
+                    let out = match doc.document {
+                        classcert_format::Document::Relations(body) => {
+                            let c = classcert_format::Decoded {
+                                body: *body,
+                                id: doc.id,
+                            };
+                            if json {
+                                classcert_prover::show::json(&c).render()
+                            } else {
+                                classcert_prover::show::text(&c)
+                            }
+                        }
+                        classcert_format::Document::OrderWitness(w) => {
+                            classcert_prover::show::witness_text(
+                                &w,
+                                &classcert_format::hex(&doc.id),
+                            )
+                        }
                     };
                     let _ = std::io::stdout().write_all(out.as_bytes());
                     ExitCode::SUCCESS

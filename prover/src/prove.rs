@@ -115,6 +115,40 @@ pub fn is_fundamental(d: &Integer, factors: &[(Integer, u32)]) -> bool {
     }
 }
 
+/// A list of primes given on the command line (`flag`), with repetition,
+/// as sorted `(p, e)` pairs multiplying to `target` (called `what`).
+pub(crate) fn collect_factors(
+    list: &[Integer],
+    target: &Integer,
+    flag: &str,
+    what: &str,
+) -> Result<Vec<(Integer, u32)>, ProveError> {
+    let mut sorted = list.to_vec();
+    sorted.sort();
+    let mut out: Vec<(Integer, u32)> = Vec::new();
+    for p in sorted {
+        if primality_evidence(&p) == Evidence::Composite {
+            return Err(ProveError::InvalidInput(format!(
+                "{flag}: {p} is not prime"
+            )));
+        }
+        match out.last_mut() {
+            Some((q, e)) if *q == p => *e += 1,
+            _ => out.push((p, 1)),
+        }
+    }
+    let prod: Integer = out
+        .iter()
+        .map(|(p, e)| Integer::from(rug::ops::Pow::pow(p, *e)))
+        .product();
+    if prod != *target {
+        return Err(ProveError::InvalidInput(format!(
+            "{flag} multiply to {prod}, not {what} = {target}"
+        )));
+    }
+    Ok(out)
+}
+
 pub(crate) fn maximality(
     d: &Integer,
     opts: &Options,
@@ -122,32 +156,7 @@ pub(crate) fn maximality(
 ) -> Result<Option<Vec<PrimePower>>, ProveError> {
     let abs = Integer::from(d.abs_ref());
     let fac: Vec<(Integer, u32)> = match &opts.factors {
-        Some(list) => {
-            let mut sorted = list.clone();
-            sorted.sort();
-            let mut out: Vec<(Integer, u32)> = Vec::new();
-            for p in sorted {
-                if primality_evidence(&p) == Evidence::Composite {
-                    return Err(ProveError::InvalidInput(format!(
-                        "--factors: {p} is not prime"
-                    )));
-                }
-                match out.last_mut() {
-                    Some((q, e)) if *q == p => *e += 1,
-                    _ => out.push((p, 1)),
-                }
-            }
-            let prod: Integer = out
-                .iter()
-                .map(|(p, e)| Integer::from(rug::ops::Pow::pow(p, *e)))
-                .product();
-            if prod != abs {
-                return Err(ProveError::InvalidInput(format!(
-                    "--factors multiply to {prod}, not |D| = {abs}"
-                )));
-            }
-            out
-        }
+        Some(list) => collect_factors(list, &abs, "--factors", "|D|")?,
         None => {
             progress.say("factoring |D| (to support a maximality claim)");
             match factor::factor(&abs, opts.factor_budget) {
@@ -218,6 +227,60 @@ fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
         .collect()
 }
 
+/// The Euler product to `x` (all primes below `x` in `primes`) and the
+/// enclosure of `log h` (`log h R` for `D > 0`) it gives, exactly as the
+/// verifier computes them.
+pub(crate) fn analytic(
+    d: &Integer,
+    x: u64,
+    primes: &[u64],
+    conductor: &[(u64, u32)],
+    d_small: &Integer,
+) -> Result<(euler::EulerResult, Interval), ProveError> {
+    let abs_d = Integer::from(d.abs_ref());
+    let log_delta = Interval::int(&abs_d).ln().expect("|D| > 0");
+    let limits = checkpoint_limits(x);
+    let chi = |p: u64| kronecker_prime(d_small, p);
+    let res = euler::compute(x, primes, &chi, &limits, &log_delta)
+        .ok_or_else(|| ProveError::SearchFailed("Euler product could not be evaluated".into()))?;
+    let w = match d.to_i32() {
+        Some(-3) => 6,
+        Some(-4) => 4,
+        _ => 2,
+    };
+    let log_h = log_h_enclosure(d, w, &res.log_l, conductor, d_small, x)
+        .ok_or_else(|| ProveError::SearchFailed("analytic bound could not be evaluated".into()))?;
+    Ok((res, log_h))
+}
+
+/// Who made the certificate.
+pub(crate) fn producer(opts: &Options) -> Producer {
+    Producer {
+        tool: TOOL.to_string(),
+        version: env!("CARGO_PKG_VERSION").to_string(),
+        seed: opts.seed,
+    }
+}
+
+/// The certificate's Euler trace for `res`.
+pub(crate) fn euler_trace(res: &euler::EulerResult, x: u64) -> EulerTrace {
+    let to_b = |i: &Interval| i.to_bounds().expect("finite interval");
+    EulerTrace {
+        theorem: registry::BELABAS_FRIEDMAN.to_string(),
+        x,
+        checkpoints: res
+            .checkpoints
+            .iter()
+            .map(|c| Checkpoint {
+                limit: c.limit,
+                a: to_b(&c.a),
+                c: to_b(&c.c),
+            })
+            .collect(),
+        log_l: to_b(&res.log_l),
+    }
+}
+
 /// What both signs of `D` share: maximality, the generation bound, the
 /// factor base and the analytic side.
 pub(crate) struct Setup {
@@ -252,18 +315,7 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
     let fb = FactorBase::new(d, &primes, bound, &cond_primes);
 
     // Analytic side first: it tells the search when to stop.
-    let log_delta = Interval::int(&abs_d).ln().expect("|D| > 0");
-    let limits = checkpoint_limits(x);
-    let chi = |p: u64| kronecker_prime(&d_small, p);
-    let res = euler::compute(x, &primes, &chi, &limits, &log_delta)
-        .ok_or_else(|| ProveError::SearchFailed("Euler product could not be evaluated".into()))?;
-    let w = match d.to_i32() {
-        Some(-3) => 6,
-        Some(-4) => 4,
-        _ => 2,
-    };
-    let log_h = log_h_enclosure(d, w, &res.log_l, &conductor, &d_small, x)
-        .ok_or_else(|| ProveError::SearchFailed("analytic bound could not be evaluated".into()))?;
+    let (res, log_h) = analytic(d, x, &primes, &conductor, &d_small)?;
     let ceiling = log_h.add(&Interval::ln2()).lo.clone();
     progress.say(&format!(
         "log {} in [{:.4}, {:.4}] (about {:.4e})",
@@ -295,14 +347,9 @@ impl Setup {
         lattice: Lattice,
         units: Option<Units>,
     ) -> Body {
-        let to_b = |i: &Interval| i.to_bounds().expect("finite interval");
         let res = self.euler;
         Body {
-            producer: Producer {
-                tool: TOOL.to_string(),
-                version: env!("CARGO_PKG_VERSION").to_string(),
-                seed: opts.seed,
-            },
+            producer: producer(opts),
             order: Order::Quadratic {
                 discriminant: d.clone(),
             },
@@ -318,20 +365,7 @@ impl Setup {
                 .map(|(&p, &b)| PrimeIdeal::QuadraticForm { p, b })
                 .collect(),
             lattice,
-            euler: EulerTrace {
-                theorem: registry::BELABAS_FRIEDMAN.to_string(),
-                x: self.x,
-                checkpoints: res
-                    .checkpoints
-                    .iter()
-                    .map(|c| Checkpoint {
-                        limit: c.limit,
-                        a: to_b(&c.a),
-                        c: to_b(&c.c),
-                    })
-                    .collect(),
-                log_l: to_b(&res.log_l),
-            },
+            euler: euler_trace(&res, self.x),
             units,
         }
     }

@@ -90,19 +90,9 @@ pub fn text(c: &Decoded) -> String {
     s.push_str(&format!("  order          quadratic, D = {discriminant}\n"));
     match &b.maximality {
         Some(f) => {
-            let parts: Vec<String> = f
-                .iter()
-                .map(|pp| {
-                    if pp.exponent == 1 {
-                        pp.prime.to_string()
-                    } else {
-                        format!("{}^{}", pp.prime, pp.exponent)
-                    }
-                })
-                .collect();
             s.push_str(&format!(
                 "  maximality     claimed: |D| = {}\n",
-                parts.join(" * ")
+                factorisation_text(f)
             ));
         }
         None => s.push_str("  maximality     not claimed\n"),
@@ -239,4 +229,56 @@ pub fn json(c: &Decoded) -> Json {
         ));
     }
     Json::obj(out)
+}
+
+/// `p1^e1 * p2 * …`, or `1`.
+fn factorisation_text(f: &[classcert_format::PrimePower]) -> String {
+    if f.is_empty() {
+        return "1".into();
+    }
+    f.iter()
+        .map(|pp| {
+            if pp.exponent == 1 {
+                pp.prime.to_string()
+            } else {
+                format!("{}^{}", pp.prime, pp.exponent)
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(" * ")
+}
+
+/// `show` for an order-witness certificate.
+pub fn witness_text(w: &classcert_format::WitnessBody, id_hex: &str) -> String {
+    let Order::Quadratic { discriminant } = &w.order;
+    let mut s = String::new();
+    s.push_str("classcert order-witness certificate (contents as stated; not checked: run classcert-verify)\n");
+    s.push_str(&format!("  id             {id_hex}\n"));
+    s.push_str(&format!(
+        "  produced by    {} {} (seed {})\n",
+        w.producer.tool, w.producer.version, w.producer.seed
+    ));
+    s.push_str(&format!("  order          quadratic, D = {discriminant}\n"));
+    s.push_str(&format!(
+        "  maximality     {}\n",
+        if w.maximality.is_some() {
+            "claimed"
+        } else {
+            "not claimed"
+        }
+    ));
+    s.push_str(&format!(
+        "  claim          Cl cyclic of order H = {} = {}\n",
+        w.class_number,
+        factorisation_text(&w.h_factors)
+    ));
+    s.push_str(&format!(
+        "  witness        ({}, {}, {}) of exact order H\n",
+        w.form.a, w.form.b, w.form.c
+    ));
+    s.push_str(&format!(
+        "  Euler product  X = {} ({})\n",
+        w.euler.x, w.euler.theorem
+    ));
+    s
 }

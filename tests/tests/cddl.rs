@@ -426,3 +426,16 @@ fn damaged_real_certificates_fail_the_schema() {
     });
     assert_invalid("generator without exponents", &out);
 }
+
+#[test]
+fn order_witness_certificates_match_the_schema() {
+    // h(-1000003) = 105 (the oracle's count in tests/tests/witness.rs)
+    let (bytes, _) = classcert_prover::witness::prove_witness_to_bytes(
+        &Integer::from(-1_000_003),
+        &Integer::from(105),
+        None,
+        &Options::default(),
+    )
+    .expect("the witness proves");
+    assert_valid("order witness for D = -1000003", &bytes);
+}

@@ -17,7 +17,9 @@ use crate::limits::*;
 use crate::proofs::{self, ProofError, Status, Used};
 use crate::registry::{self, Theorem};
 use crate::verdict::{reject, Assumption, GeneratorView, Reason, Rejection, UnitSummary, Verified};
-use classcert_format::{Body, Order, PrimeIdeal, Relation, Witness};
+use classcert_format::{
+    Body, EulerTrace, Order, PrimeIdeal, PrimePower, Relation, Witness, WitnessBody,
+};
 use rug::ops::Pow;
 use rug::Integer;
 
@@ -82,8 +84,8 @@ struct AnalyticOk {
     x: u64,
 }
 
-fn check_order(body: &Body) -> Check<OrderOk> {
-    let Order::Quadratic { discriminant: d } = &body.order;
+fn check_order(order: &Order) -> Check<OrderOk> {
+    let Order::Quadratic { discriminant: d } = order;
     let abs_d = Integer::from(d.abs_ref());
     if abs_d.significant_bits() > MAX_DISCRIMINANT_BITS {
         return reject(
@@ -118,91 +120,42 @@ fn check_order(body: &Body) -> Check<OrderOk> {
 }
 
 fn check_conductor_and_maximality(
-    body: &Body,
+    conductor_small: &[(u64, u32)],
+    maximality: &Option<Vec<PrimePower>>,
     order: &OrderOk,
     trial_bound: u64,
 ) -> Check<ConductorOk> {
     let trial_primes = primes_up_to(trial_bound);
     let (conductor, d_small) = small_conductor(&order.d, &trial_primes);
-    if conductor != body.conductor_small {
+    if conductor != conductor_small {
         return reject(
             Reason::ConductorMismatch,
             format!(
                 "trial division to {trial_bound} finds conductor primes {:?}; the certificate states {:?}",
-                conductor, body.conductor_small
+                conductor, conductor_small
             ),
         );
     }
     let mut maximal = false;
     let mut bpsw_assumed = false;
     let mut used = Used::default();
-    if let Some(factors) = &body.maximality {
-        if factors.len() > MAX_FACTORS {
-            return reject(
-                Reason::OverLimit,
-                "too many factors in the maximality claim",
-            );
-        }
-        let mut product = Integer::from(1);
-        let mut prev = Integer::new();
-        let mut two_exp = 0u32;
+    if let Some(factors) = maximality {
         let mut work = MAX_PROOF_POWERS;
-        let mut squarefree_odd = true;
-        for f in factors {
-            if f.prime <= prev || f.exponent == 0 || f.exponent > MAX_DISCRIMINANT_BITS {
-                return reject(
-                    Reason::MaximalityFactorisation,
-                    "factors must be listed once each, in increasing order, with positive exponents",
-                );
-            }
-            if f.prime.significant_bits() > MAX_DISCRIMINANT_BITS {
-                return reject(Reason::OverLimit, "a factor is too large");
-            }
-            match proofs::check(&f.prime, &f.evidence, 0, &mut work, &mut used) {
-                Err(ProofError::Composite(q)) => {
-                    return reject(
-                        Reason::MaximalityFactorisation,
-                        format!("{q} is not prime (it fails the BPSW test)"),
-                    )
-                }
-                Err(ProofError::Invalid(why)) => {
-                    return reject(
-                        Reason::PrimalityProofInvalid,
-                        format!("the primality proof of {} fails: {why}", f.prime),
-                    )
-                }
-                Err(ProofError::OverLimit) => {
-                    return reject(
-                        Reason::OverLimit,
-                        "a primality proof is too deep or too long",
-                    )
-                }
-                Ok(Status::Proven) => {}
-                Ok(Status::AssumedBpsw) => bpsw_assumed = true,
-            }
-            if f.prime == 2 {
-                two_exp = f.exponent;
-            } else if f.exponent != 1 {
-                squarefree_odd = false;
-            }
-            product *= Integer::from((&f.prime).pow(f.exponent));
-            if product.significant_bits() > MAX_DISCRIMINANT_BITS + 1 {
-                return reject(
-                    Reason::MaximalityFactorisation,
-                    "the factors multiply past |D|",
-                );
-            }
-            prev = f.prime.clone();
+        if check_factorisation(
+            factors,
+            &order.abs_d,
+            "|D|",
+            Reason::MaximalityFactorisation,
+            &mut work,
+            &mut used,
+        )? {
+            bpsw_assumed = true;
         }
-        if product != order.abs_d {
-            return reject(
-                Reason::MaximalityFactorisation,
-                format!(
-                    "the stated factors multiply to {product}, not |D| = {}",
-                    order.abs_d
-                ),
-            );
-        }
+        let two_exp = factors
+            .iter()
+            .find(|f| f.prime == 2)
+            .map_or(0, |f| f.exponent);
+        let squarefree_odd = factors.iter().all(|f| f.prime == 2 || f.exponent == 1);
         // D fundamental: D ≡ 1 (4) squarefree, or D = 4m, m ≡ 2, 3 (4), m squarefree.
         let fundamental = squarefree_odd
             && match two_exp {
@@ -227,6 +180,67 @@ fn check_conductor_and_maximality(
         bpsw_assumed,
         proofs: used,
     })
+}
+
+/// `factors` is the factorisation of `target` into primes listed once each
+/// in increasing order, each with checked evidence. Returns whether some
+/// prime rests on the BPSW assumption. A wrong factorisation is `reason`.
+fn check_factorisation(
+    factors: &[PrimePower],
+    target: &Integer,
+    what: &str,
+    reason: Reason,
+    work: &mut u64,
+    used: &mut Used,
+) -> Check<bool> {
+    if factors.len() > MAX_FACTORS {
+        return reject(Reason::OverLimit, format!("too many factors of {what}"));
+    }
+    let mut product = Integer::from(1);
+    let mut prev = Integer::new();
+    let mut bpsw_assumed = false;
+    for f in factors {
+        if f.prime <= prev || f.exponent == 0 || f.exponent > MAX_DISCRIMINANT_BITS {
+            return reject(
+                reason,
+                "factors must be listed once each, in increasing order, with positive exponents",
+            );
+        }
+        if f.prime.significant_bits() > MAX_DISCRIMINANT_BITS {
+            return reject(Reason::OverLimit, "a factor is too large");
+        }
+        match proofs::check(&f.prime, &f.evidence, 0, work, used) {
+            Err(ProofError::Composite(q)) => {
+                return reject(reason, format!("{q} is not prime (it fails the BPSW test)"))
+            }
+            Err(ProofError::Invalid(why)) => {
+                return reject(
+                    Reason::PrimalityProofInvalid,
+                    format!("the primality proof of {} fails: {why}", f.prime),
+                )
+            }
+            Err(ProofError::OverLimit) => {
+                return reject(
+                    Reason::OverLimit,
+                    "a primality proof is too deep or too long",
+                )
+            }
+            Ok(Status::Proven) => {}
+            Ok(Status::AssumedBpsw) => bpsw_assumed = true,
+        }
+        product *= Integer::from((&f.prime).pow(f.exponent));
+        if product.significant_bits() > MAX_DISCRIMINANT_BITS + 1 {
+            return reject(reason, format!("the factors multiply past {what}"));
+        }
+        prev = f.prime.clone();
+    }
+    if product != *target {
+        return reject(
+            reason,
+            format!("the stated factors multiply to {product}, not {what} = {target}"),
+        );
+    }
+    Ok(bpsw_assumed)
 }
 
 fn check_generation(
@@ -915,14 +929,10 @@ fn check_units(body: &Body, order: &OrderOk) -> Check<Option<UnitsOk>> {
     }))
 }
 
-fn check_analytic(
-    body: &Body,
-    order: &OrderOk,
-    cond: &ConductorOk,
-    lat: &LatticeOk,
-    units: Option<&UnitsOk>,
-) -> Check<AnalyticOk> {
-    let e = &body.euler;
+/// Section 5, first half: the Euler trace is recomputed and the enclosure
+/// of `log h` (`log h R` for `D > 0`) follows from the class number
+/// formula. Returns it with the cut-off `X`.
+fn check_euler(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(Interval, u64)> {
     if registry::lookup(&e.theorem).map(|t| t.id) != Some(registry::BELABAS_FRIEDMAN) {
         return reject(
             Reason::UnknownTheorem,
@@ -1007,6 +1017,19 @@ fn check_analytic(
     let Some(log_h) = log_h_enclosure(&order.d, order.w, &res.log_l, &cond.conductor, ds, x) else {
         return bad();
     };
+    Ok((log_h, x))
+}
+
+fn check_analytic(
+    body: &Body,
+    order: &OrderOk,
+    cond: &ConductorOk,
+    lat: &LatticeOk,
+    units: Option<&UnitsOk>,
+) -> Check<AnalyticOk> {
+    let (log_h, x) = check_euler(&body.euler, order, cond)?;
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let ln2 = Interval::ln2();
     let hs = Interval::int(&lat.h_star);
     let Some(mut log_hs) = hs.ln() else {
         return bad();
@@ -1051,7 +1074,7 @@ fn check_analytic(
 
 /// Checks a decoded certificate body.
 pub fn verify_body(body: &Body) -> Check<Verified> {
-    let order = check_order(body)?;
+    let order = check_order(&body.order)?;
     let Some(gen_theorem) = registry::lookup(&body.generation_theorem) else {
         return reject(
             Reason::UnknownTheorem,
@@ -1075,7 +1098,12 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
             format!("the trial-division bound {trial_bound} exceeds {MAX_SIEVE}"),
         );
     }
-    let cond = check_conductor_and_maximality(body, &order, trial_bound)?;
+    let cond = check_conductor_and_maximality(
+        &body.conductor_small,
+        &body.maximality,
+        &order,
+        trial_bound,
+    )?;
     if gen_theorem.id == registry::BACH_FIELD && !cond.maximal {
         return reject(
             Reason::GenerationTheoremNotApplicable,
@@ -1145,6 +1173,155 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
         generation_bound: gen.bound,
         log_h: analytic.log_h,
         factor_base_size: gen.forms.len(),
+        order_witness: false,
+        proof: crate::verdict::AllChecksPassed(()),
+    })
+}
+
+/// Checks an order-witness certificate (design note, section 6): `g` has
+/// exact order `H`, so `H | #Cl` (Lagrange); the Euler product bounds
+/// `#Cl < 2H`; hence `Cl ≅ Z/H`, generated by `g`. Imaginary orders only.
+pub fn verify_witness(w: &WitnessBody) -> Check<Verified> {
+    let order = check_order(&w.order)?;
+    if order.real {
+        return reject(
+            Reason::UnsupportedOrder,
+            "order witnesses are checked for D < 0 only (the unit group is needed for D > 0)",
+        );
+    }
+    let x = w.euler.x;
+    if x > MAX_SIEVE {
+        return reject(Reason::OverLimit, format!("X = {x} exceeds {MAX_SIEVE}"));
+    }
+    let cond = check_conductor_and_maximality(&w.conductor_small, &w.maximality, &order, x)?;
+    let h = &w.class_number;
+    if *h < 1 || h.significant_bits() > MAX_ENTRY_BITS {
+        return reject(
+            Reason::OrderWitnessFactorisation,
+            "H must be a positive integer within the limits",
+        );
+    }
+    let mut work = MAX_PROOF_POWERS;
+    let mut used = cond.proofs;
+    let h_bpsw = check_factorisation(
+        &w.h_factors,
+        h,
+        "H",
+        Reason::OrderWitnessFactorisation,
+        &mut work,
+        &mut used,
+    )?;
+    // The witness: a reduced primitive form of discriminant D.
+    let d = &order.d;
+    let f = &w.form;
+    let Ok(g) = Form::new(f.a.clone(), f.b.clone(), d) else {
+        return reject(
+            Reason::OrderWitnessForm,
+            "the witness is not a form of discriminant D",
+        );
+    };
+    let primitive = Integer::from(g.a.gcd_ref(&g.b)).gcd(&g.c) == 1;
+    if g.c != f.c || !g.is_reduced() || !primitive {
+        return reject(
+            Reason::OrderWitnessForm,
+            "the witness must be a reduced primitive form of discriminant D",
+        );
+    }
+    // g^H = 1 and g^(H/q) != 1 for every prime q | H
+    let mut budget = Budget(MAX_COMPOSITIONS);
+    let principal = Form::principal(d);
+    let power = |e: &Integer, budget: &mut Budget| -> Check<Form> {
+        budget.charge(&[e])?;
+        match g.pow(e, d) {
+            Ok(x) => Ok(x),
+            Err(_) => reject(Reason::OrderWitnessForm, "form arithmetic failed"),
+        }
+    };
+    if power(h, &mut budget)? != principal {
+        return reject(
+            Reason::OrderWitnessPower,
+            "g^H is not the principal form: H is not a multiple of the order of g",
+        );
+    }
+    for pp in &w.h_factors {
+        let e = Integer::from(h / &pp.prime);
+        if power(&e, &mut budget)? == principal {
+            return reject(
+                Reason::OrderWitnessNotExact,
+                format!(
+                    "g^(H/{}) is the principal form: g has order below H",
+                    pp.prime
+                ),
+            );
+        }
+    }
+    // #Cl = k H with k >= 1, and log #Cl <= hi(log h): k = 1 when
+    // log H > hi(log h) - log 2.
+    let (log_h, x) = check_euler(&w.euler, &order, &cond)?;
+    let Some(log_big_h) = Interval::int(h).ln() else {
+        return reject(Reason::OverLimit, "interval arithmetic failed");
+    };
+    let ln2 = Interval::ln2();
+    if log_big_h.lo > log_h.hi {
+        return reject(
+            Reason::AnalyticInconsistent,
+            format!(
+                "H = {h} exceeds the analytic upper bound exp({:.6}): the witness and GRH cannot both hold",
+                log_h.hi.to_f64()
+            ),
+        );
+    }
+    if log_big_h.lo <= log_h.sub(&ln2).hi {
+        return reject(
+            Reason::ClassNumberNotConfirmed,
+            format!(
+                "H = {h} is too small: log H = {:.6}, but #Cl may be as large as exp({:.6}), so #Cl = k H with k >= 2 is not excluded",
+                log_big_h.lo.to_f64(),
+                log_h.hi.to_f64()
+            ),
+        );
+    }
+    let mut assumptions = vec![Assumption::Grh];
+    if cond.bpsw_assumed || h_bpsw {
+        assumptions.push(Assumption::BpswProbablePrime);
+    }
+    let mut theorems: Vec<&'static Theorem> = Vec::new();
+    let mut ids = vec![
+        registry::ORDER_WITNESS,
+        registry::BELABAS_FRIEDMAN,
+        registry::CLASS_NUMBER_FORMULA,
+        registry::BPSW_SMALL,
+    ];
+    if used.pocklington {
+        ids.push(registry::POCKLINGTON);
+    }
+    if used.morrison {
+        ids.push(registry::MORRISON);
+    }
+    for id in ids {
+        if let Some(t) = registry::lookup(id) {
+            theorems.push(t);
+        }
+    }
+    let nontrivial = *h > 1;
+    Ok(Verified {
+        class_number: h.clone(),
+        invariants: if nontrivial { vec![h.clone()] } else { vec![] },
+        generators: if nontrivial {
+            vec![GeneratorView::Form(g.a.clone(), g.b.clone(), g.c.clone())]
+        } else {
+            vec![]
+        },
+        unit: None,
+        maximal: cond.maximal,
+        assumptions,
+        theorems,
+        w: order.w,
+        euler_x: x,
+        generation_bound: 0,
+        log_h,
+        factor_base_size: 0,
+        order_witness: true,
         proof: crate::verdict::AllChecksPassed(()),
     })
 }

@@ -39,12 +39,12 @@ pub mod proofs;
 pub mod registry;
 pub mod verdict;
 
-use classcert_format::{DecodeError, FileError};
+use classcert_format::{DecodeError, Document, FileError};
 use verdict::{Reason, Rejection, Report, Summary};
 
 /// Verifies the bytes of a certificate file.
 pub fn verify_bytes(bytes: &[u8]) -> Report {
-    let decoded = match classcert_format::decode_file(bytes) {
+    let decoded = match classcert_format::decode_document(bytes) {
         Ok(d) => d,
         Err(e) => {
             let reason = match &e {
@@ -67,16 +67,31 @@ pub fn verify_bytes(bytes: &[u8]) -> Report {
             };
         }
     };
-    let body = &decoded.body;
-    let classcert_format::Order::Quadratic { discriminant } = &body.order;
-    let summary = Summary {
-        certificate_sha256: Some(decoded.id_hex()),
-        discriminant: Some(discriminant.clone()),
-        claimed_class_number: Some(body.claim.class_number.clone()),
-        claimed_invariants: Some(body.claim.invariants.clone()),
-    };
-    Report {
-        summary,
-        outcome: check::verify_body(body),
+    let id = Some(decoded.id_hex());
+    match &decoded.document {
+        Document::Relations(body) => {
+            let classcert_format::Order::Quadratic { discriminant } = &body.order;
+            Report {
+                summary: Summary {
+                    certificate_sha256: id,
+                    discriminant: Some(discriminant.clone()),
+                    claimed_class_number: Some(body.claim.class_number.clone()),
+                    claimed_invariants: Some(body.claim.invariants.clone()),
+                },
+                outcome: check::verify_body(body),
+            }
+        }
+        Document::OrderWitness(w) => {
+            let classcert_format::Order::Quadratic { discriminant } = &w.order;
+            Report {
+                summary: Summary {
+                    certificate_sha256: id,
+                    discriminant: Some(discriminant.clone()),
+                    claimed_class_number: Some(w.class_number.clone()),
+                    claimed_invariants: Some(vec![w.class_number.clone()]),
+                },
+                outcome: check::verify_witness(w),
+            }
+        }
     }
 }

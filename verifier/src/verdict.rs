@@ -56,6 +56,10 @@ pub enum Reason {
     ClassNumberRegulatorNotConfirmed,
     PrimalityProofInvalid,
     Policy,
+    OrderWitnessFactorisation,
+    OrderWitnessForm,
+    OrderWitnessPower,
+    OrderWitnessNotExact,
 }
 
 impl Reason {
@@ -108,6 +112,10 @@ impl Reason {
             ClassNumberRegulatorNotConfirmed => "class-number-regulator-not-confirmed",
             PrimalityProofInvalid => "primality-proof-invalid",
             Policy => "policy",
+            OrderWitnessFactorisation => "order-witness-factorisation",
+            OrderWitnessForm => "order-witness-form",
+            OrderWitnessPower => "order-witness-power",
+            OrderWitnessNotExact => "order-witness-not-exact",
         }
     }
 }
@@ -253,6 +261,9 @@ pub struct Verified {
     pub generation_bound: u64,
     pub log_h: Interval,
     pub factor_base_size: usize,
+    /// Shown by an element of exact order `H` (design note, section 6),
+    /// not by relations.
+    pub order_witness: bool,
     pub proof: AllChecksPassed,
 }
 
@@ -442,7 +453,16 @@ impl Report {
                 s.push_str(&format!("  roots of 1    w = {}\n", v.w));
                 let assumptions: Vec<&str> = v.assumptions.iter().map(|a| a.name()).collect();
                 s.push_str(&format!("  rests on      {}\n", assumptions.join(", ")));
-                s.push_str(&format!(
+                if v.order_witness {
+                    s.push_str(&format!(
+                        "  checked       a class of exact order {}, Euler product to X = {}, log h in [{:.6}, {:.6}]\n",
+                        v.class_number,
+                        v.euler_x,
+                        v.log_h.lo.to_f64(),
+                        v.log_h.hi.to_f64()
+                    ));
+                } else {
+                    s.push_str(&format!(
                     "  checked       {} prime ideals up to {}, Euler product to X = {}, log {} in [{:.6}, {:.6}]\n",
                     v.factor_base_size,
                     v.generation_bound,
@@ -451,6 +471,7 @@ impl Report {
                     v.log_h.lo.to_f64(),
                     v.log_h.hi.to_f64()
                 ));
+                }
                 s.push_str("  theorems\n");
                 for t in &v.theorems {
                     s.push_str(&format!(
@@ -516,6 +537,9 @@ impl Report {
                     "generation_bound",
                     Json::Num(v.generation_bound.to_string()),
                 ));
+                if v.order_witness {
+                    e.push(("shown_by", Json::str("order-witness")));
+                }
                 e.push(("euler_x", Json::Num(v.euler_x.to_string())));
                 e.push((
                     "theorems",

@@ -1,0 +1,183 @@
+//! Order-witness certificates (design note, section 6): a claimed class
+//! number H, a class of exact order H and the analytic bound #Cl < 2H.
+//! Every H here is computed independently in the test (the oracle's count
+//! of reduced forms, or the relation prover for a large D), never taken
+//! from the witness prover; wrong claims are refused, forged files
+//! rejected with the code named beside them.
+
+use classcert_format::{decode_document, encode_document, Document, WitnessBody};
+use classcert_prover::witness::{prove_witness, prove_witness_to_bytes};
+use classcert_prover::Options;
+use classcert_tests::oracle;
+use classcert_tests::support::{read_published, SplitMix};
+use classcert_verifier::verify_bytes;
+use rug::Integer;
+
+fn witness(d: i64, h: u64) -> WitnessBody {
+    prove_witness(
+        &Integer::from(d),
+        &Integer::from(h),
+        None,
+        &Options::default(),
+    )
+    .unwrap_or_else(|e| panic!("witness for h({d}) = {h}: {e}"))
+}
+
+fn code(w: &WitnessBody) -> Option<&'static str> {
+    let (bytes, _) =
+        encode_document(&Document::OrderWitness(Box::new(w.clone()))).expect("encodes");
+    verify_bytes(&bytes).outcome.err().map(|r| r.reason.code())
+}
+
+#[test]
+fn published_class_numbers_by_order_witness() {
+    // OEIS A006203 (h = 3, fundamental D < 0; see vectors/published), each
+    // row's h recounted by the oracle
+    for &(d, h) in &read_published("class-number-3.txt").rows {
+        assert_eq!(oracle::class_number_by_counting(d), h);
+        let (bytes, _) = prove_witness_to_bytes(
+            &Integer::from(d),
+            &Integer::from(h),
+            None,
+            &Options::default(),
+        )
+        .unwrap_or_else(|e| panic!("D = {d}: {e}"));
+        let v = verify_bytes(&bytes).outcome.expect("verifies");
+        assert_eq!(v.class_number, h);
+        assert!(v.order_witness);
+    }
+}
+
+#[test]
+fn random_cyclic_groups_by_order_witness_and_wrong_claims_refused() {
+    let mut rng = SplitMix::new(0x5eed_0008);
+    let mut cyclic = 0;
+    while cyclic < 25 {
+        let d = -(rng.log_range(1000, 3_000_000) as i64);
+        if !oracle::is_discriminant(d) {
+            continue;
+        }
+        let inv = oracle::group_invariants_bruteforce(d);
+        let h = oracle::class_number_by_counting(d);
+        let opts = Options::default();
+        if inv.len() > 1 {
+            // not cyclic: no class has order h
+            assert!(prove_witness(&Integer::from(d), &Integer::from(h), None, &opts).is_err());
+            continue;
+        }
+        cyclic += 1;
+        let w = witness(d, h);
+        assert_eq!(code(&w), None, "D = {d}, h = {h}");
+        // a doubled claim is refused
+        let e = prove_witness(&Integer::from(d), &Integer::from(2 * h), None, &opts);
+        assert!(e.is_err(), "D = {d}: 2h accepted");
+        // a proper divisor is refused (by the analytic bound, or for lack
+        // of a class of that exact order... a class of order h exists)
+        for q in [2u64, 3, 5] {
+            if h.is_multiple_of(q) {
+                let e = prove_witness(&Integer::from(d), &Integer::from(h / q), None, &opts);
+                assert!(e.is_err(), "D = {d}: h/{q} accepted");
+            }
+        }
+    }
+}
+
+#[test]
+fn forged_witnesses_are_rejected() {
+    // h(-1000003) = 105 = 3 · 5 · 7, cyclic (oracle)
+    let d = -1_000_003;
+    let h = oracle::class_number_by_counting(d);
+    assert_eq!(oracle::group_invariants_bruteforce(d), vec![h]);
+    let honest = witness(d, h);
+    assert_eq!(code(&honest), None);
+
+    // the witness replaced by its cube: order 35, not 105
+    let mut w = honest.clone();
+    let g = classcert_verifier::form::Form::new(
+        honest.form.a.clone(),
+        honest.form.b.clone(),
+        &Integer::from(d),
+    )
+    .unwrap();
+    let g3 = g.pow(&Integer::from(3), &Integer::from(d)).unwrap();
+    w.form = classcert_format::Form {
+        a: g3.a,
+        b: g3.b,
+        c: g3.c,
+    };
+    assert_eq!(code(&w), Some("order-witness-not-exact"));
+
+    // H doubled, with 2 added to its factorisation: g^(2H/2) = g^H = 1
+    let mut w = honest.clone();
+    w.class_number *= 2;
+    w.h_factors.insert(
+        0,
+        classcert_format::PrimePower {
+            prime: Integer::from(2),
+            exponent: 1,
+            evidence: classcert_format::PrimalityEvidence::Bpsw,
+        },
+    );
+    assert_eq!(code(&w), Some("order-witness-not-exact"));
+
+    // H divided by 3, factorisation to match: g^(H/3) is not 1
+    let mut w = honest.clone();
+    w.class_number = Integer::from(h / 3);
+    w.h_factors.remove(0);
+    assert_eq!(code(&w), Some("order-witness-power"));
+
+    // the factorisation does not multiply to H
+    let mut w = honest.clone();
+    w.h_factors.pop();
+    assert_eq!(code(&w), Some("order-witness-factorisation"));
+
+    // a composite listed as a prime factor: 105 = 15 · 7
+    let mut w = honest.clone();
+    w.h_factors = vec![
+        classcert_format::PrimePower {
+            prime: Integer::from(7),
+            exponent: 1,
+            evidence: classcert_format::PrimalityEvidence::Bpsw,
+        },
+        classcert_format::PrimePower {
+            prime: Integer::from(15),
+            exponent: 1,
+            evidence: classcert_format::PrimalityEvidence::Bpsw,
+        },
+    ];
+    assert_eq!(code(&w), Some("order-witness-factorisation"));
+
+    // not a reduced form
+    let mut w = honest.clone();
+    w.form.b += Integer::from(&w.form.a * 2);
+    w.form.c = (Integer::from(w.form.b.square_ref()) - d) / (Integer::from(&w.form.a * 4));
+    assert_eq!(code(&w), Some("order-witness-form"));
+
+    // the Euler trace's stated interval narrowed
+    let mut w = honest.clone();
+    w.euler.log_l.lo.mantissa += 1;
+    w.euler.log_l.hi.mantissa -= 1;
+    assert!(code(&w).is_some());
+
+    // the file round-trips through the strict decoder
+    let (bytes, id) = encode_document(&Document::OrderWitness(Box::new(honest.clone()))).unwrap();
+    let back = decode_document(&bytes).unwrap();
+    assert_eq!(back.id, id);
+    assert_eq!(back.document, Document::OrderWitness(Box::new(honest)));
+}
+
+#[test]
+fn a_30_digit_class_number_from_the_relation_prover() {
+    // D = -4p, p the first prime ≡ 1 mod 4 above 2.5·10^28 (bench_d 30)
+    let d: Integer = "-100000000000000000000000000148".parse().unwrap();
+    let body = classcert_prover::prove(&d, &Options::default()).expect("relations prove");
+    let h = body.claim.class_number.clone();
+    let (bytes, _) = prove_witness_to_bytes(&d, &h, None, &Options::default())
+        .unwrap_or_else(|e| panic!("witness for h = {h}: {e}"));
+    let v = verify_bytes(&bytes).outcome.expect("verifies");
+    assert_eq!(v.class_number, h);
+    // the relation prover's group is cyclic here: one invariant
+    assert_eq!(body.claim.invariants.len(), 1);
+    let doubled = Integer::from(&h * 2);
+    assert!(prove_witness(&d, &doubled, None, &Options::default()).is_err());
+}
