@@ -48,6 +48,11 @@ enum Cmd {
         /// Prime factors of H, comma-separated, instead of factoring H.
         #[arg(long, value_name = "LIST", requires = "claim_class_number")]
         factors_of_h: Option<String>,
+        /// Certify without GRH: the prime ideals up to sqrt(|D|/3) generate,
+        /// and h comes from an exact series (maximal orders, D < -4; the cost
+        /// grows like sqrt|D|).
+        #[arg(long, conflicts_with = "claim_class_number")]
+        unconditional: bool,
         /// No progress lines on stderr.
         #[arg(short, long)]
         quiet: bool,
@@ -77,6 +82,7 @@ fn main() -> ExitCode {
             euler_x,
             claim_class_number,
             factors_of_h,
+            unconditional,
             quiet,
         } => {
             let Ok(d) = discriminant.trim().parse::<Integer>() else {
@@ -96,6 +102,7 @@ fn main() -> ExitCode {
                 factors,
                 euler_x,
                 progress: !quiet,
+                unconditional,
                 ..Options::default()
             };
             let result = match claim_class_number {

@@ -17,6 +17,7 @@ use classcert_verifier::form::Form;
 use classcert_verifier::interval::Interval;
 use classcert_verifier::primality::{primality_evidence, Evidence};
 use classcert_verifier::registry;
+use classcert_verifier::series;
 use rug::ops::DivRounding;
 use rug::Integer;
 
@@ -30,6 +31,9 @@ pub struct Options {
     /// Pollard-rho budget for factoring `|D|` to support a maximality claim.
     pub factor_budget: u64,
     pub progress: bool,
+    /// Certify without GRH (maximal orders with D < -4): generation by the
+    /// prime ideals up to sqrt(|D|/3) and h from an exact series.
+    pub unconditional: bool,
 }
 
 impl Default for Options {
@@ -40,6 +44,7 @@ impl Default for Options {
             euler_x: None,
             factor_budget: 3_000_000,
             progress: false,
+            unconditional: false,
         }
     }
 }
@@ -71,6 +76,10 @@ impl std::fmt::Display for ProveError {
 impl std::error::Error for ProveError {}
 
 pub const TOOL: &str = "classcert-prover";
+
+/// Largest |D| for `--unconditional` (sqrt(|D|/3) and the series' terms
+/// stay within the verifier's caps).
+pub const UNCONDITIONAL_MAX: u64 = 1_000_000_000_000;
 
 /// Checks that `D` is an admissible discriminant: `≡ 0, 1 (mod 4)`, not a
 /// square, and within the prover's size.
@@ -286,10 +295,9 @@ pub(crate) fn euler_trace(res: &euler::EulerResult, x: u64) -> EulerTrace {
 pub(crate) struct Setup {
     pub max_claim: Option<Vec<PrimePower>>,
     pub theorem: &'static str,
-    pub x: u64,
     pub conductor: Vec<(u64, u32)>,
     pub fb: FactorBase,
-    pub euler: euler::EulerResult,
+    pub trace: EulerTrace,
     /// Upper end allowed for `log h*` (`log h* R*` when `D > 0`): below
     /// it the analytic check confirms the claim.
     pub ceiling: rug::Float,
@@ -300,22 +308,65 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
     let mut progress = Progress::new(opts.progress);
     let abs_d = Integer::from(d.abs_ref());
     let max_claim = maximality(d, opts, &mut progress)?;
-    let theorem = if max_claim.is_some() {
+    if opts.unconditional && abs_d > UNCONDITIONAL_MAX {
+        return Err(ProveError::Unsupported(format!(
+            "--unconditional is for |D| <= {UNCONDITIONAL_MAX}: its generation bound sqrt(|D|/3) and its series grow like sqrt|D|"
+        )));
+    }
+    if opts.unconditional && (*d > -5 || max_claim.is_none()) {
+        return Err(ProveError::Unsupported(
+            "--unconditional needs a fundamental D < -4 whose factorisation the prover finds (or --factors): it certifies maximal imaginary orders only".into(),
+        ));
+    }
+    let theorem = if opts.unconditional {
+        registry::REDUCED_FORMS
+    } else if max_claim.is_some() {
         registry::BACH_FIELD
     } else {
         registry::ORDER_GENERATION
     };
     let bound = registry::generation_bound(theorem, &abs_d).expect("registry bound");
-    let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
-    let trial = bound.max(x);
-    progress.say(&format!("generation bound {bound}, Euler cut-off X = {x}"));
+    let (x, trial) = if opts.unconditional {
+        (series::terms_for(&abs_d), bound)
+    } else {
+        let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
+        (x, bound.max(x))
+    };
+    progress.say(&format!("generation bound {bound}, analytic cut-off {x}"));
     let primes = primes_up_to(trial);
     let (conductor, d_small) = small_conductor(d, &primes);
     let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
     let fb = FactorBase::new(d, &primes, bound, &cond_primes);
 
     // Analytic side first: it tells the search when to stop.
-    let (res, log_h) = analytic(d, x, &primes, &conductor, &d_small)?;
+    let (trace, log_h) = if opts.unconditional {
+        // h itself, without GRH (design note, section 7)
+        let h = series::class_number(d, x)
+            .ok_or_else(|| ProveError::SearchFailed("the series could not be evaluated".into()))?;
+        let log_h = h
+            .ln()
+            .ok_or_else(|| ProveError::SearchFailed("h <= 0".into()))?;
+        let w = match d.to_i32() {
+            Some(-3) => 6,
+            Some(-4) => 4,
+            _ => 2,
+        };
+        let factor = Interval::pi()
+            .mul(&Interval::u64(2))
+            .div(&Interval::u64(w).mul(&Interval::int(&abs_d).sqrt().expect("|D| > 0")))
+            .and_then(|f| f.ln())
+            .expect("a positive factor");
+        let trace = EulerTrace {
+            theorem: registry::ERFC_SERIES.to_string(),
+            x,
+            checkpoints: vec![],
+            log_l: log_h.add(&factor).to_bounds().expect("finite"),
+        };
+        (trace, log_h)
+    } else {
+        let (res, log_h) = analytic(d, x, &primes, &conductor, &d_small)?;
+        (euler_trace(&res, x), log_h)
+    };
     let ceiling = log_h.add(&Interval::ln2()).lo.clone();
     progress.say(&format!(
         "log {} in [{:.4}, {:.4}] (about {:.4e})",
@@ -327,10 +378,9 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
     Ok(Setup {
         max_claim,
         theorem,
-        x,
         conductor,
         fb,
-        euler: res,
+        trace,
         ceiling,
         progress,
     })
@@ -347,7 +397,6 @@ impl Setup {
         lattice: Lattice,
         units: Option<Units>,
     ) -> Body {
-        let res = self.euler;
         Body {
             producer: producer(opts),
             order: Order::Quadratic {
@@ -365,7 +414,7 @@ impl Setup {
                 .map(|(&p, &b)| PrimeIdeal::QuadraticForm { p, b })
                 .collect(),
             lattice,
-            euler: euler_trace(&res, self.x),
+            euler: self.trace,
             units,
         }
     }
@@ -544,8 +593,11 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 second.push(v.clone());
             }
         }
-        while rank2.rank < kd {
-            let Some(v) = sge.reduce(next_relation(&mut searcher)?) else {
+        // Tiny factor bases may have no fresh relations left: then d1 alone.
+        let mut tries = 0u32;
+        while rank2.rank < kd && tries < 20 * kd as u32 + 200 {
+            tries += 1;
+            let Some(v) = searcher.relation(20_000).and_then(|v| sge.reduce(v)) else {
                 continue;
             };
             let dv = dense(&v, &cols);
@@ -556,7 +608,11 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         }
         pending.extend(extra);
         let d1 = Integer::from(det_crt(&independent).abs_ref());
-        let d2 = Integer::from(det_crt(&second).abs_ref());
+        let d2 = if rank2.rank == kd {
+            Integer::from(det_crt(&second).abs_ref())
+        } else {
+            d1.clone()
+        };
         let m = d1.clone().gcd(&d2);
         progress.say(&format!(
             "dense block {kd} x {kd}; determinants of {} and {} bits, gcd {} bits",

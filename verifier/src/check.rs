@@ -15,7 +15,8 @@ use crate::form::Form;
 use crate::interval::Interval;
 use crate::limits::*;
 use crate::proofs::{self, ProofError, Status, Used};
-use crate::registry::{self, Theorem};
+use crate::registry::{self, Hypothesis, Theorem};
+use crate::series;
 use crate::verdict::{reject, Assumption, GeneratorView, Reason, Rejection, UnitSummary, Verified};
 use classcert_format::{
     Body, EulerTrace, Order, PrimeIdeal, PrimePower, Relation, Witness, WitnessBody,
@@ -933,6 +934,9 @@ fn check_units(body: &Body, order: &OrderOk) -> Check<Option<UnitsOk>> {
 /// of `log h` (`log h R` for `D > 0`) follows from the class number
 /// formula. Returns it with the cut-off `X`.
 fn check_euler(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(Interval, u64)> {
+    if registry::lookup(&e.theorem).map(|t| t.id) == Some(registry::ERFC_SERIES) {
+        return check_series(e, order, cond);
+    }
     if registry::lookup(&e.theorem).map(|t| t.id) != Some(registry::BELABAS_FRIEDMAN) {
         return reject(
             Reason::UnknownTheorem,
@@ -1020,6 +1024,64 @@ fn check_euler(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(In
     Ok((log_h, x))
 }
 
+/// Section 7: `h` itself from the series of [`crate::series`], without
+/// GRH, for a maximal order of discriminant `D < -4`. The stated
+/// `log-l` must contain `log L(1, χ) = log(2 π h / (w sqrt|D|))`.
+fn check_series(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(Interval, u64)> {
+    if order.real || order.d > -5 || !cond.maximal {
+        return reject(
+            Reason::GenerationTheoremNotApplicable,
+            "the unconditional series applies to maximal orders with D < -4 only",
+        );
+    }
+    let n = e.x;
+    if n == 0 || n > MAX_SERIES_TERMS || !e.checkpoints.is_empty() {
+        return reject(
+            Reason::EulerXOutOfRange,
+            format!("the series needs 1 to {MAX_SERIES_TERMS} terms and no checkpoints"),
+        );
+    }
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let Some(h) = series::class_number(&order.d, n) else {
+        return bad();
+    };
+    if h.lo <= 0 {
+        return reject(
+            Reason::EulerXTooSmall,
+            format!("{n} terms do not bound h away from 0"),
+        );
+    }
+    let Some(log_h) = h.ln() else { return bad() };
+    // log L = log h + log(2π / (w sqrt|D|))
+    let Some(factor) = Interval::pi()
+        .mul(&Interval::u64(2))
+        .div(
+            &Interval::u64(u64::from(order.w)).mul(
+                &Interval::int(&order.abs_d)
+                    .sqrt()
+                    .unwrap_or(Interval::zero()),
+            ),
+        )
+        .and_then(|f| f.ln())
+    else {
+        return bad();
+    };
+    let log_l = log_h.add(&factor);
+    let Some(claimed) = Interval::from_bounds(&e.log_l) else {
+        return reject(
+            Reason::EulerIntervalUnderstated,
+            "the stated interval is out of range",
+        );
+    };
+    if !claimed.contains(&log_l) {
+        return reject(
+            Reason::EulerIntervalUnderstated,
+            "the stated enclosure of log L(1, chi) does not contain the series' one",
+        );
+    }
+    Ok((log_h, n))
+}
+
 fn check_analytic(
     body: &Body,
     order: &OrderOk,
@@ -1090,7 +1152,8 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
             format!("{:?} is not a generation bound", gen_theorem.id),
         );
     };
-    let x = body.euler.x;
+    let series = body.euler.theorem == registry::ERFC_SERIES;
+    let x = if series { 0 } else { body.euler.x };
     let trial_bound = bound.max(x);
     if trial_bound > MAX_SIEVE {
         return reject(
@@ -1104,7 +1167,9 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
         &order,
         trial_bound,
     )?;
-    if gen_theorem.id == registry::BACH_FIELD && !cond.maximal {
+    if (gen_theorem.id == registry::BACH_FIELD || gen_theorem.id == registry::REDUCED_FORMS)
+        && !cond.maximal
+    {
         return reject(
             Reason::GenerationTheoremNotApplicable,
             "the field bound applies only to a maximal order, and maximality is not certified",
@@ -1118,7 +1183,13 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
     let analytic = check_analytic(body, &order, &cond, &lat, units.as_ref())?;
     let _ = mod_small;
 
-    let mut assumptions = vec![Assumption::Grh];
+    let analytic_theorem = registry::lookup(&body.euler.theorem);
+    let grh = gen_theorem.hypothesis == Hypothesis::Grh
+        || analytic_theorem.is_none_or(|t| t.hypothesis == Hypothesis::Grh);
+    let mut assumptions = Vec::new();
+    if grh {
+        assumptions.push(Assumption::Grh);
+    }
     if cond.bpsw_assumed {
         assumptions.push(Assumption::BpswProbablePrime);
     }
@@ -1132,11 +1203,15 @@ pub fn verify_body(body: &Body) -> Check<Verified> {
             registry::CLASS_NUMBER_FORMULA_REAL,
         ]
     } else {
-        &[
-            registry::LATTICE_INDEX,
-            registry::BELABAS_FRIEDMAN,
-            registry::CLASS_NUMBER_FORMULA,
-        ]
+        if series {
+            &[registry::LATTICE_INDEX, registry::ERFC_SERIES]
+        } else {
+            &[
+                registry::LATTICE_INDEX,
+                registry::BELABAS_FRIEDMAN,
+                registry::CLASS_NUMBER_FORMULA,
+            ]
+        }
     };
     for id in ids {
         if let Some(t) = registry::lookup(id) {

@@ -183,6 +183,24 @@ impl Interval {
         })
     }
 
+    /// `e^x`, increasing.
+    pub fn exp(&self) -> Interval {
+        let p = self.prec();
+        Interval {
+            lo: down(p, self.lo.exp_ref()),
+            hi: up(p, self.hi.exp_ref()),
+        }
+    }
+
+    /// The complementary error function, decreasing.
+    pub fn erfc(&self) -> Interval {
+        let p = self.prec();
+        Interval {
+            lo: down(p, self.hi.erfc_ref()),
+            hi: up(p, self.lo.erfc_ref()),
+        }
+    }
+
     pub fn sqrt(&self) -> Option<Interval> {
         if self.lo < 0 || !self.hi.is_finite() {
             return None;

@@ -37,6 +37,7 @@ pub mod limits;
 pub mod primality;
 pub mod proofs;
 pub mod registry;
+pub mod series;
 pub mod verdict;
 
 use classcert_format::{DecodeError, Document, FileError};

@@ -34,3 +34,6 @@ pub const MAX_PROOF_DEPTH: u32 = 64;
 pub const MAX_PROOF_FACTORS: usize = 4096;
 /// Modular exponentiations all primality proofs of a certificate may cost.
 pub const MAX_PROOF_POWERS: u64 = 100_000;
+/// Terms of the unconditional class number series (its sieve of smallest
+/// prime factors holds one u32 per term).
+pub const MAX_SERIES_TERMS: u64 = 10_000_000;

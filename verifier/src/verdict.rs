@@ -295,7 +295,11 @@ const NOT_PROVEN_REAL: &[&str] = &[
 ];
 
 fn not_proven(v: &Verified) -> Vec<&'static str> {
-    let mut out: Vec<&'static str> = NOT_PROVEN.to_vec();
+    let mut out: Vec<&'static str> = NOT_PROVEN
+        .iter()
+        .copied()
+        .filter(|s| !(v.assumptions.is_empty() && s.starts_with("the hypotheses")))
+        .collect();
     if v.unit.is_some() {
         out.extend_from_slice(NOT_PROVEN_REAL);
     }
@@ -452,7 +456,11 @@ impl Report {
                 }
                 s.push_str(&format!("  roots of 1    w = {}\n", v.w));
                 let assumptions: Vec<&str> = v.assumptions.iter().map(|a| a.name()).collect();
-                s.push_str(&format!("  rests on      {}\n", assumptions.join(", ")));
+                if assumptions.is_empty() {
+                    s.push_str("  rests on      no hypothesis: the result is unconditional\n");
+                } else {
+                    s.push_str(&format!("  rests on      {}\n", assumptions.join(", ")));
+                }
                 if v.order_witness {
                     s.push_str(&format!(
                         "  checked       a class of exact order {}, Euler product to X = {}, log h in [{:.6}, {:.6}]\n",
