@@ -1002,26 +1002,32 @@ fn check_euler(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(In
             );
         }
     }
-    let Some(claimed) = Interval::from_bounds(&e.log_l) else {
+    stated_log_l_contains(&e.log_l, &res.log_l)?;
+    let Some(log_h) = log_h_enclosure(&order.d, order.w, &res.log_l, &cond.conductor, ds, x) else {
+        return bad();
+    };
+    Ok((log_h, x))
+}
+
+/// The certificate's enclosure of `log L(1, χ)` must contain the verifier's.
+fn stated_log_l_contains(stated: &classcert_format::Bounds, mine: &Interval) -> Check<()> {
+    let Some(claimed) = Interval::from_bounds(stated) else {
         return reject(
             Reason::EulerIntervalUnderstated,
             "the stated interval is out of range",
         );
     };
-    if !claimed.contains(&res.log_l) {
+    if !claimed.contains(mine) {
         return reject(
             Reason::EulerIntervalUnderstated,
             format!(
                 "the stated enclosure of log L(1, chi) does not contain the rigorous one [{:.9}, {:.9}]",
-                res.log_l.lo.to_f64(),
-                res.log_l.hi.to_f64()
+                mine.lo.to_f64(),
+                mine.hi.to_f64()
             ),
         );
     }
-    let Some(log_h) = log_h_enclosure(&order.d, order.w, &res.log_l, &cond.conductor, ds, x) else {
-        return bad();
-    };
-    Ok((log_h, x))
+    Ok(())
 }
 
 /// Section 7: `h` itself from the series of [`crate::series`], without
@@ -1067,18 +1073,7 @@ fn check_series(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(I
         return bad();
     };
     let log_l = log_h.add(&factor);
-    let Some(claimed) = Interval::from_bounds(&e.log_l) else {
-        return reject(
-            Reason::EulerIntervalUnderstated,
-            "the stated interval is out of range",
-        );
-    };
-    if !claimed.contains(&log_l) {
-        return reject(
-            Reason::EulerIntervalUnderstated,
-            "the stated enclosure of log L(1, chi) does not contain the series' one",
-        );
-    }
+    stated_log_l_contains(&e.log_l, &log_l)?;
     Ok((log_h, n))
 }
 
