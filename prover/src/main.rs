@@ -48,6 +48,10 @@ enum Cmd {
         /// Prime factors of H, comma-separated, instead of factoring H.
         #[arg(long, value_name = "LIST", requires = "claim_class_number")]
         factors_of_h: Option<String>,
+        /// The claimed structure d1,d2,... (d1 | d2 | ..., product H) for a
+        /// group that is not cyclic; one witness per invariant.
+        #[arg(long, value_name = "LIST", requires = "claim_class_number")]
+        claim_invariants: Option<String>,
         /// Certify without GRH: the prime ideals up to sqrt(|D|/3) generate,
         /// and h comes from an exact series (maximal orders, D < -4; the cost
         /// grows like sqrt|D|).
@@ -82,6 +86,7 @@ fn main() -> ExitCode {
             euler_x,
             claim_class_number,
             factors_of_h,
+            claim_invariants,
             unconditional,
             quiet,
         } => {
@@ -122,7 +127,19 @@ fn main() -> ExitCode {
                             return ExitCode::from(2);
                         }
                     };
-                    classcert_prover::witness::prove_witness_to_bytes(&d, &h, hf, &opts)
+                    let inv = match claim_invariants.map(|s| {
+                        s.split(',')
+                            .map(|t| t.trim().parse::<Integer>())
+                            .collect::<Result<Vec<_>, _>>()
+                    }) {
+                        None => None,
+                        Some(Ok(v)) => Some(v),
+                        Some(Err(_)) => {
+                            eprintln!("classcert: --claim-invariants takes integers d1,d2,...");
+                            return ExitCode::from(2);
+                        }
+                    };
+                    classcert_prover::witness::prove_witness_to_bytes(&d, &h, hf, inv, &opts)
                 }
             };
             match result {

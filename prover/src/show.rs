@@ -268,14 +268,16 @@ pub fn witness_text(w: &classcert_format::WitnessBody, id_hex: &str) -> String {
         }
     ));
     s.push_str(&format!(
-        "  claim          Cl cyclic of order H = {} = {}\n",
+        "  claim          #Cl = H = {} = {}\n",
         w.class_number,
         factorisation_text(&w.h_factors)
     ));
-    s.push_str(&format!(
-        "  witness        ({}, {}, {}) of exact order H\n",
-        w.form.a, w.form.b, w.form.c
-    ));
+    for g in &w.generators {
+        s.push_str(&format!(
+            "  witness        ({}, {}, {}) of exact order {}\n",
+            g.form.a, g.form.b, g.form.c, g.order
+        ));
+    }
     s.push_str(&format!(
         "  Euler product  X = {} ({})\n",
         w.euler.x, w.euler.theorem

@@ -24,10 +24,50 @@ use rug::Integer;
 const MAX_CANDIDATES: usize = 2000;
 
 /// Builds an order-witness certificate for `#Cl(O_D) = h`, or says why not.
+/// No nonzero combination of the `g^(d/p)` is trivial, for each prime `p`
+/// (the check the verifier makes, by brute force over `(Z/p)^r`).
+fn independent(gens: &[(Integer, Form)], primes: &[Integer], d: &Integer) -> bool {
+    let principal = Form::principal(d);
+    for p in primes {
+        let socle: Vec<Form> = gens
+            .iter()
+            .filter(|(di, _)| di.is_divisible(p))
+            .map(|(di, g)| g.pow(&Integer::from(di / p), d).expect("form arithmetic"))
+            .collect();
+        if socle.len() < 2 {
+            continue;
+        }
+        let Some(pu) = p.to_u64() else {
+            return false;
+        };
+        let size = pu.saturating_pow(socle.len() as u32);
+        if size > 1_000_000 {
+            return false;
+        }
+        let mut c = vec![0u64; socle.len()];
+        for _ in 1..size {
+            for slot in c.iter_mut() {
+                *slot += 1;
+                if *slot < pu {
+                    break;
+                }
+                *slot = 0;
+            }
+            let exps: Vec<Integer> = c.iter().map(|&x| Integer::from(x)).collect();
+            let terms: Vec<(&Form, &Integer)> = socle.iter().zip(exps.iter()).collect();
+            if Form::product(&terms, d).expect("form arithmetic") == principal {
+                return false;
+            }
+        }
+    }
+    true
+}
+
 pub fn prove_witness(
     d: &Integer,
     h: &Integer,
     h_factors: Option<Vec<Integer>>,
+    invariants: Option<Vec<Integer>>,
     opts: &Options,
 ) -> Result<WitnessBody, ProveError> {
     validate(d)?;
@@ -80,49 +120,83 @@ pub fn prove_witness(
             log_h.hi.to_f64().exp()
         )));
     }
-    // A class of exact order H.
+    // Invariants: the claim's, or [H] (cyclic); none for H = 1.
+    let invariants: Vec<Integer> = match invariants {
+        Some(v) => {
+            let prod: Integer = v.iter().product();
+            let chain = v.windows(2).all(|w| w[1].is_divisible(&w[0]));
+            if prod != *h || !chain || v.iter().any(|x| *x <= 1) {
+                return Err(ProveError::InvalidInput(format!(
+                    "the claimed invariants must exceed 1, divide each other in turn and multiply to H = {h}"
+                )));
+            }
+            v
+        }
+        None if *h == 1 => vec![],
+        None => vec![h.clone()],
+    };
+    // Classes of exact orders d_i, independent: for random c, c itself or
+    // c^(e/d_i) with e the group's exponent (the largest invariant).
     let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
     let fb = FactorBase::new(d, &primes, x.min(50_000), &cond_primes);
     let principal = Form::principal(d);
     let pow = |f: &Form, e: &Integer| f.pow(e, d).expect("form arithmetic");
-    let cofactors: Vec<Integer> = fac.iter().map(|(q, _)| Integer::from(h / q)).collect();
+    let exponent = invariants
+        .last()
+        .cloned()
+        .unwrap_or_else(|| Integer::from(1));
+    let primes_of_h: Vec<Integer> = fac.iter().map(|(q, _)| q.clone()).collect();
     let mut rng = Rng::new(opts.seed);
-    let mut found = None;
-    for i in 0..MAX_CANDIDATES {
-        if fb.is_empty() {
-            break;
-        }
-        // prime forms first, then random products of a few of them
-        let cand = if i < fb.len().min(50) {
-            fb.forms[i].clone()
-        } else {
-            let mut c = principal.clone();
-            for _ in 0..3 {
-                let j = rng.below(fb.len().min(200) as u64) as usize;
-                c = c.compose(&fb.forms[j]).expect("form arithmetic");
+    let mut chosen: Vec<(Integer, Form)> = Vec::new();
+    let mut tries = 0usize;
+    for di in invariants.iter().rev() {
+        loop {
+            tries += 1;
+            if tries > MAX_CANDIDATES || fb.is_empty() {
+                return Err(ProveError::SearchFailed(format!(
+                    "no independent classes of orders {invariants:?} among {MAX_CANDIDATES} tried: the group may have another structure; use the full certificate (prove without --claim-class-number)"
+                )));
             }
-            c
-        };
-        if pow(&cand, h) != principal {
-            return Err(ProveError::InvalidInput(format!(
-                "H = {h} is not the class number: the class of ({}, {}, {}) has order not dividing H",
-                cand.a, cand.b, cand.c
-            )));
-        }
-        if cofactors.iter().all(|e| pow(&cand, e) != principal) {
-            found = Some(cand);
-            break;
+            // prime forms first, then random products of a few of them
+            let c = if tries <= fb.len().min(50) {
+                fb.forms[tries - 1].clone()
+            } else {
+                let mut c = principal.clone();
+                for _ in 0..3 {
+                    let j = rng.below(fb.len().min(200) as u64) as usize;
+                    c = c.compose(&fb.forms[j]).expect("form arithmetic");
+                }
+                c
+            };
+            if pow(&c, &exponent) != principal {
+                return Err(ProveError::InvalidInput(format!(
+                    "the claim is wrong: the class of ({}, {}, {}) has order not dividing {exponent}",
+                    c.a, c.b, c.c
+                )));
+            }
+            // c itself when its order divides d_i (it may lie outside the
+            // larger invariants' multiples), else c^(e/d_i)
+            let g = if pow(&c, di) == principal {
+                c.reduce().expect("a positive definite form reduces")
+            } else {
+                pow(&c, &Integer::from(&exponent / di))
+            };
+            let exact = primes_of_h
+                .iter()
+                .filter(|q| di.is_divisible(q))
+                .all(|q| pow(&g, &Integer::from(di / q)) != principal);
+            if !exact {
+                continue;
+            }
+            let mut trial = chosen.clone();
+            trial.push((di.clone(), g.clone()));
+            if independent(&trial, &primes_of_h, d) {
+                chosen.push((di.clone(), g));
+                break;
+            }
         }
     }
-    let g = match (found, *h == 1) {
-        (Some(g), _) => g,
-        (None, true) => principal.clone(),
-        (None, false) => {
-            return Err(ProveError::SearchFailed(format!(
-                "no class of exact order H = {h} among {MAX_CANDIDATES} tried: the class group may not be cyclic, or H may be a proper multiple of every order; use the full certificate (prove without --claim-class-number)"
-            )))
-        }
-    };
+    chosen.reverse();
     Ok(WitnessBody {
         producer: producer(opts),
         order: Order::Quadratic {
@@ -130,11 +204,17 @@ pub fn prove_witness(
         },
         class_number: h.clone(),
         h_factors: h_powers,
-        form: classcert_format::Form {
-            a: g.a,
-            b: g.b,
-            c: g.c,
-        },
+        generators: chosen
+            .into_iter()
+            .map(|(order, g)| WitnessGenerator {
+                order,
+                form: classcert_format::Form {
+                    a: g.a,
+                    b: g.b,
+                    c: g.c,
+                },
+            })
+            .collect(),
         conductor_small: conductor,
         maximality: max_claim,
         euler: euler_trace(&res, x),
@@ -146,8 +226,9 @@ pub fn prove_witness_to_bytes(
     d: &Integer,
     h: &Integer,
     h_factors: Option<Vec<Integer>>,
+    invariants: Option<Vec<Integer>>,
     opts: &Options,
 ) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
-    let w = prove_witness(d, h, h_factors, opts)?;
+    let w = prove_witness(d, h, h_factors, invariants, opts)?;
     crate::encode_and_check(&Document::OrderWitness(Box::new(w)), opts)
 }

@@ -434,6 +434,7 @@ fn order_witness_certificates_match_the_schema() {
         &Integer::from(-1_000_003),
         &Integer::from(105),
         None,
+        None,
         &Options::default(),
     )
     .expect("the witness proves");

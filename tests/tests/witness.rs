@@ -18,6 +18,7 @@ fn witness(d: i64, h: u64) -> WitnessBody {
         &Integer::from(d),
         &Integer::from(h),
         None,
+        None,
         &Options::default(),
     )
     .unwrap_or_else(|e| panic!("witness for h({d}) = {h}: {e}"))
@@ -39,6 +40,7 @@ fn published_class_numbers_by_order_witness() {
             &Integer::from(d),
             &Integer::from(h),
             None,
+            None,
             &Options::default(),
         )
         .unwrap_or_else(|e| panic!("D = {d}: {e}"));
@@ -52,6 +54,7 @@ fn published_class_numbers_by_order_witness() {
 fn random_cyclic_groups_by_order_witness_and_wrong_claims_refused() {
     let mut rng = SplitMix::new(0x5eed_0008);
     let mut cyclic = 0;
+    let mut noncyclic = 0;
     while cyclic < 25 {
         let d = -(rng.log_range(1000, 3_000_000) as i64);
         if !oracle::is_discriminant(d) {
@@ -62,24 +65,73 @@ fn random_cyclic_groups_by_order_witness_and_wrong_claims_refused() {
         let opts = Options::default();
         if inv.len() > 1 {
             // not cyclic: no class has order h
-            assert!(prove_witness(&Integer::from(d), &Integer::from(h), None, &opts).is_err());
+            assert!(
+                prove_witness(&Integer::from(d), &Integer::from(h), None, None, &opts).is_err()
+            );
+            // with the true invariants (oracle), a witness per invariant,
+            // when the prover's random search finds independent ones
+            let inv: Vec<Integer> = inv.iter().map(|&x| Integer::from(x)).collect();
+            if let Ok(w) =
+                prove_witness(&Integer::from(d), &Integer::from(h), None, Some(inv), &opts)
+            {
+                assert_eq!(code(&w), None, "D = {d}");
+                noncyclic += 1;
+            }
             continue;
         }
         cyclic += 1;
         let w = witness(d, h);
         assert_eq!(code(&w), None, "D = {d}, h = {h}");
         // a doubled claim is refused
-        let e = prove_witness(&Integer::from(d), &Integer::from(2 * h), None, &opts);
+        let e = prove_witness(&Integer::from(d), &Integer::from(2 * h), None, None, &opts);
         assert!(e.is_err(), "D = {d}: 2h accepted");
         // a proper divisor is refused (by the analytic bound, or for lack
         // of a class of that exact order... a class of order h exists)
         for q in [2u64, 3, 5] {
             if h.is_multiple_of(q) {
-                let e = prove_witness(&Integer::from(d), &Integer::from(h / q), None, &opts);
+                let e = prove_witness(&Integer::from(d), &Integer::from(h / q), None, None, &opts);
                 assert!(e.is_err(), "D = {d}: h/{q} accepted");
             }
         }
     }
+    assert!(
+        noncyclic > 0,
+        "no non-cyclic group was certified by witnesses"
+    );
+}
+
+#[test]
+fn non_cyclic_3299_by_two_witnesses() {
+    // Cl(-3299) ≅ Z/3 x Z/9 (the oracle's brute force agrees)
+    let d = -3299;
+    assert_eq!(oracle::group_invariants_bruteforce(d), vec![3, 9]);
+    let inv = vec![Integer::from(3), Integer::from(9)];
+    let opts = Options::default();
+    let w = prove_witness(
+        &Integer::from(d),
+        &Integer::from(27),
+        None,
+        Some(inv),
+        &opts,
+    )
+    .expect("two independent witnesses");
+    assert_eq!(code(&w), None);
+    // Z/27 is refused: no class of order 27
+    let z27 = Some(vec![Integer::from(27)]);
+    assert!(prove_witness(&Integer::from(d), &Integer::from(27), None, z27, &opts).is_err());
+    // a dependent pair: the order-3 witness replaced by the cube of the
+    // order-9 one
+    let mut bad = w.clone();
+    let dd = Integer::from(d);
+    let g9 = &w.generators[1].form;
+    let g9 = classcert_verifier::form::Form::new(g9.a.clone(), g9.b.clone(), &dd).unwrap();
+    let cube = g9.pow(&Integer::from(3), &dd).unwrap();
+    bad.generators[0].form = classcert_format::Form {
+        a: cube.a,
+        b: cube.b,
+        c: cube.c,
+    };
+    assert_eq!(code(&bad), Some("order-witness-dependent"));
 }
 
 #[test]
@@ -93,23 +145,22 @@ fn forged_witnesses_are_rejected() {
 
     // the witness replaced by its cube: order 35, not 105
     let mut w = honest.clone();
-    let g = classcert_verifier::form::Form::new(
-        honest.form.a.clone(),
-        honest.form.b.clone(),
-        &Integer::from(d),
-    )
-    .unwrap();
+    let f0 = &honest.generators[0].form;
+    let g =
+        classcert_verifier::form::Form::new(f0.a.clone(), f0.b.clone(), &Integer::from(d)).unwrap();
     let g3 = g.pow(&Integer::from(3), &Integer::from(d)).unwrap();
-    w.form = classcert_format::Form {
+    w.generators[0].form = classcert_format::Form {
         a: g3.a,
         b: g3.b,
         c: g3.c,
     };
     assert_eq!(code(&w), Some("order-witness-not-exact"));
 
-    // H doubled, with 2 added to its factorisation: g^(2H/2) = g^H = 1
+    // H doubled, with 2 added to its factorisation and to g's order:
+    // g^(2H/2) = g^H = 1
     let mut w = honest.clone();
     w.class_number *= 2;
+    w.generators[0].order *= 2;
     w.h_factors.insert(
         0,
         classcert_format::PrimePower {
@@ -123,6 +174,7 @@ fn forged_witnesses_are_rejected() {
     // H divided by 3, factorisation to match: g^(H/3) is not 1
     let mut w = honest.clone();
     w.class_number = Integer::from(h / 3);
+    w.generators[0].order = Integer::from(h / 3);
     w.h_factors.remove(0);
     assert_eq!(code(&w), Some("order-witness-power"));
 
@@ -149,8 +201,9 @@ fn forged_witnesses_are_rejected() {
 
     // not a reduced form
     let mut w = honest.clone();
-    w.form.b += Integer::from(&w.form.a * 2);
-    w.form.c = (Integer::from(w.form.b.square_ref()) - d) / (Integer::from(&w.form.a * 4));
+    let f = &mut w.generators[0].form;
+    f.b += Integer::from(&f.a * 2);
+    f.c = (Integer::from(f.b.square_ref()) - d) / (Integer::from(&f.a * 4));
     assert_eq!(code(&w), Some("order-witness-form"));
 
     // the Euler trace's stated interval narrowed
@@ -172,12 +225,12 @@ fn a_30_digit_class_number_from_the_relation_prover() {
     let d: Integer = "-100000000000000000000000000148".parse().unwrap();
     let body = classcert_prover::prove(&d, &Options::default()).expect("relations prove");
     let h = body.claim.class_number.clone();
-    let (bytes, _) = prove_witness_to_bytes(&d, &h, None, &Options::default())
+    let (bytes, _) = prove_witness_to_bytes(&d, &h, None, None, &Options::default())
         .unwrap_or_else(|e| panic!("witness for h = {h}: {e}"));
     let v = verify_bytes(&bytes).outcome.expect("verifies");
     assert_eq!(v.class_number, h);
     // the relation prover's group is cyclic here: one invariant
     assert_eq!(body.claim.invariants.len(), 1);
     let doubled = Integer::from(&h * 2);
-    assert!(prove_witness(&d, &doubled, None, &Options::default()).is_err());
+    assert!(prove_witness(&d, &doubled, None, None, &Options::default()).is_err());
 }

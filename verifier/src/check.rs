@@ -1281,48 +1281,140 @@ pub fn verify_witness(w: &WitnessBody) -> Check<Verified> {
         &mut work,
         &mut used,
     )?;
-    // The witness: a reduced primitive form of discriminant D.
+    // The witnesses: reduced primitive forms g_i of exact orders d_i,
+    // d_1 | d_2 | ..., prod d_i = H.
     let d = &order.d;
-    let f = &w.form;
-    let Ok(g) = Form::new(f.a.clone(), f.b.clone(), d) else {
+    if w.generators.len() > MAX_RANK {
+        return reject(Reason::OverLimit, "too many witnesses");
+    }
+    let mut prod = Integer::from(1);
+    let mut forms = Vec::with_capacity(w.generators.len());
+    for (i, wg) in w.generators.iter().enumerate() {
+        let f = &wg.form;
+        let Ok(g) = Form::new(f.a.clone(), f.b.clone(), d) else {
+            return reject(
+                Reason::OrderWitnessForm,
+                format!("witness {i} is not a form of discriminant D"),
+            );
+        };
+        let primitive = Integer::from(g.a.gcd_ref(&g.b)).gcd(&g.c) == 1;
+        if g.c != f.c || !g.is_reduced() || !primitive {
+            return reject(
+                Reason::OrderWitnessForm,
+                format!("witness {i} must be a reduced primitive form of discriminant D"),
+            );
+        }
+        let ok_order = wg.order > 1
+            && wg.order.significant_bits() <= MAX_ENTRY_BITS
+            && forms
+                .last()
+                .is_none_or(|(prev, _): &(Integer, Form)| wg.order.is_divisible(prev));
+        if !ok_order {
+            return reject(
+                Reason::OrderWitnessFactorisation,
+                "the witnesses' orders must exceed 1 and divide each other in turn",
+            );
+        }
+        prod *= &wg.order;
+        if prod.significant_bits() > MAX_ENTRY_BITS {
+            return reject(Reason::OverLimit, "the witnesses' orders are too large");
+        }
+        forms.push((wg.order.clone(), g));
+    }
+    if prod != *h {
         return reject(
-            Reason::OrderWitnessForm,
-            "the witness is not a form of discriminant D",
-        );
-    };
-    let primitive = Integer::from(g.a.gcd_ref(&g.b)).gcd(&g.c) == 1;
-    if g.c != f.c || !g.is_reduced() || !primitive {
-        return reject(
-            Reason::OrderWitnessForm,
-            "the witness must be a reduced primitive form of discriminant D",
+            Reason::OrderWitnessFactorisation,
+            format!("the witnesses' orders multiply to {prod}, not H = {h}"),
         );
     }
-    // g^H = 1 and g^(H/q) != 1 for every prime q | H
+    // g_i^(d_i) = 1 and g_i^(d_i/q) != 1 for every prime q | d_i
     let mut budget = Budget(MAX_COMPOSITIONS);
     let principal = Form::principal(d);
-    let power = |e: &Integer, budget: &mut Budget| -> Check<Form> {
+    let power = |g: &Form, e: &Integer, budget: &mut Budget| -> Check<Form> {
         budget.charge(&[e])?;
         match g.pow(e, d) {
             Ok(x) => Ok(x),
             Err(_) => reject(Reason::OrderWitnessForm, "form arithmetic failed"),
         }
     };
-    if power(h, &mut budget)? != principal {
-        return reject(
-            Reason::OrderWitnessPower,
-            "g^H is not the principal form: H is not a multiple of the order of g",
-        );
-    }
-    for pp in &w.h_factors {
-        let e = Integer::from(h / &pp.prime);
-        if power(&e, &mut budget)? == principal {
+    for (i, (di, g)) in forms.iter().enumerate() {
+        if power(g, di, &mut budget)? != principal {
             return reject(
-                Reason::OrderWitnessNotExact,
+                Reason::OrderWitnessPower,
                 format!(
-                    "g^(H/{}) is the principal form: g has order below H",
-                    pp.prime
+                    "g_{i}^{di} is not the principal form: {di} is not a multiple of its order"
                 ),
             );
+        }
+        for pp in w.h_factors.iter().filter(|pp| di.is_divisible(&pp.prime)) {
+            let e = Integer::from(di / &pp.prime);
+            if power(g, &e, &mut budget)? == principal {
+                return reject(
+                    Reason::OrderWitnessNotExact,
+                    format!(
+                        "g_{i}^({di}/{}) is the principal form: g_{i} has order below {di}",
+                        pp.prime
+                    ),
+                );
+            }
+        }
+    }
+    // Independence: the map ⊕ Z/d_i -> Cl is injective iff it is on the
+    // p-socle for every prime p | H (a nonzero kernel has an element of
+    // prime order; common practice): no nonzero c in (Z/p)^r with
+    // ∏ (g_i^(d_i/p))^(c_i) = 1, checked by brute force.
+    let mut combos: u64 = 0;
+    for pp in &w.h_factors {
+        let p = &pp.prime;
+        let socle: Vec<Form> = forms
+            .iter()
+            .filter(|(di, _)| di.is_divisible(p))
+            .map(|(di, g)| power(g, &Integer::from(di / p), &mut budget))
+            .collect::<Check<Vec<Form>>>()?;
+        if socle.len() < 2 {
+            continue; // one element of order p is independent by itself
+        }
+        let Some(pu) = p.to_u64() else {
+            return reject(Reason::OverLimit, "a socle too large to search");
+        };
+        let mut size: u64 = 1;
+        for _ in 0..socle.len() {
+            size = size.saturating_mul(pu);
+        }
+        combos = combos.saturating_add(size);
+        if combos > MAX_SOCLE_COMBINATIONS {
+            return reject(Reason::OverLimit, "a socle too large to search");
+        }
+        // all c in (Z/p)^r \ {0}, as counters
+        let mut c = vec![0u64; socle.len()];
+        for _ in 1..size {
+            // next c
+            for slot in c.iter_mut() {
+                *slot += 1;
+                if *slot < pu {
+                    break;
+                }
+                *slot = 0;
+            }
+            let terms: Vec<(&Form, Integer)> = socle
+                .iter()
+                .zip(c.iter())
+                .map(|(f, ci)| (f, Integer::from(*ci)))
+                .collect();
+            let refs: Vec<(&Form, &Integer)> = terms.iter().map(|(f, e)| (*f, e)).collect();
+            let exps: Vec<&Integer> = refs.iter().map(|(_, e)| *e).collect();
+            budget.charge(&exps)?;
+            let Ok(x) = Form::product(&refs, d) else {
+                return reject(Reason::OrderWitnessForm, "form arithmetic failed");
+            };
+            if x == principal {
+                return reject(
+                    Reason::OrderWitnessDependent,
+                    format!(
+                        "the witnesses are not independent: a combination of order {p} is trivial"
+                    ),
+                );
+            }
         }
     }
     // #Cl = k H with k >= 1, and log #Cl <= hi(log h): k = 1 when
@@ -1373,15 +1465,13 @@ pub fn verify_witness(w: &WitnessBody) -> Check<Verified> {
             theorems.push(t);
         }
     }
-    let nontrivial = *h > 1;
     Ok(Verified {
         class_number: h.clone(),
-        invariants: if nontrivial { vec![h.clone()] } else { vec![] },
-        generators: if nontrivial {
-            vec![GeneratorView::Form(g.a.clone(), g.b.clone(), g.c.clone())]
-        } else {
-            vec![]
-        },
+        invariants: forms.iter().map(|(di, _)| di.clone()).collect(),
+        generators: forms
+            .iter()
+            .map(|(_, g)| GeneratorView::Form(g.a.clone(), g.b.clone(), g.c.clone()))
+            .collect(),
         unit: None,
         maximal: cond.maximal,
         assumptions,

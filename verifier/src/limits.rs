@@ -37,3 +37,5 @@ pub const MAX_PROOF_POWERS: u64 = 100_000;
 /// Terms of the unconditional class number series (its sieve of smallest
 /// prime factors holds one u32 per term).
 pub const MAX_SERIES_TERMS: u64 = 10_000_000;
+/// Combinations an order witness's socle search may try.
+pub const MAX_SOCLE_COMBINATIONS: u64 = 1_000_000;

@@ -60,6 +60,7 @@ pub enum Reason {
     OrderWitnessForm,
     OrderWitnessPower,
     OrderWitnessNotExact,
+    OrderWitnessDependent,
 }
 
 impl Reason {
@@ -116,6 +117,7 @@ impl Reason {
             OrderWitnessForm => "order-witness-form",
             OrderWitnessPower => "order-witness-power",
             OrderWitnessNotExact => "order-witness-not-exact",
+            OrderWitnessDependent => "order-witness-dependent",
         }
     }
 }
