@@ -69,3 +69,25 @@ fn grh_certificates_fail_the_unconditional_policy() {
     let r = verify_bytes(&bytes).require(Requirement::Unconditional);
     assert_eq!(r.outcome.err().map(|e| e.reason.code()), Some("policy"));
 }
+
+/// The long comparison (not run by CI): 300 random fundamental D with
+/// |D| < 10^8, unconditional against GRH. Run with
+/// `cargo test --release -p classcert-tests --test unconditional -- --ignored`.
+#[test]
+#[ignore = "takes minutes; run by hand"]
+fn unconditional_agrees_with_grh_up_to_1e8() {
+    let mut rng = SplitMix::new(0x5eed_000a);
+    let mut done = 0;
+    while done < 300 {
+        let d = -(rng.log_range(5, 100_000_000) as i64);
+        if !oracle::is_fundamental(d) || d > -5 {
+            continue;
+        }
+        let u = verdict(d, true);
+        let g = verdict(d, false);
+        assert!(u.assumptions.is_empty());
+        assert_eq!(u.class_number, g.class_number, "D = {d}");
+        assert_eq!(u.invariants, g.invariants, "D = {d}");
+        done += 1;
+    }
+}
