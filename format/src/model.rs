@@ -456,6 +456,24 @@ fn relation(r: &Relation) -> Value {
     cbor::map(vec![("e", sparse(&r.entries)), ("w", witness(&r.witness))])
 }
 
+/// `[q, e, (base,) evidence]` for each prime power of a proof.
+fn proof_factors<'a>(
+    items: impl Iterator<Item = (&'a Integer, u32, Option<&'a Integer>, &'a PrimalityEvidence)>,
+) -> Value {
+    Value::Array(
+        items
+            .map(|(q, e, base, ev)| {
+                let mut v = vec![cbor::int(q), cbor::uint(u64::from(e))];
+                if let Some(b) = base {
+                    v.push(cbor::int(b));
+                }
+                v.push(evidence(ev));
+                Value::Array(v)
+            })
+            .collect(),
+    )
+}
+
 fn evidence(e: &PrimalityEvidence) -> Value {
     match e {
         PrimalityEvidence::Bpsw => cbor::map(vec![("kind", Value::Text("bpsw".into()))]),
@@ -463,18 +481,10 @@ fn evidence(e: &PrimalityEvidence) -> Value {
             ("kind", Value::Text("pocklington".into())),
             (
                 "factors",
-                Value::Array(
+                proof_factors(
                     factors
                         .iter()
-                        .map(|f| {
-                            Value::Array(vec![
-                                cbor::int(&f.q),
-                                cbor::uint(u64::from(f.e)),
-                                cbor::int(&f.base),
-                                evidence(&f.evidence),
-                            ])
-                        })
-                        .collect(),
+                        .map(|f| (&f.q, f.e, Some(&f.base), f.evidence.as_ref())),
                 ),
             ),
         ]),
@@ -488,17 +498,10 @@ fn evidence(e: &PrimalityEvidence) -> Value {
             ("lucas-q", cbor::int(lucas_q)),
             (
                 "factors",
-                Value::Array(
+                proof_factors(
                     factors
                         .iter()
-                        .map(|f| {
-                            Value::Array(vec![
-                                cbor::int(&f.q),
-                                cbor::uint(u64::from(f.e)),
-                                evidence(&f.evidence),
-                            ])
-                        })
-                        .collect(),
+                        .map(|f| (&f.q, f.e, None, f.evidence.as_ref())),
                 ),
             ),
         ]),

@@ -236,6 +236,15 @@ fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
         .collect()
 }
 
+/// `w`, the number of roots of unity in the order of discriminant `d`.
+pub(crate) fn roots_of_unity(d: &Integer) -> u32 {
+    match d.to_i32() {
+        Some(-3) => 6,
+        Some(-4) => 4,
+        _ => 2,
+    }
+}
+
 /// The Euler product to `x` (all primes below `x` in `primes`) and the
 /// enclosure of `log h` (`log h R` for `D > 0`) it gives, exactly as the
 /// verifier computes them.
@@ -252,12 +261,7 @@ pub(crate) fn analytic(
     let chi = |p: u64| kronecker_prime(d_small, p);
     let res = euler::compute(x, primes, &chi, &limits, &log_delta)
         .ok_or_else(|| ProveError::SearchFailed("Euler product could not be evaluated".into()))?;
-    let w = match d.to_i32() {
-        Some(-3) => 6,
-        Some(-4) => 4,
-        _ => 2,
-    };
-    let log_h = log_h_enclosure(d, w, &res.log_l, conductor, d_small, x)
+    let log_h = log_h_enclosure(d, roots_of_unity(d), &res.log_l, conductor, d_small, x)
         .ok_or_else(|| ProveError::SearchFailed("analytic bound could not be evaluated".into()))?;
     Ok((res, log_h))
 }
@@ -346,21 +350,14 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
         let log_h = h
             .ln()
             .ok_or_else(|| ProveError::SearchFailed("h <= 0".into()))?;
-        let w = match d.to_i32() {
-            Some(-3) => 6,
-            Some(-4) => 4,
-            _ => 2,
-        };
-        let factor = Interval::pi()
-            .mul(&Interval::u64(2))
-            .div(&Interval::u64(w).mul(&Interval::int(&abs_d).sqrt().expect("|D| > 0")))
-            .and_then(|f| f.ln())
-            .expect("a positive factor");
+        let log_l = series::log_l_from_log_h(&log_h, roots_of_unity(d), &abs_d)
+            .and_then(|l| l.to_bounds())
+            .ok_or_else(|| ProveError::SearchFailed("log L(1, chi) out of range".into()))?;
         let trace = EulerTrace {
             theorem: registry::ERFC_SERIES.to_string(),
             x,
             checkpoints: vec![],
-            log_l: log_h.add(&factor).to_bounds().expect("finite"),
+            log_l,
         };
         (trace, log_h)
     } else {

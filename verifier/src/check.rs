@@ -884,23 +884,12 @@ fn check_units(body: &Body, order: &OrderOk) -> Check<Option<UnitsOk>> {
             "log|ε| is not bounded away from 0: the unit has finite order",
         );
     };
-    let Some(claimed) = Interval::from_bounds(&units.regulator) else {
-        return reject(
-            Reason::RegulatorMismatch,
-            "the stated regulator is out of range",
-        );
-    };
-    if !claimed.contains(&regulator) {
-        return reject(
-            Reason::RegulatorMismatch,
-            format!(
-                "the stated regulator [{:.15}, {:.15}] does not contain |log|ε|| = {:.15}",
-                claimed.lo.to_f64(),
-                claimed.hi.to_f64(),
-                regulator.mid_f64()
-            ),
-        );
-    }
+    let claimed = stated_contains(
+        &units.regulator,
+        &regulator,
+        Reason::RegulatorMismatch,
+        "regulator",
+    )?;
     // at least 20 significant digits: hi - lo <= lo / 10^21
     let width = claimed.sub(&Interval {
         lo: claimed.lo.clone(),
@@ -1002,32 +991,41 @@ fn check_euler(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(In
             );
         }
     }
-    stated_log_l_contains(&e.log_l, &res.log_l)?;
+    stated_contains(
+        &e.log_l,
+        &res.log_l,
+        Reason::EulerIntervalUnderstated,
+        "enclosure of log L(1, chi)",
+    )?;
     let Some(log_h) = log_h_enclosure(&order.d, order.w, &res.log_l, &cond.conductor, ds, x) else {
         return bad();
     };
     Ok((log_h, x))
 }
 
-/// The certificate's enclosure of `log L(1, χ)` must contain the verifier's.
-fn stated_log_l_contains(stated: &classcert_format::Bounds, mine: &Interval) -> Check<()> {
+/// A stated enclosure must contain the verifier's own (`reason` if not).
+fn stated_contains(
+    stated: &classcert_format::Bounds,
+    mine: &Interval,
+    reason: Reason,
+    what: &str,
+) -> Check<Interval> {
     let Some(claimed) = Interval::from_bounds(stated) else {
-        return reject(
-            Reason::EulerIntervalUnderstated,
-            "the stated interval is out of range",
-        );
+        return reject(reason, format!("the stated {what} is out of range"));
     };
     if !claimed.contains(mine) {
         return reject(
-            Reason::EulerIntervalUnderstated,
+            reason,
             format!(
-                "the stated enclosure of log L(1, chi) does not contain the rigorous one [{:.9}, {:.9}]",
+                "the stated {what} [{:.15}, {:.15}] does not contain the rigorous enclosure [{:.15}, {:.15}]",
+                claimed.lo.to_f64(),
+                claimed.hi.to_f64(),
                 mine.lo.to_f64(),
                 mine.hi.to_f64()
             ),
         );
     }
-    Ok(())
+    Ok(claimed)
 }
 
 /// Section 7: `h` itself from the series of [`crate::series`], without
@@ -1058,22 +1056,15 @@ fn check_series(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<(I
         );
     }
     let Some(log_h) = h.ln() else { return bad() };
-    // log L = log h + log(2π / (w sqrt|D|))
-    let Some(factor) = Interval::pi()
-        .mul(&Interval::u64(2))
-        .div(
-            &Interval::u64(u64::from(order.w)).mul(
-                &Interval::int(&order.abs_d)
-                    .sqrt()
-                    .unwrap_or(Interval::zero()),
-            ),
-        )
-        .and_then(|f| f.ln())
-    else {
+    let Some(log_l) = series::log_l_from_log_h(&log_h, order.w, &order.abs_d) else {
         return bad();
     };
-    let log_l = log_h.add(&factor);
-    stated_log_l_contains(&e.log_l, &log_l)?;
+    stated_contains(
+        &e.log_l,
+        &log_l,
+        Reason::EulerIntervalUnderstated,
+        "enclosure of log L(1, chi)",
+    )?;
     Ok((log_h, n))
 }
 

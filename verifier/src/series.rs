@@ -94,6 +94,16 @@ pub fn class_number(d: &Integer, n_terms: u64) -> Option<Interval> {
     Some(sum.widen(&tail))
 }
 
+/// `log L(1, χ) = log h + log(2π / (w sqrt|D|))` (the class number
+/// formula for `D < 0`), the value a certificate states as `log-l`.
+pub fn log_l_from_log_h(log_h: &Interval, w: u32, abs_d: &Integer) -> Option<Interval> {
+    let factor = Interval::pi()
+        .mul(&Interval::u64(2))
+        .div(&Interval::u64(u64::from(w)).mul(&Interval::int(abs_d).sqrt()?))?
+        .ln()?;
+    Some(log_h.add(&factor))
+}
+
 /// Terms enough for a tail below 0.01 (about 1.8 sqrt|D|).
 pub fn terms_for(abs_d: &Integer) -> u64 {
     let a = abs_d.to_f64();
