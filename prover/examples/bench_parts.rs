@@ -11,11 +11,11 @@
 
 use classcert_prover::factor::primality_evidence;
 use classcert_prover::prove::choose_x;
-use classcert_verifier::arith::{kronecker_prime, primes_up_to};
-use classcert_verifier::euler;
-use classcert_verifier::form::Form;
-use classcert_verifier::interval::Interval;
-use classcert_verifier::proofs::{check, Used};
+use classcert_verifier::math::euler;
+use classcert_verifier::math::primality::{check, Used};
+use classcert_verifier::math::Form;
+use classcert_verifier::math::Interval;
+use classcert_verifier::math::{kronecker_prime, primes_up_to};
 use rug::integer::IsPrime;
 use rug::Integer;
 use std::time::Instant;

@@ -2,7 +2,7 @@
 //! C. Thiel and H. C. Williams, "Short representation of quadratic
 //! integers", 1995): walk the cycle of reduced principal ideals by
 //! squaring and continued-fraction steps, so that `ε = ∏ β_j^{2^{l-j}}`
-//! with small `β_j` (checked by `classcert_verifier::compact`).
+//! with small `β_j` (checked by `classcert_verifier::math::units::check_chain`).
 //!
 //! Ideals are `[a, (b + sqrt D)/2]` with `a > 0`, `b² ≡ D (mod 4a)`. One
 //! step (a continued-fraction step, common practice): pick `B ≡ b (mod 2a)`,
@@ -13,7 +13,7 @@
 
 use crate::units::{self, Factor};
 use classcert_format::CompactStep;
-use classcert_verifier::form::Form;
+use classcert_verifier::math::Form;
 use rug::ops::DivRounding;
 use rug::{Float, Integer};
 

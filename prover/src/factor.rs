@@ -142,7 +142,7 @@ pub fn factor(n: &Integer, budget_steps: u64) -> Option<Vec<(Integer, u32)>> {
 /// If `n = r^k` with `k ≥ 2` maximal, returns `(r, k)`.
 /// Evidence that the prime `p` is prime. Up to 2^32 the Baillie–PSW test,
 /// which is a proof there. Above, a Pocklington proof (H. C. Pocklington,
-/// 1914; see `classcert_verifier::proofs`) when the part of `p - 1`
+/// 1914; see `classcert_verifier::math::primality`) when the part of `p - 1`
 /// that trial division and `budget_steps` of Pollard–Brent rho factor is
 /// at least `sqrt p`, else Morrison's `N + 1` proof when enough of `p + 1`
 /// factors; each factor above 2^32 gets its own proof. A proof
@@ -257,8 +257,8 @@ fn morrison(
                 factors: factors.clone(),
             };
             let mut work = 100_000;
-            let mut used = classcert_verifier::proofs::Used::default();
-            if classcert_verifier::proofs::check(p, &ev, 0, &mut work, &mut used).is_ok() {
+            let mut used = classcert_verifier::math::primality::Used::default();
+            if classcert_verifier::math::primality::check(p, &ev, 0, &mut work, &mut used).is_ok() {
                 return Some(ev);
             }
         }

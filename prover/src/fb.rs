@@ -1,8 +1,8 @@
 //! The factor base: one prime form `(p, b, c)` for every prime `p` up to the
 //! generation bound with `p ∤ f` and `(D/p) ≠ -1`.
 
-use classcert_verifier::arith::{kronecker_prime, mod_small};
-use classcert_verifier::form::Form;
+use classcert_verifier::math::Form;
+use classcert_verifier::math::{kronecker_prime, mod_small};
 use rug::Integer;
 
 fn mul_mod(a: u64, b: u64, m: u64) -> u64 {

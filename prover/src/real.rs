@@ -24,7 +24,7 @@ use crate::prove::{cyclic_generators, essential_count, setup, Options, ProveErro
 use crate::rng::Rng;
 use crate::units::{self, Factor};
 use classcert_format::*;
-use classcert_verifier::interval::Interval;
+use classcert_verifier::math::Interval;
 use rug::ops::{DivRounding, Pow, RemRounding};
 use rug::Integer;
 use std::collections::{BTreeMap, BTreeSet};
@@ -747,7 +747,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let steps = compact::compact(d, &log_r).ok_or_else(|| {
         ProveError::SearchFailed("the compact representation of the unit failed".into())
     })?;
-    let chain = classcert_verifier::compact::check_chain(d, &steps).map_err(|e| {
+    let chain = classcert_verifier::math::units::check_chain(d, &steps).map_err(|e| {
         ProveError::SelfCheckFailed(format!("compact representation: {}", e.detail))
     })?;
     let regulator = chain.log_eps;
@@ -785,7 +785,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     progress.say(&format!(
         "class number {}, regulator {}",
         claim.class_number,
-        classcert_verifier::verdict::decimal(&regulator)
+        classcert_verifier::report::decimal(&regulator)
     ));
     Ok(setup.body(d, opts, claim, lattice, Some(units)))
 }

@@ -7,7 +7,7 @@
 
 use crate::fb::FactorBase;
 use crate::rng::Rng;
-use classcert_verifier::form::Form;
+use classcert_verifier::math::Form;
 use rug::Integer;
 use std::collections::BTreeMap;
 

@@ -3,8 +3,8 @@
 use crate::units::{self, Factor};
 use classcert_format::json::Json;
 use classcert_format::{Body, CyclicGenerator, Decoded, Order, PrimeIdeal};
-use classcert_verifier::interval::Interval;
-use classcert_verifier::verdict::{
+use classcert_verifier::math::Interval;
+use classcert_verifier::report::{
     decimal, generator_json, generator_text, invariants_text, GeneratorView,
 };
 use rug::Integer;

@@ -15,9 +15,9 @@ use crate::prove::{
 };
 use crate::rng::Rng;
 use classcert_format::*;
-use classcert_verifier::arith::{primes_up_to, small_conductor};
-use classcert_verifier::form::Form;
-use classcert_verifier::interval::Interval;
+use classcert_verifier::math::Form;
+use classcert_verifier::math::Interval;
+use classcert_verifier::math::{primes_up_to, small_conductor};
 use rug::Integer;
 
 /// Candidates tried for a class of exact order `H`.

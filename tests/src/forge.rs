@@ -12,7 +12,7 @@
 
 use crate::support::encode;
 use classcert_format::{Body, Dyadic, Order, PrimeIdeal};
-use classcert_verifier::form::Form;
+use classcert_verifier::math::Form;
 use classcert_verifier::registry;
 use rug::{Integer, Rational};
 

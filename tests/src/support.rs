@@ -11,7 +11,7 @@
 
 use classcert_format::Body;
 use classcert_prover::{prove, Options};
-use classcert_verifier::verdict::{Report, Verified};
+use classcert_verifier::report::{Report, Verified};
 use rug::Integer;
 use std::path::PathBuf;
 

@@ -7,7 +7,7 @@
 use classcert_format::PrimalityEvidence;
 use classcert_prover::factor::primality_evidence;
 use classcert_tests::support::{is_prime_u64, SplitMix};
-use classcert_verifier::proofs::{check, ProofError, Status, Used};
+use classcert_verifier::math::primality::{check, ProofError, Status, Used};
 use rug::integer::IsPrime;
 use rug::Integer;
 

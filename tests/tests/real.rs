@@ -12,7 +12,7 @@ use classcert_tests::{forge, oracle};
 use rug::Integer;
 
 /// The verified regulator as the JSON prints it, parsed.
-fn regulator(report: &classcert_verifier::verdict::Report, what: &str) -> (f64, String) {
+fn regulator(report: &classcert_verifier::report::Report, what: &str) -> (f64, String) {
     let v = expect_verified(report, what);
     let u = v
         .unit

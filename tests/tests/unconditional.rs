@@ -7,11 +7,11 @@
 use classcert_prover::{prove_to_bytes, Options};
 use classcert_tests::oracle;
 use classcert_tests::support::SplitMix;
-use classcert_verifier::verdict::Requirement;
+use classcert_verifier::report::Requirement;
 use classcert_verifier::verify_bytes;
 use rug::Integer;
 
-fn verdict(d: i64, unconditional: bool) -> classcert_verifier::verdict::Verified {
+fn verdict(d: i64, unconditional: bool) -> classcert_verifier::report::Verified {
     let opts = Options {
         unconditional,
         ..Options::default()

@@ -124,7 +124,7 @@ fn non_cyclic_3299_by_two_witnesses() {
     let mut bad = w.clone();
     let dd = Integer::from(d);
     let g9 = &w.generators[1].form;
-    let g9 = classcert_verifier::form::Form::new(g9.a.clone(), g9.b.clone(), &dd).unwrap();
+    let g9 = classcert_verifier::math::Form::new(g9.a.clone(), g9.b.clone(), &dd).unwrap();
     let cube = g9.pow(&Integer::from(3), &dd).unwrap();
     bad.generators[0].form = classcert_format::Form {
         a: cube.a,
@@ -147,7 +147,7 @@ fn forged_witnesses_are_rejected() {
     let mut w = honest.clone();
     let f0 = &honest.generators[0].form;
     let g =
-        classcert_verifier::form::Form::new(f0.a.clone(), f0.b.clone(), &Integer::from(d)).unwrap();
+        classcert_verifier::math::Form::new(f0.a.clone(), f0.b.clone(), &Integer::from(d)).unwrap();
     let g3 = g.pow(&Integer::from(3), &Integer::from(d)).unwrap();
     w.generators[0].form = classcert_format::Form {
         a: g3.a,

@@ -26,19 +26,65 @@
     )
 )]
 
-pub mod arith;
-pub mod check;
-pub mod compact;
-pub mod element;
-pub mod euler;
-pub mod form;
-pub mod interval;
+mod arith;
+mod check;
+mod compact;
+mod element;
+mod euler;
+mod form;
+mod interval;
 pub mod limits;
-pub mod primality;
-pub mod proofs;
+mod primality;
+mod proofs;
 pub mod registry;
-pub mod series;
-pub mod verdict;
+mod series;
+mod verdict;
+
+/// The verdict: [`Report`](report::Report), reasons, and the presentation
+/// helpers that `classcert show` shares so both tools use one vocabulary.
+pub mod report {
+    pub use crate::verdict::{
+        decimal, generator_json, generator_text, invariants_text, Assumption, GeneratorView,
+        Reason, Rejection, Report, Requirement, Summary, UnitSummary, Verified,
+    };
+}
+
+/// Exact and interval arithmetic that the prover reuses, and nothing else
+/// of the verifier's internals.
+///
+/// Reuse is deliberate where both sides must compute the same thing (the
+/// enclosure of `log h` the prover aims at is the one the verifier checks)
+/// and harmless for soundness: the verifier re-checks every certificate
+/// from its bytes, so the prover gains no trust by sharing code. What
+/// sharing cannot catch, a bug that both sides make the same way, is what
+/// the independent oracles in `tests/src/oracle.rs` (written from textbook
+/// definitions, sharing no code with either crate) are for.
+pub mod math {
+    pub use crate::arith::{kronecker_prime, mod_small, primes_up_to, small_conductor};
+    pub use crate::check::log_h_enclosure;
+    pub use crate::form::Form;
+    pub use crate::interval::Interval;
+
+    /// The Euler product of the analytic bound (registry entry
+    /// `belabas-friedman-2015-thm1`).
+    pub mod euler {
+        pub use crate::euler::{compute, error_bound, EulerResult, Partial, MIN_X};
+    }
+    /// The unconditional class number series (`erfc-series-class-number`).
+    pub mod series {
+        pub use crate::series::{class_number, log_l_from_log_h, terms_for};
+    }
+    /// Primality: the Baillie–PSW test and the checker of proof trees.
+    pub mod primality {
+        pub use crate::primality::{primality_evidence, Evidence};
+        pub use crate::proofs::{check, ProofError, Status, Used};
+    }
+    /// Units in compact representation: the chain check, which the prover
+    /// also uses to confirm the chain it built.
+    pub mod units {
+        pub use crate::compact::{check_chain, Chain};
+    }
+}
 
 use classcert_format::{DecodeError, Document, FileError};
 use verdict::{Reason, Rejection, Report, Summary};

@@ -5,7 +5,7 @@
 
 #![forbid(unsafe_code)]
 
-use classcert_verifier::verdict::Requirement;
+use classcert_verifier::report::Requirement;
 use std::io::Write;
 use std::process::ExitCode;
 
