@@ -26,14 +26,39 @@ pub use model::*;
 use ciborium::Value;
 use sha2::{Digest, Sha256};
 
-/// The largest file the decoder will look at.
+/// The largest file the decoder will look at by default.
 pub const MAX_FILE_BYTES: usize = 256 << 20;
+
+/// The decoder's caps: the caller (the verifier, from its `limits.rs`)
+/// sets them; [`Default`] holds the values this crate was tested with.
+#[derive(Debug, Clone, Copy)]
+pub struct DecodeLimits {
+    /// The largest file looked at.
+    pub max_file_bytes: usize,
+    /// Nesting depth and item count of the CBOR walk.
+    pub walk: cbor::WalkLimits,
+}
+
+impl Default for DecodeLimits {
+    fn default() -> Self {
+        DecodeLimits {
+            max_file_bytes: MAX_FILE_BYTES,
+            walk: cbor::WalkLimits::default(),
+        }
+    }
+}
 
 /// Why a certificate file was refused.
 #[derive(Debug, Clone, PartialEq, Eq)]
 #[non_exhaustive]
 pub enum FileError {
-    TooLarge { bytes: usize, limit: usize },
+    TooLarge {
+        bytes: usize,
+        limit: usize,
+    },
+    /// The bytes are not a classcert certificate at all (empty, text, or
+    /// a CBOR item of another shape).
+    NotACertificate(&'static str),
     Decode(DecodeError),
     UnsupportedVersion(u64),
     DigestMismatch,
@@ -44,6 +69,9 @@ impl std::fmt::Display for FileError {
         match self {
             FileError::TooLarge { bytes, limit } => {
                 write!(f, "the file has {bytes} bytes; the limit is {limit}")
+            }
+            FileError::NotACertificate(why) => {
+                write!(f, "not a classcert certificate: {why}")
             }
             FileError::Decode(e) => e.fmt(f),
             FileError::UnsupportedVersion(v) => {
@@ -139,16 +167,37 @@ pub fn decode_file(bytes: &[u8]) -> Result<Decoded, FileError> {
     }
 }
 
+/// The first byte of every certificate file: the head of a CBOR map of
+/// three entries (`format`, `body`, `body-sha256`).
+const FILE_HEAD: u8 = 0xa3;
+
 /// Decodes a certificate file of either kind strictly (see [`cbor`]):
 /// canonical bytes only, no trailing data, and a matching digest.
 pub fn decode_document(bytes: &[u8]) -> Result<DecodedDocument, FileError> {
-    if bytes.len() > MAX_FILE_BYTES {
+    decode_document_with(bytes, &DecodeLimits::default())
+}
+
+/// [`decode_document`] under the caller's caps.
+pub fn decode_document_with(
+    bytes: &[u8],
+    limits: &DecodeLimits,
+) -> Result<DecodedDocument, FileError> {
+    if bytes.len() > limits.max_file_bytes {
         return Err(FileError::TooLarge {
             bytes: bytes.len(),
-            limit: MAX_FILE_BYTES,
+            limit: limits.max_file_bytes,
         });
     }
-    let v = cbor::to_value(bytes, cbor::WalkLimits::default())?;
+    match bytes.first() {
+        None => return Err(FileError::NotACertificate("the file is empty")),
+        Some(&FILE_HEAD) => {}
+        Some(_) => {
+            return Err(FileError::NotACertificate(
+                "it does not begin as one does (a CBOR map of three entries)",
+            ))
+        }
+    }
+    let v = cbor::to_value(bytes, limits.walk)?;
     let mut top = cbor::MapReader::new(&v, "file")?;
     let version = cbor::get_u64(top.req("format")?, "file.format")?;
     if version != FORMAT_VERSION {

@@ -398,12 +398,6 @@ impl Document {
     }
 }
 
-/// A certificate file: the body and the SHA-256 of its canonical encoding.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct Certificate {
-    pub body: Body,
-}
-
 // ---------------------------------------------------------------- encode
 
 fn ints(v: &[Integer]) -> Value {

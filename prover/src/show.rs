@@ -4,9 +4,7 @@ use crate::units::{self, Factor};
 use classcert_format::json::Json;
 use classcert_format::{Body, CyclicGenerator, Decoded, Order, PrimeIdeal};
 use classcert_verifier::math::Interval;
-use classcert_verifier::report::{
-    decimal, generator_json, generator_text, invariants_text, GeneratorView,
-};
+use classcert_verifier::report::{decimal, generator_text, invariants_text, GeneratorView};
 use rug::Integer;
 
 /// Units with at most this many digits are printed in full.
@@ -181,7 +179,9 @@ pub fn json(c: &Decoded) -> Json {
                 b.claim
                     .generators
                     .iter()
-                    .map(|g| generator_json(&generator_view(b, g)))
+                    .map(|g| {
+                        classcert_verifier::report::json::generator(None, &generator_view(b, g))
+                    })
                     .collect(),
             ),
         ),

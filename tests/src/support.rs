@@ -63,7 +63,7 @@ pub fn rejection_code(bytes: &[u8]) -> Option<&'static str> {
 
 /// Invariant factors of a verdict as machine words.
 pub fn invariants_u64(v: &Verified) -> Vec<u64> {
-    v.invariants
+    v.invariants()
         .iter()
         .map(|d| d.to_u64().expect("invariant fits in u64"))
         .collect()
@@ -71,7 +71,7 @@ pub fn invariants_u64(v: &Verified) -> Vec<u64> {
 
 /// True if the verdict rests on GRH (every certificate of this format does).
 pub fn rests_on_grh(v: &Verified) -> bool {
-    v.assumptions.iter().any(|a| a.name() == "GRH")
+    v.assumptions().iter().any(|a| a.name() == "GRH")
 }
 
 // ---------------------------------------------------------------- random inputs

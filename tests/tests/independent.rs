@@ -27,7 +27,7 @@ fn check_small(d: i64, formula: bool) {
     let v = expect_verified(&verify_bytes(&encode(&body)), &format!("D = {d}"));
     let h = oracle::class_number_by_counting(d);
     assert_eq!(
-        v.class_number,
+        *v.class_number(),
         Integer::from(h),
         "h({d}) against the count of reduced forms"
     );
@@ -46,7 +46,8 @@ fn check_small(d: i64, formula: bool) {
         "invariants of Cl({d})"
     );
     assert_eq!(
-        v.maximal, fundamental,
+        v.maximal(),
+        fundamental,
         "D = {d}: maximality must be certified exactly when D is fundamental"
     );
     assert!(rests_on_grh(&v));
@@ -151,7 +152,7 @@ fn supplied_factors_give_the_same_group() {
             &verify_bytes(&encode(&prove_body_with(d, &opts))),
             &format!("D = {d} with factors"),
         );
-        assert!(v.maximal);
+        assert!(v.maximal());
         assert_eq!(invariants_u64(&v), oracle::group_invariants_bruteforce(d));
         done += 1;
     }
@@ -188,19 +189,19 @@ fn genus_theory(seed: u64, count: usize) {
         assert_eq!(t, t_check, "distinct primes of {d}");
         let v = expect_verified(&verify_bytes(&encode(&prove_body(d))), &format!("D = {d}"));
         assert!(
-            v.maximal,
+            v.maximal(),
             "D = {d} is fundamental; maximality should be certified"
         );
         assert!(rests_on_grh(&v));
-        let two_rank = v.invariants.iter().filter(|x| x.is_even()).count();
+        let two_rank = v.invariants().iter().filter(|x| x.is_even()).count();
         assert_eq!(
             two_rank,
             t - 1,
             "D = {d}: {t} distinct prime divisors, invariants {:?}",
-            v.invariants
+            v.invariants()
         );
         let two_part = Integer::from(1) << (t as u32 - 1);
-        assert!(v.class_number.is_divisible(&two_part));
+        assert!(v.class_number().is_divisible(&two_part));
         ranks[two_rank.min(7)] += 1;
     }
     // The draw should exercise several 2-ranks.

@@ -24,7 +24,7 @@ fn check_table(file: &str) -> usize {
         );
         let (body, report) = prove_and_verify(d);
         let v = expect_verified(&report, &format!("{file}: D = {d}"));
-        assert_eq!(v.class_number, Integer::from(h), "{file}: h({d})");
+        assert_eq!(*v.class_number(), Integer::from(h), "{file}: h({d})");
         assert_eq!(
             body.claim.class_number,
             Integer::from(h),
@@ -42,7 +42,7 @@ fn check_table(file: &str) -> usize {
             "{file}: invariants of {d}"
         );
         assert_eq!(
-            v.maximal,
+            v.maximal(),
             oracle::is_fundamental(d),
             "{file}: D = {d}: maximal must be claimed exactly for fundamental D"
         );

@@ -15,7 +15,7 @@ use rug::Integer;
 fn regulator(report: &classcert_verifier::report::Report, what: &str) -> (f64, String) {
     let v = expect_verified(report, what);
     let u = v
-        .unit
+        .unit()
         .unwrap_or_else(|| panic!("{what}: a real order's verdict has a unit"));
     let text = u.regulator_text();
     (text.parse().expect("a decimal"), text)
@@ -39,8 +39,11 @@ fn class_numbers_of_real_fields_oeis_a003649() {
         );
         let (body, report) = prove_and_verify(d);
         let v = expect_verified(&report, &format!("D = {d}"));
-        assert_eq!(v.class_number, Integer::from(h), "h({d})");
-        assert!(v.maximal, "D = {d} is fundamental; maximality is certified");
+        assert_eq!(*v.class_number(), Integer::from(h), "h({d})");
+        assert!(
+            v.maximal(),
+            "D = {d} is fundamental; maximality is certified"
+        );
         assert!(body.units.is_some());
         // R from the continued fraction of ω (oracle) against the verdict
         let (r, _) = regulator(&report, &format!("D = {d}"));
@@ -95,7 +98,7 @@ fn pell_61_fundamental_unit_and_its_sixth_power() {
     // solution of x^2 - 61 y^2 = 1 (a commonly quoted Pell table).
     let (body, report) = prove_and_verify(61);
     let v = expect_verified(&report, "D = 61");
-    let u = v.unit.expect("a unit");
+    let u = v.unit().expect("a unit");
     assert_eq!(u.norm, -1, "the fundamental unit of Q(sqrt 61) has norm -1");
     let (x, y) = unit_coordinates(&body).expect("a unit of 2 digits is expanded");
     // ε = x + y ω with ω = (1 + sqrt 61)/2, i.e. (2x + y + y sqrt 61)/2
@@ -119,11 +122,11 @@ fn pell_61_fundamental_unit_and_its_sixth_power() {
     // The regulator is log ε.
     let (r, _) = regulator(&report, "D = 61");
     assert!((r - ((39.0 + 5.0 * 61f64.sqrt()) / 2.0).ln()).abs() < 1e-12);
-    // The verifier's JSON carries regulator, unit_norm and unit_compact_length.
+    // The verifier's JSON carries the unit: norm, regulator and steps.
     let json = report.to_json().render();
     assert!(json.contains("\"regulator\": \"3.66421846088643"), "{json}");
-    assert!(json.contains("\"unit_norm\": -1"), "{json}");
-    assert!(json.contains("\"unit_compact_length\""), "{json}");
+    assert!(json.contains("\"norm\": \"-1\""), "{json}");
+    assert!(json.contains("\"compact_steps\": "), "{json}");
 }
 
 #[test]
@@ -134,8 +137,8 @@ fn oeis_a349419_fundamental_units_of_norm_one() {
     for (d, x, y) in [(316i64, 80i64, 9i64), (321, 215, 12)] {
         let (body, report) = prove_and_verify(d);
         let v = expect_verified(&report, &format!("D = {d}"));
-        assert_eq!(v.class_number, 3);
-        assert_eq!(v.unit.as_ref().unwrap().norm, 1);
+        assert_eq!(*v.class_number(), 3);
+        assert_eq!(v.unit().as_ref().unwrap().norm, 1);
         let (ux, uy) = unit_coordinates(&body).expect("a small unit is expanded");
         // x + y ω; for D = 316, ω = sqrt 79; for D = 321, ω = (1 + sqrt 321)/2
         let (big_x, big_y) = if d % 2 == 0 {
@@ -168,7 +171,7 @@ fn random_fundamental_discriminants_against_independent_oracles() {
         let (_, report) = prove_and_verify(d);
         let v = expect_verified(&report, &format!("D = {d}"));
         assert_eq!(
-            v.class_number,
+            *v.class_number(),
             Integer::from(oracle::class_number_real_finite_formula(d)),
             "h({d})"
         );
@@ -197,7 +200,7 @@ fn non_maximal_real_orders() {
         let d = f * f * d0;
         let (_, report) = prove_and_verify(d);
         let v = expect_verified(&report, &format!("D = {d}"));
-        assert!(!v.maximal);
+        assert!(!v.maximal());
         let (r, _) = regulator(&report, &format!("D = {d}"));
         let r_order = oracle::regulator_by_continued_fraction(d);
         assert!((r - r_order).abs() < 1e-9 * r_order, "R({d})");
@@ -210,7 +213,7 @@ fn non_maximal_real_orders() {
             }
         }
         let h = (h0 * r0 * euler / r_order).round();
-        assert_eq!(v.class_number, Integer::from(h as u64), "h({d})");
+        assert_eq!(*v.class_number(), Integer::from(h as u64), "h({d})");
     }
 }
 
@@ -351,8 +354,8 @@ fn random_changes_to_real_certificates_never_verify_a_false_claim() {
             Err(_) => panic!("round {round}: verifier panicked after changing the {what}"),
             Ok(Err(_)) => rejected += 1,
             Ok(Ok(v)) => {
-                assert_eq!(v.class_number, h_true, "round {round}: changed {what}");
-                let r: f64 = v.unit.unwrap().regulator_text().parse().unwrap();
+                assert_eq!(*v.class_number(), h_true, "round {round}: changed {what}");
+                let r: f64 = v.unit().unwrap().regulator_text().parse().unwrap();
                 assert!((r - r_true).abs() < 1e-9 * r_true, "round {round}: {what}");
             }
         }

@@ -45,8 +45,11 @@ fn published_class_numbers_by_order_witness() {
         )
         .unwrap_or_else(|e| panic!("D = {d}: {e}"));
         let v = verify_bytes(&bytes).outcome.expect("verifies");
-        assert_eq!(v.class_number, h);
-        assert!(v.order_witness);
+        assert_eq!(*v.class_number(), h);
+        assert_eq!(
+            v.kind(),
+            classcert_verifier::report::CertificateKind::OrderWitness
+        );
     }
 }
 
@@ -228,7 +231,7 @@ fn a_30_digit_class_number_from_the_relation_prover() {
     let (bytes, _) = prove_witness_to_bytes(&d, &h, None, None, &Options::default())
         .unwrap_or_else(|e| panic!("witness for h = {h}: {e}"));
     let v = verify_bytes(&bytes).outcome.expect("verifies");
-    assert_eq!(v.class_number, h);
+    assert_eq!(*v.class_number(), h);
     // the relation prover's group is cyclic here: one invariant
     assert_eq!(body.claim.invariants.len(), 1);
     let doubled = Integer::from(&h * 2);

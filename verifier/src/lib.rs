@@ -1,19 +1,29 @@
 //! # classcert-verifier
 //!
 //! The trusted base of classcert: it re-checks a certificate on its own and
-//! gives a verdict. It depends on the format crate, rug (GMP/MPFR) and sha2,
-//! never on the prover.
+//! gives a verdict. It depends on the format crate, rug (GMP/MPFR) and
+//! sha2, never on the prover.
 //!
 //! ```text
-//! bytes ─▶ format::decode_file ─▶ Body ─▶ check::verify_body ─▶ Report
-//!          (canonical CBOR,              order → conductor → factor base
-//!           digest)                      → relations → Smith → claim
-//!                                        → Euler product → verdict
+//! bytes ─▶ format::decode_document ─▶ Body or WitnessBody
+//!          (canonical CBOR, digest;       │
+//!           caps in limits.rs)            ▼
+//!   pipeline: order/ → ideals/ → relations/ → lattice/ → units/ → analytic/
+//!             (order witnesses: order/ → witness.rs → analytic/)
+//!                                         │
+//!                                         ▼
+//!             Report: VERIFIED (report/text.rs, report/json.rs) or REJECTED: <reason>
 //! ```
 //!
-//! What it deliberately does not do: search for anything (relations, square
-//! roots, Smith forms, the cut-off X all come from the certificate), trust
-//! any number it can recompute, or accept a second encoding of a file.
+//! Each folder checks one piece of the mathematics and cites the theorem
+//! it rests on (`registry.rs`; the design note is `docs/certificates.md`).
+//! Each check returns a token only its module can build, and the verified
+//! result is assembled from all of them in `pipeline.rs`.
+//!
+//! What it deliberately does not do: search for anything (relations,
+//! square roots, Smith forms, the cut-off X all come from the certificate),
+//! trust any number it can recompute, accept a second encoding of a file,
+//! or let the input drive unbounded work (every cap is in [`limits`]).
 
 #![forbid(unsafe_code)]
 #![cfg_attr(
@@ -26,28 +36,22 @@
     )
 )]
 
+mod analytic;
 mod arith;
-mod check;
-mod compact;
-mod element;
-mod euler;
-mod form;
-mod interval;
+mod ideals;
+mod lattice;
 pub mod limits;
+mod order;
+mod pipeline;
 mod primality;
-mod proofs;
 pub mod registry;
-mod series;
-mod verdict;
+mod relations;
+pub mod report;
+mod units;
+mod witness;
 
-/// The verdict: [`Report`](report::Report), reasons, and the presentation
-/// helpers that `classcert show` shares so both tools use one vocabulary.
-pub mod report {
-    pub use crate::verdict::{
-        decimal, generator_json, generator_text, invariants_text, Assumption, GeneratorView,
-        Reason, Rejection, Report, Requirement, Summary, UnitSummary, Verified,
-    };
-}
+pub use analytic::Method;
+pub use pipeline::STAGES;
 
 /// Exact and interval arithmetic that the prover reuses, and nothing else
 /// of the verifier's internals.
@@ -60,42 +64,50 @@ pub mod report {
 /// the independent oracles in `tests/src/oracle.rs` (written from textbook
 /// definitions, sharing no code with either crate) are for.
 pub mod math {
+    pub use crate::analytic::class_number_formula::log_h_enclosure;
+    pub use crate::analytic::interval::Interval;
     pub use crate::arith::{kronecker_prime, mod_small, primes_up_to, small_conductor};
-    pub use crate::check::log_h_enclosure;
-    pub use crate::form::Form;
-    pub use crate::interval::Interval;
+    pub use crate::ideals::form::Form;
 
     /// The Euler product of the analytic bound (registry entry
     /// `belabas-friedman-2015-thm1`).
     pub mod euler {
-        pub use crate::euler::{compute, error_bound, EulerResult, Partial, MIN_X};
+        pub use crate::analytic::euler::{compute, error_bound, EulerResult, Partial, MIN_X};
     }
     /// The unconditional class number series (`erfc-series-class-number`).
     pub mod series {
-        pub use crate::series::{class_number, log_l_from_log_h, terms_for};
+        pub use crate::analytic::series::{class_number, log_l_from_log_h, terms_for};
     }
     /// Primality: the Baillie–PSW test and the checker of proof trees.
     pub mod primality {
-        pub use crate::primality::{primality_evidence, Evidence};
-        pub use crate::proofs::{check, ProofError, Status, Used};
+        pub use crate::primality::bpsw::{primality_evidence, Evidence};
+        pub use crate::primality::{check, ProofError, Status, Used};
     }
     /// Units in compact representation: the chain check, which the prover
     /// also uses to confirm the chain it built.
     pub mod units {
-        pub use crate::compact::{check_chain, Chain};
+        pub use crate::units::compact::{check_chain, Chain};
     }
 }
 
-use classcert_format::{DecodeError, Document, FileError};
-use verdict::{Reason, Rejection, Report, Summary};
+use classcert_format::{DecodeError, Document, FileError, Order};
+use report::reason::Reason;
+use report::{Rejection, Report, Summary};
 
 /// Verifies the bytes of a certificate file.
 pub fn verify_bytes(bytes: &[u8]) -> Report {
-    let decoded = match classcert_format::decode_document(bytes) {
+    verify_bytes_with(bytes, &mut |_| {})
+}
+
+/// [`verify_bytes`], telling `progress` the name of each stage (one of
+/// [`STAGES`]) as it starts.
+pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report {
+    let decoded = match classcert_format::decode_document_with(bytes, &limits::DECODE) {
         Ok(d) => d,
         Err(e) => {
             let reason = match &e {
                 FileError::TooLarge { .. } => Reason::OverLimit,
+                FileError::NotACertificate(_) => Reason::NotACertificate,
                 FileError::UnsupportedVersion(_) => Reason::UnsupportedVersion,
                 FileError::DigestMismatch => Reason::DigestMismatch,
                 FileError::Decode(DecodeError::Truncated) => Reason::DecodeTruncated,
@@ -115,30 +127,39 @@ pub fn verify_bytes(bytes: &[u8]) -> Report {
         }
     };
     let id = Some(decoded.id_hex());
-    match &decoded.document {
-        Document::Relations(body) => {
-            let classcert_format::Order::Quadratic { discriminant } = &body.order;
-            Report {
-                summary: Summary {
-                    certificate_sha256: id,
-                    discriminant: Some(discriminant.clone()),
-                    claimed_class_number: Some(body.claim.class_number.clone()),
-                    claimed_invariants: Some(body.claim.invariants.clone()),
-                },
-                outcome: check::verify_body(body),
-            }
-        }
-        Document::OrderWitness(w) => {
-            let classcert_format::Order::Quadratic { discriminant } = &w.order;
-            Report {
-                summary: Summary {
-                    certificate_sha256: id,
-                    discriminant: Some(discriminant.clone()),
-                    claimed_class_number: Some(w.class_number.clone()),
-                    claimed_invariants: Some(vec![w.class_number.clone()]),
-                },
-                outcome: check::verify_witness(w),
-            }
-        }
+    let (order, summary_claims, outcome) = match &decoded.document {
+        Document::Relations(body) => (
+            &body.order,
+            (
+                report::CertificateKind::Relations,
+                body.claim.class_number.clone(),
+                body.claim.invariants.clone(),
+            ),
+            pipeline::verify_relations(body, progress),
+        ),
+        Document::OrderWitness(w) => (
+            &w.order,
+            (
+                report::CertificateKind::OrderWitness,
+                w.class_number.clone(),
+                w.generators.iter().map(|g| g.order.clone()).collect(),
+            ),
+            {
+                progress("order");
+                pipeline::verify_order_witness(w)
+            },
+        ),
+    };
+    let Order::Quadratic { discriminant } = order;
+    let (kind, h, inv) = summary_claims;
+    Report {
+        summary: Summary {
+            certificate_sha256: id,
+            kind: Some(kind),
+            discriminant: Some(discriminant.clone()),
+            claimed_class_number: Some(h),
+            claimed_invariants: Some(inv),
+        },
+        outcome,
     }
 }

@@ -32,6 +32,9 @@ pub const MAX_COMPACT_STEPS: usize = 4096;
 pub const MAX_PROOF_DEPTH: u32 = 64;
 /// Prime factors listed in one Pocklington step.
 pub const MAX_PROOF_FACTORS: usize = 4096;
+/// Bits of a Lucas parameter `P` or `Q` in an `N + 1` proof (so that
+/// `P^2 - 4Q` fits a machine word).
+pub const MAX_LUCAS_PARAMETER_BITS: u32 = 31;
 /// Modular exponentiations all primality proofs of a certificate may cost.
 pub const MAX_PROOF_POWERS: u64 = 100_000;
 /// Terms of the unconditional class number series (its sieve of smallest
@@ -39,3 +42,20 @@ pub const MAX_PROOF_POWERS: u64 = 100_000;
 pub const MAX_SERIES_TERMS: u64 = 10_000_000;
 /// Combinations an order witness's socle search may try.
 pub const MAX_SOCLE_COMBINATIONS: u64 = 1_000_000;
+
+/// The decoder's caps (the format crate applies them before anything else
+/// is looked at): the largest file, and the nesting depth and item count
+/// of its CBOR.
+pub const DECODE: classcert_format::DecodeLimits = classcert_format::DecodeLimits {
+    max_file_bytes: MAX_FILE_BYTES,
+    walk: classcert_format::cbor::WalkLimits {
+        max_depth: MAX_CBOR_DEPTH,
+        max_items: MAX_CBOR_ITEMS,
+    },
+};
+/// Bytes of a certificate file.
+pub const MAX_FILE_BYTES: usize = 256 << 20;
+/// Nesting depth of CBOR items.
+pub const MAX_CBOR_DEPTH: usize = 24;
+/// CBOR items in one file.
+pub const MAX_CBOR_ITEMS: u64 = 50_000_000;

@@ -16,8 +16,13 @@
 //! |Σ_{n > N}| <= 2 sqrt|D| / (π (N + 1)) · q^{N+1} / (1 - q),   q = e^{-π (N + 1) / |D|}
 //! ```
 
+use super::interval::Interval;
+use super::stated_contains;
 use crate::arith::kronecker_prime;
-use crate::interval::Interval;
+use crate::limits::MAX_SERIES_TERMS;
+use crate::order::OrderOk;
+use crate::report::reason::{reject, Check, Reason};
+use classcert_format::EulerTrace;
 use rug::Integer;
 
 /// Kronecker symbol `(D/n)` for `n >= 1`, multiplicatively from primes.
@@ -108,6 +113,46 @@ pub fn log_l_from_log_h(log_h: &Interval, w: u32, abs_d: &Integer) -> Option<Int
 pub fn terms_for(abs_d: &Integer) -> u64 {
     let a = abs_d.to_f64();
     (1.8 * a.sqrt()).ceil() as u64 + 10
+}
+
+/// Section 7: `h` itself from the series above, without
+/// GRH, for a maximal order of discriminant `D < -4`. The stated
+/// `log-l` must contain `log L(1, χ) = log(2 π h / (w sqrt|D|))`.
+pub(crate) fn check_series(e: &EulerTrace, order: &OrderOk, maximal: bool) -> Check<Interval> {
+    if order.is_real() || *order.d() > -5 || !maximal {
+        return reject(
+            Reason::GenerationTheoremNotApplicable,
+            "the unconditional series applies to maximal orders with D < -4 only",
+        );
+    }
+    let n = e.x;
+    if n == 0 || n > MAX_SERIES_TERMS || !e.checkpoints.is_empty() {
+        return reject(
+            Reason::EulerXOutOfRange,
+            format!("the series needs 1 to {MAX_SERIES_TERMS} terms and no checkpoints"),
+        );
+    }
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let Some(h) = class_number(order.d(), n) else {
+        return bad();
+    };
+    if h.lo <= 0 {
+        return reject(
+            Reason::EulerXTooSmall,
+            format!("{n} terms do not bound h away from 0"),
+        );
+    }
+    let Some(log_h) = h.ln() else { return bad() };
+    let Some(log_l) = log_l_from_log_h(&log_h, order.w(), order.abs_d()) else {
+        return bad();
+    };
+    stated_contains(
+        &e.log_l,
+        &log_l,
+        Reason::EulerIntervalUnderstated,
+        "enclosure of log L(1, chi)",
+    )?;
+    Ok(log_h)
 }
 
 #[cfg(test)]

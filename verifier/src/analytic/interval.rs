@@ -273,7 +273,11 @@ fn to_dyadic(f: &Float) -> Option<Dyadic> {
 const MAX_DYADIC_EXP: i64 = 4096;
 
 fn from_dyadic(d: &Dyadic, round: Round) -> Option<Float> {
-    if d.exponent.abs() > MAX_DYADIC_EXP || d.mantissa.significant_bits() > 4096 {
+    // unsigned_abs: `i64::MIN.abs()` would overflow (a stated exponent of
+    // i64::MIN once panicked here).
+    if d.exponent.unsigned_abs() > MAX_DYADIC_EXP.unsigned_abs()
+        || d.mantissa.significant_bits() > 4096
+    {
         return None;
     }
     let mut f = Float::new(PREC);
@@ -299,6 +303,33 @@ mod tests {
         let l = Interval::u64(10).ln().unwrap();
         assert!(l.lo < l.hi);
         assert!((l.mid_f64() - std::f64::consts::LN_10).abs() < 1e-15);
+    }
+
+    #[test]
+    fn absurd_exponents_are_refused_not_a_panic() {
+        // Regression: an exponent of i64::MIN overflowed `abs()`.
+        for exponent in [i64::MIN, i64::MIN + 1, i64::MAX, -4097, 4097] {
+            let b = Bounds {
+                lo: Dyadic {
+                    mantissa: Integer::from(1),
+                    exponent,
+                },
+                hi: Dyadic {
+                    mantissa: Integer::from(1),
+                    exponent: 0,
+                },
+            };
+            assert!(Interval::from_bounds(&b).is_none(), "{exponent}");
+        }
+        let huge = Dyadic {
+            mantissa: Integer::from(1) << 5000u32,
+            exponent: 0,
+        };
+        let b = Bounds {
+            lo: huge.clone(),
+            hi: huge,
+        };
+        assert!(Interval::from_bounds(&b).is_none());
     }
 
     #[test]

@@ -42,6 +42,7 @@
     clippy::as_conversions
 )]
 
+use crate::arith::jacobi_big;
 use rug::Integer;
 
 /// Inputs with more than this many significant bits (that is, `n ≥ 2^8192`)
@@ -182,48 +183,6 @@ fn is_strong_probable_prime_base2(n: &Integer) -> bool {
     false
 }
 
-/// Jacobi symbol `(a/n)` for odd `n > 0`; returns 0 when `n` is even or not
-/// positive (not a valid modulus). Binary algorithm with quadratic
-/// reciprocity, as in H. Cohen, "A Course in Computational Algebraic Number
-/// Theory", Springer GTM 138 (1993), Algorithm 1.4.10.
-fn jacobi(a: &Integer, n: &Integer) -> i32 {
-    if *n <= 0 || n.is_even() {
-        return 0;
-    }
-    let mut a = Integer::from(a % n);
-    if a < 0 {
-        a += n;
-    }
-    let mut n = n.clone();
-    // Sign of the symbol so far: `true` means -1.
-    let mut negative = false;
-    while a != 0 {
-        // Remove factors of two: (2/n) = -1 iff n ≡ 3, 5 (mod 8).
-        if let Some(e) = a.find_one(0) {
-            if e > 0 {
-                a >>= e;
-                let n_mod_8 = n.mod_u(8);
-                if e % 2 == 1 && (n_mod_8 == 3 || n_mod_8 == 5) {
-                    negative = !negative;
-                }
-            }
-        }
-        // Reciprocity: both odd now.
-        std::mem::swap(&mut a, &mut n);
-        if a.mod_u(4) == 3 && n.mod_u(4) == 3 {
-            negative = !negative;
-        }
-        a %= &n;
-    }
-    if n != 1u32 {
-        0
-    } else if negative {
-        -1
-    } else {
-        1
-    }
-}
-
 /// Selfridge's method A: the first `D` in `5, -7, 9, -11, …` with
 /// `(D/n) = -1`. Returns `None` if `n` is found composite on the way (some
 /// `D` with `1 < gcd(D, n) < n`), or if the candidate cap is reached.
@@ -239,7 +198,7 @@ fn selfridge_d(n: &Integer) -> Option<i64> {
         } else {
             magnitude.checked_neg()?
         };
-        let j = jacobi(&Integer::from(d), n);
+        let j = jacobi_big(d, n);
         if j == -1 {
             return Some(d);
         }
@@ -514,26 +473,6 @@ mod tests {
                 assert!(is_strong_probable_prime_base2(&n), "{k}");
             }
         }
-    }
-
-    #[test]
-    fn jacobi_matches_reference() {
-        let mut rng = XorShift(12345);
-        for _ in 0..5000 {
-            let n = Integer::from(rng.next() | 1);
-            let a = Integer::from(rng.next() as i64 % 1000);
-            assert_eq!(jacobi(&a, &n), a.jacobi(&n), "({a}/{n})");
-        }
-        for n in (1i64..400).step_by(2) {
-            for a in -50i64..50 {
-                let (a, n) = (Integer::from(a), Integer::from(n));
-                assert_eq!(jacobi(&a, &n), a.jacobi(&n), "({a}/{n})");
-            }
-        }
-        // Invalid moduli give 0 rather than panicking.
-        assert_eq!(jacobi(&Integer::from(3), &Integer::from(8)), 0);
-        assert_eq!(jacobi(&Integer::from(3), &Integer::from(0)), 0);
-        assert_eq!(jacobi(&Integer::from(3), &Integer::from(-7)), 0);
     }
 
     #[test]

@@ -13,8 +13,15 @@
 //! with `n = 2` and `Δ = |d|`. `E` grows with `Δ`, so `|D| >= |d|` may stand
 //! in for it. Everything is computed in outward-rounded intervals.
 
-use crate::interval::Interval;
+use super::class_number_formula::log_h_enclosure;
+use super::interval::Interval;
+use super::stated_contains;
+use crate::arith::kronecker_prime;
+use crate::limits::{MAX_CHECKPOINTS, MAX_EULER_X};
+use crate::order::{ConductorOk, OrderOk};
 use crate::registry::EULER_SAFETY_FACTOR;
+use crate::report::reason::{reject, Check, Reason};
+use classcert_format::EulerTrace;
 
 /// Smallest `X` the theorem allows.
 pub const MIN_X: u64 = 69;
@@ -161,6 +168,80 @@ pub fn compute(
     })
 }
 
+/// Section 5, first half: the trace is recomputed in full, the stated
+/// enclosure of `log L(1, χ_d)` must contain the verifier's own, and the
+/// class number formula turns it into an enclosure of `log h` (`log h R`
+/// for `D > 0`). The checkpoints only say where a disagreement starts.
+pub(crate) fn check_trace(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<Interval> {
+    let x = e.x;
+    if !(MIN_X..=MAX_EULER_X).contains(&x) {
+        return reject(
+            Reason::EulerXOutOfRange,
+            format!("X = {x} must lie in [{}, {MAX_EULER_X}]", MIN_X),
+        );
+    }
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let Some(log_delta) = Interval::int(order.abs_d()).ln() else {
+        return bad();
+    };
+    let Some(err) = error_bound(x, &log_delta) else {
+        return bad();
+    };
+    let ln2 = Interval::ln2();
+    if Interval::u64(2).mul(&err).hi >= ln2.lo {
+        return reject(
+            Reason::EulerXTooSmall,
+            format!(
+                "at X = {x} the error term is {:.4}; twice it must stay below log 2",
+                err.hi.to_f64()
+            ),
+        );
+    }
+    if e.checkpoints.len() > MAX_CHECKPOINTS {
+        return reject(Reason::OverLimit, "too many Euler checkpoints");
+    }
+    let limits: Vec<u64> = e.checkpoints.iter().map(|c| c.limit).collect();
+    if limits.windows(2).any(|w| w.first() >= w.get(1)) || limits.iter().any(|&l| l > x) {
+        return reject(
+            Reason::EulerTraceMismatch,
+            "checkpoint limits must increase and not exceed X",
+        );
+    }
+    let ds = cond.d_small();
+    let chi = |p: u64| kronecker_prime(ds, p);
+    let Some(res) = compute(x, cond.trial_primes(), &chi, &limits, &log_delta) else {
+        return bad();
+    };
+    for (claimed, mine) in e.checkpoints.iter().zip(res.checkpoints.iter()) {
+        let (Some(a), Some(c)) = (
+            Interval::from_bounds(&claimed.a),
+            Interval::from_bounds(&claimed.c),
+        ) else {
+            return reject(
+                Reason::EulerTraceMismatch,
+                "a checkpoint interval is out of range",
+            );
+        };
+        if !a.contains(&mine.a) || !c.contains(&mine.c) {
+            return reject(
+                Reason::EulerTraceMismatch,
+                format!("the partial sums up to {} disagree with the recomputation (A in [{:.12}, {:.12}])", mine.limit, mine.a.lo.to_f64(), mine.a.hi.to_f64()),
+            );
+        }
+    }
+    stated_contains(
+        &e.log_l,
+        &res.log_l,
+        Reason::EulerIntervalUnderstated,
+        "enclosure of log L(1, chi)",
+    )?;
+    let Some(log_h) = log_h_enclosure(order.d(), order.w(), &res.log_l, cond.primes(), ds, x)
+    else {
+        return bad();
+    };
+    Ok(log_h)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -189,6 +270,31 @@ mod tests {
         // log(π/4) (L(1, χ_{-4}) = π/4, Leibniz; common practice) lies inside
         let truth = (std::f64::consts::PI / 4.0).ln();
         assert!(r.log_l.lo.to_f64() < truth && truth < r.log_l.hi.to_f64());
+    }
+
+    #[test]
+    fn constants_are_the_rounded_up_closed_forms() {
+        // 2.324, 3.88 and 4.26 are (3/2)(1 + (log 9)/4), 6/(1 + (log 9)/4)
+        // and 3 log 9/(1 + (log 9)/4) rounded up (Belabas and Friedman,
+        // arXiv:1305.0035, p. 2): each constant is at least its closed form
+        // and exceeds it by less than one unit in its last place.
+        let l9 = Interval::u64(9).ln().unwrap();
+        let one = Interval::u64(1);
+        let k = one.add(&l9.div(&Interval::u64(4)).unwrap());
+        let forms = [
+            (Interval::ratio(3, 2).unwrap().mul(&k), 2324u64, 1000u64),
+            (Interval::u64(6).div(&k).unwrap(), 388, 100),
+            (Interval::u64(3).mul(&l9).div(&k).unwrap(), 426, 100),
+        ];
+        for (closed, num, den) in forms {
+            let c = Interval::ratio(num as i64, den).unwrap();
+            let ulp = Interval::ratio(1, den).unwrap();
+            assert!(c.lo >= closed.hi, "{num}/{den} is below its closed form");
+            assert!(
+                c.sub(&ulp).hi < closed.lo,
+                "{num}/{den} is not the rounding up"
+            );
+        }
     }
 
     #[test]

@@ -23,15 +23,13 @@
 //! comes from composition (Cohen Alg. 5.4.7: the product of the ideals of
 //! primitive forms is `d [a3, (b3 + sqrt D)/2]`).
 
-use crate::element::log_abs_alpha;
-use crate::form::Form;
-use crate::interval::Interval;
+use crate::analytic::interval::Interval;
+use crate::ideals::form::Form;
 use crate::limits::*;
-use crate::verdict::{reject, Reason, Rejection};
+use crate::relations::elements::log_abs_alpha;
+use crate::report::reason::{reject, Check, Reason};
 use classcert_format::CompactStep;
 use rug::Integer;
-
-type Check<T> = Result<T, Rejection>;
 
 /// A pair `(X, Y)` standing for `(X + Y sqrt D)/2`.
 type Pair = (Integer, Integer);

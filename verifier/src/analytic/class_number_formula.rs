@@ -1,0 +1,134 @@
+//! The class number formula for quadratic orders and the conclusion step
+//! (design note, section 5).
+//!
+//! `h(D) = w sqrt|D| L(1, χ_D) / (2π)` for `D < 0` and
+//! `h(D) R(D) = sqrt(D) L(1, χ_D) / 2` for `D > 0`, with
+//! `L(1, χ_D) = L(1, χ_d) ∏_{p | f} (1 - χ_d(p)/p)` (registry entries
+//! `class-number-formula-orders`, `class-number-formula-real-orders`).
+//! Given an enclosure of `log L(1, χ_d)`, [`log_h_enclosure`] gives one of
+//! `log h` (`log h R`). Conclusion: the lattice gives `h* R* = k h R` with
+//! `k >= 1` an integer, so `log h* R* < lo(log h R) + log 2` forces
+//! `k = 1`; and `log h* R* < lo(log h R)` cannot happen if the relations
+//! and GRH both hold.
+
+use super::interval::Interval;
+use super::BoundOk;
+use crate::arith::kronecker_prime;
+use crate::report::reason::{reject, Check, Reason};
+use crate::units::UnitFacts;
+use rug::Integer;
+
+/// The enclosure of `log h(O_D)` (for `D > 0`, of `log h(O_D) R(O_D)`)
+/// from the class number formula and the Euler-product enclosure of
+/// `log L(1, χ_d)`; shared with the prover so both sides agree on what is
+/// checked.
+pub fn log_h_enclosure(
+    d: &Integer,
+    w: u32,
+    log_l: &Interval,
+    conductor: &[(u64, u32)],
+    d_small: &Integer,
+    x: u64,
+) -> Option<Interval> {
+    let abs_d = Interval::int(&Integer::from(d.abs_ref()));
+    let half_log_d = abs_d.ln()?.div(&Interval::u64(2))?;
+    // h = w sqrt|D| L / (2 pi) for D < 0; h R = sqrt D L / 2 for D > 0
+    let lead = if *d > 0 {
+        Interval::u64(1).div(&Interval::u64(2))?
+    } else {
+        Interval::u64(u64::from(w)).div(&Interval::pi().mul(&Interval::u64(2)))?
+    };
+    let mut acc = lead.ln()?.add(&half_log_d).add(log_l);
+    for (p, _) in conductor {
+        let chi = i64::from(kronecker_prime(d_small, *p));
+        let pi = Interval::u64(*p);
+        let factor = pi.sub(&Interval::int(&Integer::from(chi))).div(&pi)?;
+        acc = acc.add(&factor.ln()?);
+    }
+    // Primes q > X of the conductor not found by trial division: at most
+    // log|D| / (2 log X) of them, each contributing log(1 ± 1/X) at most.
+    let k = abs_d
+        .ln()?
+        .div(&Interval::u64(x).ln()?.mul(&Interval::u64(2)))?;
+    let k_max = k.hi.to_f64().floor().max(0.0) as u64;
+    if k_max > 0 {
+        let xi = Interval::u64(x);
+        let lo = xi.sub(&Interval::u64(1)).div(&xi)?.ln()?;
+        let hi = xi.add(&Interval::u64(1)).div(&xi)?.ln()?;
+        let k = Interval::u64(k_max);
+        let slop = Interval {
+            lo: lo.mul(&k).lo,
+            hi: hi.mul(&k).hi,
+        };
+        acc = acc.add(&slop);
+    }
+    Some(acc)
+}
+
+/// Token: `h = h*` (and `R = R*` when `D > 0`).
+#[derive(Debug)]
+pub(crate) struct AnalyticOk {
+    bound: BoundOk,
+}
+
+impl AnalyticOk {
+    pub(crate) fn bound(&self) -> &BoundOk {
+        &self.bound
+    }
+
+    pub(crate) fn into_bound(self) -> BoundOk {
+        self.bound
+    }
+}
+
+/// The conclusion step for a relation lattice of index `h_star` (and the
+/// unit's `R*` when `D > 0`).
+pub(crate) fn check_conclusion(
+    bound: BoundOk,
+    h_star: &Integer,
+    unit: Option<&UnitFacts>,
+) -> Check<AnalyticOk> {
+    let log_h = bound.log_h();
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let ln2 = Interval::ln2();
+    let hs = Interval::int(h_star);
+    let Some(mut log_hs) = hs.ln() else {
+        return bad();
+    };
+    if let Some(u) = unit {
+        let Some(log_r) = u.regulator.ln() else {
+            return bad();
+        };
+        log_hs = log_hs.add(&log_r);
+    }
+    // h* R* = k h R with k >= 1 (R = R* = 1 for D < 0). If
+    // log h* R* < lo(log h R) + log 2 then k = 1.
+    if log_hs.hi >= log_h.add(&ln2).lo {
+        if unit.is_some() {
+            return reject(
+                Reason::ClassNumberRegulatorNotConfirmed,
+                format!(
+                    "h* R* is too large: log h* R* = {:.6} but log h R <= {:.6} + log 2 is all the analytic bound allows for h = h*, R = R*",
+                    log_hs.hi.to_f64(),
+                    log_h.lo.to_f64()
+                ),
+            );
+        }
+        return reject(
+            Reason::ClassNumberNotConfirmed,
+            format!(
+                "h* = {} is too large: log h* = {:.6} but log h <= {:.6} + log 2 is all the analytic bound allows for k = 1",
+                h_star,
+                log_hs.hi.to_f64(),
+                log_h.lo.to_f64()
+            ),
+        );
+    }
+    if log_hs.hi < log_h.lo {
+        return reject(
+            Reason::AnalyticInconsistent,
+            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", h_star, unit.map_or(1.0, |u| u.regulator.mid_f64()), log_h.lo.to_f64()),
+        );
+    }
+    Ok(AnalyticOk { bound })
+}

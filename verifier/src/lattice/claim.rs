@@ -1,0 +1,144 @@
+//! The claim matches the lattice: the class number is `∏ d_i`, the
+//! invariants are the `d_i > 1`, and each claimed generator maps to the
+//! unit vector of its cyclic factor under `V` (so it generates it), with
+//! its reduced form when `D < 0`.
+
+use super::LatticeOk;
+use crate::ideals::quadratic::QuadraticIdeal;
+use crate::limits::MAX_COMPOSITIONS;
+use crate::relations::forms::{product, Budget};
+use crate::report::reason::{reject, Check, Reason};
+use crate::report::GeneratorView;
+use classcert_format::{Claim, Lattice};
+use rug::Integer;
+
+/// Token: the claimed group is the lattice's.
+#[derive(Debug)]
+pub(crate) struct ClaimOk {
+    invariants: Vec<Integer>,
+    generators: Vec<GeneratorView>,
+}
+
+impl ClaimOk {
+    pub(crate) fn invariants(&self) -> &[Integer] {
+        &self.invariants
+    }
+
+    pub(crate) fn into_generators(self) -> Vec<GeneratorView> {
+        self.generators
+    }
+}
+
+/// `reduced_forms`: generators are stated as reduced forms (`D < 0`);
+/// otherwise by their exponents alone (reduced indefinite forms are not
+/// unique in their class).
+pub(crate) fn check_claim(
+    c: &Claim,
+    l: &Lattice,
+    lat: &LatticeOk,
+    ideals: &[QuadraticIdeal],
+    d: &Integer,
+    reduced_forms: bool,
+) -> Check<ClaimOk> {
+    if c.class_number != *lat.h_star() {
+        return reject(
+            Reason::ClassNumberMismatch,
+            format!(
+                "claimed class number {} but the Smith diagonal multiplies to {}",
+                c.class_number,
+                lat.h_star()
+            ),
+        );
+    }
+    let nontrivial: Vec<(usize, &Integer)> = lat
+        .diagonal()
+        .iter()
+        .enumerate()
+        .filter(|(_, d)| **d > 1)
+        .collect();
+    let inv: Vec<Integer> = nontrivial.iter().map(|(_, d)| (*d).clone()).collect();
+    if c.invariants != inv {
+        return reject(
+            Reason::InvariantsMismatch,
+            "claimed invariants differ from the Smith diagonal entries > 1",
+        );
+    }
+    if c.generators.len() != nontrivial.len() {
+        return reject(
+            Reason::GeneratorMismatch,
+            "one generator per invariant factor is required",
+        );
+    }
+    let r = l.generators.len();
+    let forms: Vec<_> = ideals.iter().map(|i| &i.form).collect();
+    let mut budget = Budget::new(MAX_COMPOSITIONS);
+    let mut out = Vec::with_capacity(c.generators.len());
+    for ((i, _), g) in nontrivial.iter().zip(c.generators.iter()) {
+        if g.exponents.len() != r {
+            return reject(
+                Reason::GeneratorMismatch,
+                "generator exponent vector has the wrong length",
+            );
+        }
+        // x V ≡ e_i (mod d_j) in every coordinate j
+        for (j, dj) in lat.diagonal().iter().enumerate() {
+            let mut s = Integer::new();
+            for (xk, vrow) in g.exponents.iter().zip(l.smith.v.iter()) {
+                if let Some(vkj) = vrow.get(j) {
+                    s += Integer::from(xk * vkj);
+                }
+            }
+            s -= Integer::from(j == *i);
+            if !s.is_divisible(dj) {
+                return reject(
+                    Reason::GeneratorMismatch,
+                    format!("generator {i} does not map to the unit vector of factor {i}"),
+                );
+            }
+        }
+        let entries: Vec<(usize, &Integer)> = l
+            .generators
+            .iter()
+            .zip(g.exponents.iter())
+            .filter(|(_, e)| !e.is_zero())
+            .map(|(gi, e)| (*gi as usize, e))
+            .collect();
+        if !reduced_forms {
+            if g.form.is_some() {
+                return reject(
+                    Reason::GeneratorMismatch,
+                    "for D > 0 a generator is given by its exponents, without a form",
+                );
+            }
+            let ideals = entries
+                .iter()
+                .filter_map(|(gi, e)| ideals.get(*gi).map(|q| (q.p, q.b, (*e).clone())))
+                .collect();
+            out.push(GeneratorView::Ideals(ideals));
+            continue;
+        }
+        let Some(stated) = &g.form else {
+            return reject(
+                Reason::GeneratorMismatch,
+                format!("generator {i} has no reduced form"),
+            );
+        };
+        let Some(acc) = product(&forms, &entries, d, &mut budget)? else {
+            return reject(Reason::GeneratorMismatch, "form arithmetic failed");
+        };
+        if acc.a != stated.a || acc.b != stated.b || acc.c != stated.c {
+            return reject(
+                Reason::GeneratorMismatch,
+                format!(
+                    "generator {i} reduces to ({}, {}, {}), not the stated form",
+                    acc.a, acc.b, acc.c
+                ),
+            );
+        }
+        out.push(GeneratorView::Form(acc.a, acc.b, acc.c));
+    }
+    Ok(ClaimOk {
+        invariants: inv,
+        generators: out,
+    })
+}

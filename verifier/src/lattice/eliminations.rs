@@ -1,0 +1,133 @@
+//! Eliminations (design note, section 3): each factor-base ideal outside
+//! the generator block is `±1` times a product of ideals already accounted
+//! for, by a relation. So its class lies in the subgroup the generators
+//! span, and `Z^n / L` is the quotient of the generator block alone.
+
+use crate::limits::MAX_RELATION_ENTRIES;
+use crate::relations::Witnesses;
+use crate::report::reason::{reject, Check, Reason};
+use classcert_format::Elimination;
+use rug::Integer;
+
+/// Checks `eliminations` in order; `known[i]` is true for the generators
+/// on entry, and for every ideal on success.
+pub(crate) fn check_eliminations(
+    eliminations: &[Elimination],
+    known: &mut [bool],
+    witnesses: &mut Witnesses,
+) -> Check<()> {
+    if eliminations.len() > known.len() {
+        return reject(
+            Reason::EliminationStructure,
+            "more eliminations than factor-base ideals",
+        );
+    }
+    for (k, el) in eliminations.iter().enumerate() {
+        let p = el.pivot as usize;
+        if known.get(p).copied() != Some(false) {
+            return reject(
+                Reason::EliminationStructure,
+                format!("elimination {k}: pivot {p} is already accounted for or out of range"),
+            );
+        }
+        let ents = &el.relation.entries;
+        if ents.len() > MAX_RELATION_ENTRIES {
+            return reject(Reason::OverLimit, "a relation has too many entries");
+        }
+        let mut prev: Option<u32> = None;
+        let mut pivot_ok = false;
+        for (i, e) in ents {
+            if prev.is_some_and(|q| q >= *i) || e.is_zero() {
+                return reject(
+                    Reason::EliminationStructure,
+                    format!(
+                        "elimination {k}: entries must be nonzero and in increasing index order"
+                    ),
+                );
+            }
+            prev = Some(*i);
+            if *i as usize == p {
+                pivot_ok = *e == 1 || *e == -1;
+            } else if known.get(*i as usize).copied() != Some(true) {
+                return reject(
+                    Reason::EliminationStructure,
+                    format!("elimination {k}: index {i} is not yet accounted for"),
+                );
+            }
+        }
+        if !pivot_ok {
+            return reject(
+                Reason::EliminationStructure,
+                format!("elimination {k}: the pivot's coefficient must be ±1"),
+            );
+        }
+        let entries: Vec<(usize, &Integer)> = ents.iter().map(|(i, e)| (*i as usize, e)).collect();
+        if !witnesses.holds(&entries, &el.relation.witness, &format!("elimination {k}"))? {
+            return reject(
+                witnesses.failure(true),
+                format!("elimination {k} (pivot {p}) does not hold by its witness"),
+            );
+        }
+        if let Some(slot) = known.get_mut(p) {
+            *slot = true;
+        }
+    }
+    if let Some(missing) = known.iter().position(|k| !k) {
+        return reject(
+            Reason::EliminationIncomplete,
+            format!("factor-base ideal {missing} is neither a generator nor eliminated"),
+        );
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::ideals::form::Form;
+    use crate::relations::RawOk;
+    use classcert_format::{Relation, Witness};
+
+    fn el(pivot: u32, entries: &[(u32, i64)]) -> Elimination {
+        Elimination {
+            pivot,
+            relation: Relation {
+                entries: entries
+                    .iter()
+                    .map(|&(i, e)| (i, Integer::from(e)))
+                    .collect(),
+                witness: Witness::FormReduction,
+            },
+        }
+    }
+
+    #[test]
+    fn eliminations_of_minus_23() {
+        // D = -23: P_2 = (2, 1, 3) and P_3 = (3, 1, 2) ~ (2, -1, 3) = P_2^{-1}
+        // (reduction of (3, 1, 2); common practice), so P_2 P_3 is principal.
+        let d = Integer::from(-23);
+        let f2 = Form::new(Integer::from(2), Integer::from(1), &d).unwrap();
+        let f3 = Form::new(Integer::from(3), Integer::from(1), &d).unwrap();
+        let raw = RawOk::for_tests();
+        let mk = || Witnesses::new(&raw, vec![&f2, &f3], &d);
+        let mut known = vec![true, false];
+        assert!(check_eliminations(&[el(1, &[(0, 1), (1, 1)])], &mut known, &mut mk()).is_ok());
+        // P_2 P_3^-1 = P_2^2 is not principal
+        let mut known = vec![true, false];
+        let e =
+            check_eliminations(&[el(1, &[(0, 1), (1, -1)])], &mut known, &mut mk()).unwrap_err();
+        assert_eq!(e.reason, Reason::EliminationNotPrincipal);
+        // pivot coefficient 2
+        let mut known = vec![true, false];
+        let e = check_eliminations(&[el(1, &[(0, 1), (1, 2)])], &mut known, &mut mk()).unwrap_err();
+        assert_eq!(e.reason, Reason::EliminationStructure);
+        // nothing eliminates ideal 1
+        let mut known = vec![true, false];
+        let e = check_eliminations(&[], &mut known, &mut mk()).unwrap_err();
+        assert_eq!(e.reason, Reason::EliminationIncomplete);
+        // a pivot that is a generator
+        let mut known = vec![true, false];
+        let e = check_eliminations(&[el(0, &[(0, 1)])], &mut known, &mut mk()).unwrap_err();
+        assert_eq!(e.reason, Reason::EliminationStructure);
+    }
+}

@@ -1,0 +1,121 @@
+//! Step 3: the relation lattice, its index and the group structure (design
+//! note, section 3).
+//!
+//! The certificate names generator ideals `G` and a square matrix `H` of
+//! relations among them, shows every other factor-base ideal eliminated
+//! ([`eliminations`]), and gives the Smith form of `H` ([`smith`]). Then
+//! `Z^n / L ≅ ⊕ Z/d_i` for the lattice `L` the relations span, and since
+//! `L` lies in the full relation lattice, `#Cl(O)` divides
+//! `h* = ∏ d_i` (registry entry `relation-lattice-index`). [`claim`] then
+//! checks that the certificate's claim is this group.
+
+pub(crate) mod claim;
+mod eliminations;
+mod smith;
+
+use crate::limits::MAX_RANK;
+use crate::registry::{self, Theorem};
+use crate::relations::Witnesses;
+use crate::report::reason::{reject, Check, Reason};
+use classcert_format::{Lattice, Witness};
+use rug::Integer;
+
+/// Token: `Z^n / L ≅ ⊕ Z/d_i`, with `L` made of relations that hold.
+#[derive(Debug)]
+pub(crate) struct LatticeOk {
+    h_star: Integer,
+    diagonal: Vec<Integer>,
+}
+
+impl LatticeOk {
+    /// `h* = ∏ d_i`, a multiple of `#Cl(O)`.
+    pub(crate) fn h_star(&self) -> &Integer {
+        &self.h_star
+    }
+
+    pub(crate) fn diagonal(&self) -> &[Integer] {
+        &self.diagonal
+    }
+
+    pub(crate) fn theorem(&self) -> Option<&'static Theorem> {
+        registry::lookup(registry::LATTICE_INDEX)
+    }
+}
+
+/// Checks the lattice over a factor base of `n` ideals, its relations shown
+/// by `witnesses`.
+pub(crate) fn check_lattice(l: &Lattice, n: usize, witnesses: &mut Witnesses) -> Check<LatticeOk> {
+    let r = l.generators.len();
+    if r > MAX_RANK {
+        return reject(
+            Reason::OverLimit,
+            format!("{r} generators; the limit is {MAX_RANK}"),
+        );
+    }
+    let mut known = vec![false; n];
+    for &g in &l.generators {
+        match known.get_mut(g as usize) {
+            Some(k) if !*k => *k = true,
+            _ => {
+                return reject(
+                    Reason::GeneratorsInvalid,
+                    format!("generator index {g} is repeated or outside the factor base"),
+                )
+            }
+        }
+    }
+    // Relations among the generators (rows of H).
+    if !smith::is_square(&l.relations, r) {
+        return reject(
+            Reason::SmithShape,
+            format!("the relation matrix must be {r} x {r}"),
+        );
+    }
+    for (i, row) in l.relations.iter().enumerate() {
+        let mut entries: Vec<(usize, &Integer)> = l
+            .generators
+            .iter()
+            .zip(row.iter())
+            .filter(|(_, e)| !e.is_zero())
+            .map(|(g, e)| (*g as usize, e))
+            .collect();
+        entries.sort_by_key(|(g, _)| *g);
+        if !witnesses.holds(
+            &entries,
+            &row_witness(&l.relation_witness, i, r)?,
+            &format!("row {i} of H"),
+        )? {
+            return reject(
+                witnesses.failure(false),
+                format!("generator relation {i} does not hold by its witness"),
+            );
+        }
+    }
+    let h_star = smith::check_smith(&l.relations, &l.smith, r)?;
+    eliminations::check_eliminations(&l.eliminations, &mut known, witnesses)?;
+    Ok(LatticeOk {
+        h_star,
+        diagonal: l.smith.diagonal.clone(),
+    })
+}
+
+/// The witness of row `i` of `H`: form reduction for all rows, or row `i`
+/// of a `combinations` witness.
+fn row_witness(w: &Witness, i: usize, r: usize) -> Check<Witness> {
+    match w {
+        Witness::Combinations { rows } => match rows.get(i) {
+            Some(terms) if rows.len() == r => Ok(Witness::Combination {
+                terms: terms.clone(),
+            }),
+            _ => reject(
+                Reason::CombinationMismatch,
+                format!("one combination per row of H is required ({r} rows)"),
+            ),
+        },
+        Witness::Combination { .. } | Witness::Element { .. } => reject(
+            Reason::WitnessKind,
+            "the rows of H need a combinations or form-reduction witness",
+        ),
+        Witness::FormReduction => Ok(Witness::FormReduction),
+    }
+}

@@ -1,0 +1,313 @@
+//! The order of the checks, and the only place a verified result is made.
+//!
+//! ```text
+//! order/        discriminant → conductor (trial division) → maximality
+//! ideals/       the generation statement → factor base coverage
+//! relations/    raw relations by element witnesses (D > 0)
+//! lattice/      rows of H → Smith form → eliminations → the claim
+//! units/        the unit's compact representation, R* > 0 (D > 0)
+//! analytic/     Euler product or series → log h → h = h*, R = R*
+//! ```
+//!
+//! Fail closed: each step returns a token that only its own module can
+//! build (its fields are private there), and [`Verified`] is built here,
+//! from all the tokens of one path, by the two private functions at the
+//! end of this file. A skipped step does not compile, and every word the
+//! verdict says (the theorems, the hypotheses, the cut-off) is read off the
+//! tokens, so it is what was checked.
+
+use crate::analytic::class_number_formula::{check_conclusion, AnalyticOk};
+use crate::analytic::interval::Interval;
+use crate::analytic::{self, Method};
+use crate::ideals::generation::{self, GenerationOk};
+use crate::ideals::quadratic::{QuadraticIdeal, QuadraticOrder};
+use crate::lattice::claim::{check_claim, ClaimOk};
+use crate::lattice::{check_lattice, LatticeOk};
+use crate::limits::MAX_SIEVE;
+use crate::order::{check_conductor, check_discriminant, check_maximality, MaximalityOk, OrderOk};
+use crate::registry::{Hypothesis, Theorem};
+use crate::relations::{check_raw_relations, RawOk, Witnesses};
+use crate::report::reason::{reject, Check, Reason};
+use crate::report::{Assumption, GeneratorView, UnitSummary};
+use crate::units::{check_units, UnitsOk};
+use crate::witness::{
+    check_h, check_witness_bound, check_witnesses, FactorsOk, WitnessBoundOk, WitnessesOk,
+};
+use classcert_format::{Body, WitnessBody};
+use rug::Integer;
+
+/// Which kind of certificate a verified result came from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CertificateKind {
+    /// Relations, their lattice and the analytic bound.
+    Relations,
+    /// Classes of exact order and the analytic bound.
+    OrderWitness,
+}
+
+/// What is known once every check of one path has passed. Built only in
+/// this module, from the tokens; read through its accessors.
+#[derive(Debug, Clone)]
+pub struct Verified {
+    kind: CertificateKind,
+    class_number: Integer,
+    invariants: Vec<Integer>,
+    generators: Vec<GeneratorView>,
+    unit: Option<UnitSummary>,
+    maximal: bool,
+    assumptions: Vec<Assumption>,
+    theorems: Vec<&'static Theorem>,
+    w: u32,
+    method: Method,
+    generation_bound: Option<u64>,
+    log_h: Interval,
+    factor_base_size: Option<usize>,
+}
+
+impl Verified {
+    pub fn kind(&self) -> CertificateKind {
+        self.kind
+    }
+    pub fn class_number(&self) -> &Integer {
+        &self.class_number
+    }
+    /// `d_1 | d_2 | …`, all `> 1` (empty for the trivial group).
+    pub fn invariants(&self) -> &[Integer] {
+        &self.invariants
+    }
+    /// One generator per invariant.
+    pub fn generators(&self) -> &[GeneratorView] {
+        &self.generators
+    }
+    /// `D > 0`: the fundamental unit and the regulator.
+    pub fn unit(&self) -> Option<&UnitSummary> {
+        self.unit.as_ref()
+    }
+    /// Whether the order was certified to be the maximal one.
+    pub fn maximal(&self) -> bool {
+        self.maximal
+    }
+    /// The hypotheses the result rests on (empty: unconditional).
+    pub fn assumptions(&self) -> &[Assumption] {
+        &self.assumptions
+    }
+    /// Every registry entry the checks used.
+    pub fn theorems(&self) -> &[&'static Theorem] {
+        &self.theorems
+    }
+    /// Roots of unity in the order.
+    pub fn w(&self) -> u32 {
+        self.w
+    }
+    /// How the analytic bound was obtained.
+    pub fn method(&self) -> Method {
+        self.method
+    }
+    /// The generation bound the factor base was checked against (none for
+    /// order witnesses, which need no generation statement).
+    pub fn generation_bound(&self) -> Option<u64> {
+        self.generation_bound
+    }
+    /// The enclosure of `log h` (`log h R` for `D > 0`).
+    pub fn log_h(&self) -> &Interval {
+        &self.log_h
+    }
+    /// Prime ideals in the factor base (relations certificates).
+    pub fn factor_base_size(&self) -> Option<usize> {
+        self.factor_base_size
+    }
+}
+
+/// The stage names passed to a progress observer, in order.
+pub const STAGES: &[&str] = &[
+    "order",
+    "factor base",
+    "relations",
+    "lattice",
+    "units",
+    "analytic bound",
+];
+
+/// Checks a full certificate. `progress` is told each stage as it starts.
+pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> Check<Verified> {
+    progress("order");
+    let order = check_discriminant(&body.order)?;
+    let statement = generation::statement(&body.generation_theorem, &order)?;
+    let trial_bound = statement.bound().max(analytic::primes_needed(&body.euler));
+    if trial_bound > MAX_SIEVE {
+        return reject(
+            Reason::OverLimit,
+            format!("the trial-division bound {trial_bound} exceeds {MAX_SIEVE}"),
+        );
+    }
+    let cond = check_conductor(&body.conductor_small, order.d(), trial_bound)?;
+    let maximality = check_maximality(&body.maximality, order.d())?;
+    progress("factor base");
+    let arith = QuadraticOrder::new(order.d(), &cond);
+    let gen = generation::check_generation(
+        &arith,
+        statement,
+        &maximality,
+        &body.factor_base,
+        cond.trial_primes(),
+    )?;
+    progress("relations");
+    let raw = check_raw_relations(
+        &arith,
+        gen.ideals(),
+        &body.lattice.raw_relations,
+        order.is_real(),
+    )?;
+    progress("lattice");
+    let forms = gen.ideals().iter().map(|i| &i.form).collect();
+    let mut witnesses = Witnesses::new(&raw, forms, order.d());
+    let lat = check_lattice(&body.lattice, gen.ideals().len(), &mut witnesses)?;
+    let claim = check_claim(
+        &body.claim,
+        &body.lattice,
+        &lat,
+        gen.ideals(),
+        order.d(),
+        !order.is_real(),
+    )?;
+    progress("units");
+    let units = check_units(&body.units, order.d(), order.is_real())?;
+    progress("analytic bound");
+    let bound = analytic::check_bound(&body.euler, &order, &cond, &maximality)?;
+    let analytic = check_conclusion(bound, lat.h_star(), units.unit())?;
+    Ok(from_relations(
+        order, maximality, gen, raw, lat, claim, units, analytic,
+    ))
+}
+
+/// Checks an order-witness certificate (`D < 0` only).
+pub(crate) fn verify_order_witness(w: &WitnessBody) -> Check<Verified> {
+    let order = check_discriminant(&w.order)?;
+    if order.is_real() {
+        return reject(
+            Reason::UnsupportedOrder,
+            "order witnesses are checked for D < 0 only (the unit group is needed for D > 0)",
+        );
+    }
+    let trial_bound = analytic::primes_needed(&w.euler);
+    if trial_bound > MAX_SIEVE {
+        return reject(
+            Reason::OverLimit,
+            format!("X = {trial_bound} exceeds {MAX_SIEVE}"),
+        );
+    }
+    let cond = check_conductor(&w.conductor_small, order.d(), trial_bound)?;
+    let maximality = check_maximality(&w.maximality, order.d())?;
+    let h = check_h(&w.class_number, &w.h_factors)?;
+    let witnesses = check_witnesses(&w.generators, &h, order.d())?;
+    let bound = analytic::check_bound(&w.euler, &order, &cond, &maximality)?;
+    let bound = check_witness_bound(bound, &w.class_number)?;
+    Ok(from_order_witness(order, maximality, h, witnesses, bound))
+}
+
+/// The hypotheses behind `theorems`, and "BPSW probable prime" when a
+/// prime rests on that test alone.
+fn assumptions(theorems: &[&'static Theorem], bpsw: bool) -> Vec<Assumption> {
+    let mut out = Vec::new();
+    if theorems.iter().any(|t| t.hypothesis == Hypothesis::Grh) {
+        out.push(Assumption::Grh);
+    }
+    if bpsw {
+        out.push(Assumption::BpswProbablePrime);
+    }
+    out
+}
+
+/// Appends `t` unless it is listed already.
+fn push_unique(list: &mut Vec<&'static Theorem>, t: &'static Theorem) {
+    if !list.iter().any(|s| s.id == t.id) {
+        list.push(t);
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn from_relations(
+    order: OrderOk,
+    maximality: MaximalityOk,
+    gen: GenerationOk<QuadraticIdeal>,
+    raw: RawOk,
+    lat: LatticeOk,
+    claim: ClaimOk,
+    units: UnitsOk,
+    analytic: AnalyticOk,
+) -> Verified {
+    let mut theorems = vec![gen.theorem()];
+    let optional = [raw.theorem(), lat.theorem(), units.theorem()];
+    for t in optional.into_iter().flatten() {
+        push_unique(&mut theorems, t);
+    }
+    for t in analytic.bound().theorems() {
+        push_unique(&mut theorems, t);
+    }
+    let evidence = maximality.evidence().copied();
+    for t in evidence.iter().flat_map(|e| e.theorems()) {
+        push_unique(&mut theorems, t);
+    }
+    let bpsw = evidence.is_some_and(|e| e.bpsw_assumed);
+    let bound = analytic.into_bound();
+    Verified {
+        kind: CertificateKind::Relations,
+        class_number: lat.h_star().clone(),
+        invariants: claim.invariants().to_vec(),
+        generators: claim.into_generators(),
+        unit: units.into_unit().map(|u| UnitSummary {
+            regulator: u.regulator,
+            norm: u.norm,
+            compact_length: u.steps,
+        }),
+        maximal: maximality.is_maximal(),
+        assumptions: assumptions(&theorems, bpsw),
+        theorems,
+        w: order.w(),
+        method: bound.method(),
+        generation_bound: Some(gen.bound()),
+        log_h: bound.log_h().clone(),
+        factor_base_size: Some(gen.ideals().len()),
+    }
+}
+
+fn from_order_witness(
+    order: OrderOk,
+    maximality: MaximalityOk,
+    h: FactorsOk,
+    witnesses: WitnessesOk,
+    bound: WitnessBoundOk,
+) -> Verified {
+    let mut theorems = Vec::new();
+    if let Some(t) = witnesses.theorem() {
+        theorems.push(t);
+    }
+    for t in bound.bound().theorems() {
+        push_unique(&mut theorems, t);
+    }
+    let max_evidence = maximality.evidence().copied();
+    for t in max_evidence
+        .iter()
+        .flat_map(|e| e.theorems())
+        .chain(h.evidence().theorems())
+    {
+        push_unique(&mut theorems, t);
+    }
+    let bpsw = h.evidence().bpsw_assumed || max_evidence.is_some_and(|e| e.bpsw_assumed);
+    let invariants = witnesses.invariants();
+    Verified {
+        kind: CertificateKind::OrderWitness,
+        class_number: h.h().clone(),
+        generators: witnesses.generators(),
+        invariants,
+        unit: None,
+        maximal: maximality.is_maximal(),
+        assumptions: assumptions(&theorems, bpsw),
+        theorems,
+        w: order.w(),
+        method: bound.bound().method(),
+        generation_bound: None,
+        log_h: bound.bound().log_h().clone(),
+        factor_base_size: None,
+    }
+}

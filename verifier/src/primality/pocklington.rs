@@ -1,0 +1,127 @@
+//! Pocklington's `N - 1` theorem, one step of a primality proof tree.
+//!
+//! Pocklington's theorem (H. C. Pocklington, "The
+//! determination of the prime or composite nature of large numbers by
+//! Fermat's theorem", Proc. Cambridge Phil. Soc. 18 (1914); in the form of
+//! J. Brillhart, D. H. Lehmer and J. L. Selfridge, Math. Comp. 29 (1975),
+//! registry entry `pocklington-1914`):
+//!
+//! ```text
+//! N - 1 = F R with F = ∏ q^e, every q prime. If for each q there is an a
+//! with a^(N-1) ≡ 1 (mod N) and gcd(a^((N-1)/q) - 1, N) = 1, then every
+//! prime factor p of N has p ≡ 1 (mod F). If moreover F² ≥ N, N is prime.
+//! ```
+//!
+//! (Every prime p | N then exceeds F ≥ sqrt N, so N has no prime factor up
+//! to its square root.) Each `q` carries its own evidence, checked the same
+//! way, so a proof is a tree; below 2^64 a Baillie–PSW pass is a proof.
+//!
+
+use super::{check as check_prime, Factored, ProofError, Status, Used};
+use crate::limits::*;
+use classcert_format::PocklingtonFactor;
+use rug::Integer;
+
+/// Checks the step `N - 1 = F R` with the stated factors of `F`.
+pub(super) fn check(
+    n: &Integer,
+    factors: &[PocklingtonFactor],
+    depth: u32,
+    work: &mut u64,
+    used: &mut Used,
+) -> Result<Status, ProofError> {
+    used.pocklington = true;
+    let invalid = |why: String| Err(ProofError::Invalid(format!("{n}: {why}")));
+    if *n < 5 || n.is_even() {
+        return invalid("the theorem is used for odd N >= 5 only".into());
+    }
+    if factors.len() > MAX_PROOF_FACTORS {
+        return Err(ProofError::OverLimit);
+    }
+    let n1 = Integer::from(n - 1u32);
+    let mut fp = Factored::new(&n1);
+    let mut status = Status::Proven;
+    for pf in factors {
+        if let Err(why) = fp.push(&pf.q, pf.e) {
+            return invalid(why);
+        }
+        if pf.base < 2 || pf.base >= n1 {
+            return invalid(format!("base {} is not in [2, N - 2]", pf.base));
+        }
+        if *work < 2 {
+            return Err(ProofError::OverLimit);
+        }
+        *work -= 2;
+        let Ok(fermat) = pf.base.clone().pow_mod(&n1, n) else {
+            return invalid("modular power failed".into());
+        };
+        if fermat != 1 {
+            return invalid(format!("{}^(N-1) is not 1 mod N", pf.base));
+        }
+        let Ok(part) = pf.base.clone().pow_mod(&Integer::from(&n1 / &pf.q), n) else {
+            return invalid("modular power failed".into());
+        };
+        if (part - 1u32).gcd(n) != 1 {
+            return invalid(format!("gcd({}^((N-1)/{}) - 1, N) is not 1", pf.base, pf.q));
+        }
+        match check_prime(&pf.q, &pf.evidence, depth + 1, work, used)? {
+            Status::Proven => {}
+            Status::AssumedBpsw => status = Status::AssumedBpsw,
+        }
+    }
+    if Integer::from(fp.f.square_ref()) < *n {
+        return invalid("the factored part F of N - 1 has F^2 < N".into());
+    }
+    Ok(status)
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::primality::{check, ProofError, Status, Used};
+    use classcert_format::{PocklingtonFactor, PrimalityEvidence};
+    use rug::Integer;
+
+    fn leaf(q: u64, e: u32, base: u64) -> PocklingtonFactor {
+        PocklingtonFactor {
+            q: Integer::from(q),
+            e,
+            base: Integer::from(base),
+            evidence: Box::new(PrimalityEvidence::Bpsw),
+        }
+    }
+
+    #[test]
+    fn small_proofs() {
+        // 97 - 1 = 2^5 · 3, and 5 is a primitive root mod 97 (common practice)
+        let ev = PrimalityEvidence::Pocklington {
+            factors: vec![leaf(2, 5, 5), leaf(3, 1, 5)],
+        };
+        let mut work = 100;
+        let mut used = Used::default();
+        assert_eq!(
+            check(&Integer::from(97), &ev, 0, &mut work, &mut used),
+            Ok(Status::Proven)
+        );
+        assert!(used.pocklington);
+        // 2^5 alone: 32^2 >= 97, enough
+        let ev = PrimalityEvidence::Pocklington {
+            factors: vec![leaf(2, 5, 5)],
+        };
+        assert!(check(&Integer::from(97), &ev, 0, &mut work, &mut used).is_ok());
+        // 3 alone: 9 < 97, not enough
+        let ev = PrimalityEvidence::Pocklington {
+            factors: vec![leaf(3, 1, 5)],
+        };
+        assert!(matches!(
+            check(&Integer::from(97), &ev, 0, &mut work, &mut used),
+            Err(ProofError::Invalid(_))
+        ));
+        // 91 = 7 · 13 is composite: 91 - 1 = 2 · 3^2 · 5, and no base works
+        for a in 2..90u64 {
+            let ev = PrimalityEvidence::Pocklington {
+                factors: vec![leaf(2, 1, a), leaf(3, 2, a), leaf(5, 1, a)],
+            };
+            assert!(check(&Integer::from(91), &ev, 0, &mut 1000, &mut used).is_err());
+        }
+    }
+}

@@ -1,0 +1,200 @@
+//! The verdict as JSON, in the vocabulary shared with `classcert show`
+//! (schema `classcert/1`; `docs/json.md`): integers of the mathematics
+//! are decimal strings, counts and bounds are JSON numbers.
+
+use super::text::not_proven;
+use super::{GeneratorView, Report};
+use crate::analytic::Method;
+use crate::pipeline::CertificateKind;
+use classcert_format::json::Json;
+use rug::Integer;
+
+/// The schema name of every JSON document classcert prints.
+pub const SCHEMA: &str = "classcert/1";
+
+fn num(x: &Integer) -> Json {
+    Json::str(x.to_string())
+}
+
+/// A generator: `{"order", "form": [a, b, c]}` or
+/// `{"order", "prime_ideals": [{"p", "b", "e"}, …]}`.
+pub fn generator(order: Option<&Integer>, g: &GeneratorView) -> Json {
+    let order = order.map(num).unwrap_or(Json::Null);
+    match g {
+        GeneratorView::Form(a, b, c) => Json::obj(vec![
+            ("order", order),
+            ("form", Json::Arr(vec![num(a), num(b), num(c)])),
+        ]),
+        GeneratorView::Ideals(f) => Json::obj(vec![
+            ("order", order),
+            (
+                "prime_ideals",
+                Json::Arr(
+                    f.iter()
+                        .map(|(p, b, e)| {
+                            Json::obj(vec![
+                                ("p", Json::str(p.to_string())),
+                                ("b", Json::str(b.to_string())),
+                                ("e", num(e)),
+                            ])
+                        })
+                        .collect(),
+                ),
+            ),
+        ]),
+    }
+}
+
+/// `{"method": "euler-product", "x": X}` or `{"method": "series", "terms": N}`.
+pub fn analytic(m: Method) -> Json {
+    match m {
+        Method::EulerProduct { x } => Json::obj(vec![
+            ("method", Json::str("euler-product")),
+            ("x", Json::Num(x.to_string())),
+        ]),
+        Method::Series { terms } => Json::obj(vec![
+            ("method", Json::str("series")),
+            ("terms", Json::Num(terms.to_string())),
+        ]),
+    }
+}
+
+/// The kind of certificate, as named in JSON.
+pub fn kind_name(k: CertificateKind) -> &'static str {
+    match k {
+        CertificateKind::Relations => "relations",
+        CertificateKind::OrderWitness => "order-witness",
+    }
+}
+
+/// An error before any certificate could be read (exit code 2), as JSON.
+pub fn error(code: &str, detail: &str) -> Json {
+    Json::obj(vec![
+        ("schema", Json::str(SCHEMA)),
+        ("kind", Json::str("error")),
+        ("reason", Json::str(code)),
+        ("detail", Json::str(detail)),
+    ])
+}
+
+impl Report {
+    pub fn to_json(&self) -> Json {
+        let opt = |x: &Option<Integer>| x.as_ref().map(num).unwrap_or(Json::Null);
+        let id = self
+            .summary
+            .certificate_sha256
+            .clone()
+            .map(Json::Str)
+            .unwrap_or(Json::Null);
+        let mut e: Vec<(&str, Json)> = vec![
+            ("schema", Json::str(SCHEMA)),
+            ("kind", Json::str("verdict")),
+        ];
+        let v = match &self.outcome {
+            Ok(v) => v,
+            Err(r) => {
+                e.push(("verdict", Json::str("rejected")));
+                e.push(("reason", Json::str(r.reason.code())));
+                e.push(("detail", Json::str(r.detail.clone())));
+                e.push(("certificate_sha256", id));
+                e.push((
+                    "certificate_kind",
+                    self.summary
+                        .kind
+                        .map(|k| Json::str(kind_name(k)))
+                        .unwrap_or(Json::Null),
+                ));
+                e.push(("discriminant", opt(&self.summary.discriminant)));
+                e.push(("maximal", Json::Bool(false)));
+                e.push(("class_number", Json::Null));
+                e.push(("invariants", Json::Null));
+                e.push(("assumptions", Json::Arr(vec![])));
+                e.push((
+                    "claimed_class_number",
+                    opt(&self.summary.claimed_class_number),
+                ));
+                e.push((
+                    "claimed_invariants",
+                    self.summary
+                        .claimed_invariants
+                        .as_ref()
+                        .map(|v| Json::Arr(v.iter().map(num).collect()))
+                        .unwrap_or(Json::Null),
+                ));
+                return Json::obj(e);
+            }
+        };
+        e.push(("verdict", Json::str("verified")));
+        e.push(("reason", Json::Null));
+        e.push(("detail", Json::Null));
+        e.push(("certificate_sha256", id));
+        e.push(("certificate_kind", Json::str(kind_name(v.kind()))));
+        e.push(("discriminant", opt(&self.summary.discriminant)));
+        e.push(("maximal", Json::Bool(v.maximal())));
+        if v.maximal() {
+            e.push(("field_discriminant", opt(&self.summary.discriminant)));
+            e.push(("conductor", Json::str("1")));
+        }
+        e.push(("class_number", num(v.class_number())));
+        e.push((
+            "invariants",
+            Json::Arr(v.invariants().iter().map(num).collect()),
+        ));
+        e.push((
+            "generators",
+            Json::Arr(
+                v.generators()
+                    .iter()
+                    .enumerate()
+                    .map(|(i, g)| generator(v.invariants().get(i), g))
+                    .collect(),
+            ),
+        ));
+        if let Some(u) = v.unit() {
+            e.push((
+                "unit",
+                Json::obj(vec![
+                    ("norm", Json::str(u.norm.to_string())),
+                    ("regulator", Json::str(u.regulator_text())),
+                    ("compact_steps", Json::Num(u.compact_length.to_string())),
+                ]),
+            ));
+        }
+        e.push((
+            "assumptions",
+            Json::Arr(
+                v.assumptions()
+                    .iter()
+                    .map(|a| Json::str(a.name()))
+                    .collect(),
+            ),
+        ));
+        e.push(("analytic", analytic(v.method())));
+        if let Some(b) = v.generation_bound() {
+            e.push(("generation_bound", Json::Num(b.to_string())));
+        }
+        e.push(("w", Json::Num(v.w().to_string())));
+        e.push((
+            "theorems",
+            Json::Arr(
+                v.theorems()
+                    .iter()
+                    .map(|t| {
+                        Json::obj(vec![
+                            ("id", Json::str(t.id)),
+                            ("hypothesis", Json::str(t.hypothesis.name())),
+                            ("statement", Json::str(t.statement)),
+                            ("citation", Json::str(t.citation)),
+                            ("note", Json::str(t.note)),
+                        ])
+                    })
+                    .collect(),
+            ),
+        ));
+        e.push((
+            "not_proven",
+            Json::Arr(not_proven(v).into_iter().map(Json::Str).collect()),
+        ));
+        Json::obj(e)
+    }
+}
