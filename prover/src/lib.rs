@@ -12,7 +12,6 @@
 // Matrix code here reads more plainly with explicit indices.
 #![allow(clippy::needless_range_loop)]
 
-pub mod compact;
 pub mod factor;
 pub mod fb;
 pub mod linalg;
@@ -21,7 +20,6 @@ pub mod prove;
 pub mod real;
 pub mod rng;
 pub mod search;
-pub mod sge;
 pub mod show;
 pub mod units;
 pub mod witness;

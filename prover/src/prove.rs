@@ -8,7 +8,7 @@ use crate::fb::FactorBase;
 use crate::linalg::{det_crt, smith, Hnf, RankModP, Smith as SmithForm};
 use crate::progress::Progress;
 use crate::search::{Searcher, Sparse};
-use crate::sge::Sge;
+use crate::linalg::sge::Sge;
 use classcert_format::*;
 use classcert_verifier::math::euler;
 use classcert_verifier::math::log_h_enclosure;
