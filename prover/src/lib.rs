@@ -1,30 +1,38 @@
 //! # classcert-prover
 //!
-//! Computes the class group of an imaginary quadratic order and writes a
-//! certificate that `classcert-verify` re-checks on its own.
+//! Computes the class group of a quadratic order (and the units when
+//! `D > 0`) and writes a certificate that `classcert-verify` re-checks on
+//! its own.
 //!
 //! ```text
-//! D ─▶ maximality (factor |D|) ─▶ factor base ─▶ Euler product (X)
-//!   ─▶ eliminations ─▶ relations ─▶ Hermite form ─▶ Smith form
+//! D ─▶ setup: maximality (factor |D|), factor base, Euler product (X)
+//!   ─▶ relations (a RelationSource) ─▶ linalg: eliminations, Hermite
+//!      or echelon form, Smith form ─▶ units (D > 0)
 //!   ─▶ certificate body ─▶ self-check with the verifier ─▶ file
 //! ```
+//!
+//! Layout, along the mathematics: [`setup`] (what every driver shares),
+//! [`drivers`] (one per kind of certificate), [`relations`] (the
+//! `RelationSource` trait, the `RelationBatch` type and today's two
+//! searches), [`linalg`], [`units`], [`factor`], [`fb`] (the factor base)
+//! and [`rng`].
 
 // Matrix code here reads more plainly with explicit indices.
 #![allow(clippy::needless_range_loop)]
 
+pub mod drivers;
 pub mod factor;
 pub mod fb;
 pub mod linalg;
 pub mod progress;
-pub mod prove;
-pub mod real;
+pub mod relations;
 pub mod rng;
-pub mod search;
+pub mod setup;
 pub mod show;
 pub mod units;
-pub mod witness;
 
-pub use prove::{prove, Options, ProveError};
+pub use drivers::{prove, witness};
+pub use setup::{Options, ProveError};
 
 /// Proves `D`, encodes the certificate file, and runs the verifier on the
 /// bytes (decoding included) before handing them out.

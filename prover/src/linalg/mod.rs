@@ -19,7 +19,7 @@ pub mod smith;
 
 pub use hnf::Hnf;
 pub use modp::{det_crt, RankModP};
-pub use smith::{smith, Smith};
+pub use smith::{cyclic_generators, smith, Smith};
 
 use rug::Integer;
 

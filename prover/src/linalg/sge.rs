@@ -6,7 +6,7 @@
 //! certificate, in reverse order of elimination (each one's support is
 //! then already accounted for when the verifier reaches it).
 
-use crate::search::Sparse;
+use crate::relations::Sparse;
 use std::collections::BTreeSet;
 
 /// Rows heavier than this are not used as pivots (they would fill in).

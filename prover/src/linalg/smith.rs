@@ -158,6 +158,34 @@ pub fn smith(a: &Matrix) -> Option<Smith> {
     })
 }
 
+
+/// Generators of the cyclic factors `Z/d_i` with `d_i > 1`: rows of `V^{-1}`
+/// reduced modulo the upper triangular `H`. Returns `(d_i, exponents)`.
+pub fn cyclic_generators(
+    sm: &Smith,
+    h_g: &[Vec<Integer>],
+) -> Vec<(Integer, Vec<Integer>)> {
+    let r = h_g.len();
+    let mut out = Vec::new();
+    for (i, di) in sm.diag.iter().enumerate() {
+        if *di <= 1 {
+            continue;
+        }
+        let mut xv = sm.v_inv[i].clone();
+        for t in 0..r {
+            let q = Integer::from((&xv[t]).div_floor(&h_g[t][t]));
+            if !q.is_zero() {
+                for c in t..r {
+                    let s = Integer::from(&q * &h_g[t][c]);
+                    xv[c] -= s;
+                }
+            }
+        }
+        out.push((di.clone(), xv));
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

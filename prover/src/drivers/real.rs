@@ -1,15 +1,7 @@
-//! The prover for real quadratic orders (`D > 0`).
+//! The driver for real quadratic orders (`D > 0`).
 //!
-//! Relations come from elements, not from reduced forms (reduced indefinite
-//! forms are not unique in their class). For an ideal
-//! `a = [A, (B + sqrt D)/2]` (a product of factor-base primes, `B² ≡ D mod
-//! 4A`) the elements `α = A x + (B + sqrt D)/2` have norm `A · Q(x)` with
-//! `Q(x) = A x² + B x + (B² - D)/(4A)`, and `|Q(x)|` is about `sqrt D · |t|`
-//! at distance `t` from a root of `Q`. A smooth `Q(x)` gives a relation
-//! `(α) = ∏ P^{±e}` whose witness is `α` itself (the polynomials of the
-//! multiple-polynomial quadratic sieve, as applied to class groups by
-//! M. J. Jacobson, Jr., Math. Comp. 68 (1999); trial division stands in
-//! for the sieve for now).
+//! Relations come from a [`RelationSource`] of elements of small norm
+//! ([`crate::relations::elements`]), each witnessed by its element.
 //!
 //! Linear algebra is exact and keeps track of how every row combines the
 //! raw relations, because the verifier checks each derived relation as such
@@ -18,24 +10,39 @@
 //! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
 //! of their logarithms ([`crate::units::unit_gcd`]).
 
-use crate::units::compact;
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
-use crate::linalg::smith;
-use crate::prove::{cyclic_generators, essential_count, setup, Options, ProveError};
-use crate::rng::Rng;
-use crate::units::{self, Factor};
+use crate::linalg::{cyclic_generators, smith};
+use super::{eliminations, RELATION_ATTEMPTS};
+use crate::progress::Progress;
+use crate::relations::elements::ElementSearch;
+use crate::relations::{FoundRelation, RelationSource, Sparse};
+use crate::setup::{essential_count, setup, Options, ProveError};
+use crate::units::{self, compact, Factor};
 use classcert_format::*;
 use classcert_verifier::math::Interval;
-use rug::ops::{DivRounding, Pow, RemRounding};
+use rug::ops::Pow;
 use rug::Integer;
-use std::collections::{BTreeMap, BTreeSet};
+use std::collections::BTreeMap;
 
 /// A raw relation: exponents over the factor base (`+e` for `P^e`, `-e`
 /// for `conj(P)^e`) and the element `(x + y sqrt D)/2`.
 struct Raw {
-    entries: BTreeMap<usize, i64>,
+    entries: Sparse,
     x: Integer,
     y: Integer,
+}
+
+impl Raw {
+    fn from_found(rel: FoundRelation) -> Result<Raw, ProveError> {
+        let element = rel.element.ok_or_else(|| {
+            ProveError::SearchFailed("a relation for D > 0 came without its element".into())
+        })?;
+        Ok(Raw {
+            entries: rel.exponents,
+            x: element.x,
+            y: element.y,
+        })
+    }
 }
 
 /// Kernel vectors offered to the unit search per round.
@@ -138,172 +145,6 @@ impl Algebra {
     }
 }
 
-/// The search for elements of small norm.
-struct Sieve<'a> {
-    d: &'a Integer,
-    primes: &'a [u64],
-    bs: &'a [u64],
-    isqrt_d: Integer,
-    seen: BTreeSet<Integer>,
-    rng: Rng,
-    candidates: u64,
-}
-
-impl<'a> Sieve<'a> {
-    /// `(A, B, C)` for the ideal `∏ P_i` over distinct odd indices `idx`.
-    fn poly(&self, idx: &[usize]) -> (Integer, Integer, Integer) {
-        let mut a = Integer::from(1);
-        let mut b = Integer::new();
-        for &i in idx {
-            let p = Integer::from(self.primes[i]);
-            // b ≡ b_i (mod p), b unchanged modulo the primes so far
-            let inv = a.clone().invert(&p).unwrap_or_default();
-            let t = Integer::from(self.bs[i]) - &b;
-            let k = (t * inv).rem_euc(&p);
-            b += k * &a;
-            a *= &p;
-        }
-        if b.is_odd() != self.d.is_odd() {
-            b += &a;
-        }
-        let c = (Integer::from(b.square_ref()) - self.d) / Integer::from(&a << 2u32);
-        (a, b, c)
-    }
-
-    /// The element `A x + (B + sqrt D)/2` if `Q(x)` factors over the
-    /// factor-base primes below index `limit` (and not by `forbid`).
-    fn element(
-        &mut self,
-        poly: &(Integer, Integer, Integer),
-        idx: &[usize],
-        x: &Integer,
-        limit: usize,
-        forbid: Option<usize>,
-    ) -> Option<Raw> {
-        self.candidates += 1;
-        let (a, b, c) = poly;
-        let q = Integer::from(a * x) * x + Integer::from(b * x) + c;
-        if q.is_zero() {
-            return None;
-        }
-        let big_x = Integer::from(a * x) * 2u32 + b;
-        let mut rest = q.clone().abs();
-        let mut val: BTreeMap<usize, u32> = BTreeMap::new();
-        for &i in idx {
-            *val.entry(i).or_default() += 1;
-        }
-        for (i, &p) in self.primes.iter().enumerate().take(limit) {
-            if rest == 1 || Integer::from(p) * p > rest {
-                // what is left is 1 or a prime
-                break;
-            }
-            let mut e = 0u32;
-            while rest.is_divisible_u(p as u32) {
-                rest /= p as u32;
-                e += 1;
-            }
-            if e > 0 {
-                if forbid == Some(i) {
-                    return None;
-                }
-                *val.entry(i).or_default() += e;
-            }
-        }
-        if rest != 1 {
-            // the last prime must lie below the limit too
-            let r = rest.to_u64()?;
-            let i = self.primes[..limit].binary_search(&r).ok()?;
-            if forbid == Some(i) {
-                return None;
-            }
-            *val.entry(i).or_default() += 1;
-        }
-        if !self.seen.insert(big_x.clone()) {
-            return None;
-        }
-        let mut entries = BTreeMap::new();
-        for (i, e) in val {
-            let p = self.primes[i];
-            let sign = if self.d.is_divisible_u(p as u32) {
-                1
-            } else {
-                // α ∈ P iff p | (X - b)/2
-                let t = Integer::from(&big_x - self.bs[i]) >> 1u32;
-                if t.is_divisible_u(p as u32) {
-                    1
-                } else {
-                    -1
-                }
-            };
-            entries.insert(i, sign * i64::from(e));
-        }
-        Some(Raw {
-            entries,
-            x: big_x,
-            y: Integer::from(1),
-        })
-    }
-
-    /// Integer points next to the two roots of `Q`, nearest first.
-    fn roots(&self, poly: &(Integer, Integer, Integer)) -> [Integer; 2] {
-        let (a, b, _) = poly;
-        let two_a = Integer::from(a << 1u32);
-        let r1 = Integer::from(&self.isqrt_d - b).div_floor(&two_a);
-        let r2 = (-Integer::from(&self.isqrt_d + b)).div_floor(&two_a);
-        [r1, r2]
-    }
-
-    /// An elimination relation for `P_i`: coefficient +1 at `i`, support
-    /// below `i`.
-    fn elimination(&mut self, i: usize, max_t: i64) -> Option<Raw> {
-        let poly = self.poly(&[i]);
-        let roots = self.roots(&poly);
-        for t in 0..max_t {
-            for s in [t, -t - 1] {
-                for r in &roots {
-                    let x = Integer::from(r + s);
-                    if let Some(raw) = self.element(&poly, &[i], &x, i, Some(i)) {
-                        return Some(raw);
-                    }
-                }
-            }
-        }
-        None
-    }
-
-    /// A relation over the whole factor base from a random polynomial built
-    /// on the essential primes `0..k`.
-    fn relation(&mut self, k: usize, n: usize, max_tries: u64) -> Option<Raw> {
-        let odd: Vec<usize> = (0..k).filter(|&i| self.primes[i] != 2).collect();
-        for _ in 0..max_tries {
-            let mut idx = Vec::new();
-            let want = if odd.is_empty() {
-                0
-            } else {
-                self.rng.below(3) as usize
-            };
-            while idx.len() < want.min(odd.len()) {
-                let i = odd[self.rng.below(odd.len() as u64) as usize];
-                if !idx.contains(&i) {
-                    idx.push(i);
-                }
-            }
-            idx.sort_unstable();
-            let poly = self.poly(&idx);
-            let roots = self.roots(&poly);
-            let r = &roots[self.rng.below(2) as usize];
-            // the window widens as the nearby elements are used up
-            let w = 64 + self.candidates / 16;
-            let t = self.rng.below(w) as i64 - (w / 2) as i64;
-            let x = Integer::from(r + t);
-            if let Some(raw) = self.element(&poly, &idx, &x, n, None) {
-                return Some(raw);
-            }
-        }
-        None
-    }
-}
-
 fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
     v.iter().map(|(i, e)| (*i as u32, e.clone())).collect()
 }
@@ -311,34 +152,17 @@ fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
 pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let mut setup = setup(d, opts)?;
     let mut progress =
-        std::mem::replace(&mut setup.progress, crate::progress::Progress::new(false));
+        std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();
     let k = essential_count(fb, d);
     progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
-    let mut sieve = Sieve {
-        d,
-        primes: &fb.primes,
-        bs: &fb.bs,
-        isqrt_d: d.clone().sqrt(),
-        seen: BTreeSet::new(),
-        rng: Rng::new(opts.seed),
-        candidates: 0,
-    };
+    let mut source = ElementSearch::new(d, fb, k, opts.seed);
     let mut raws: Vec<Raw> = Vec::new();
     let mut elim_of: Vec<Option<usize>> = vec![None; n];
-    for i in k..n {
-        let raw = sieve.elimination(i, 2_000_000).ok_or_else(|| {
-            ProveError::SearchFailed(format!(
-                "no elimination relation found for p = {}",
-                fb.primes[i]
-            ))
-        })?;
+    for (i, rel) in (k..n).zip(eliminations(&mut source, fb, k, &mut progress)?) {
         elim_of[i] = Some(raws.len());
-        raws.push(raw);
-        if (i - k).is_multiple_of(500) {
-            progress.say(&format!("eliminations {}/{}", i - k, n - k));
-        }
+        raws.push(Raw::from_found(rel)?);
     }
     // ramified primes: (p) = P^2, witness α = p
     for i in 0..k {
@@ -405,13 +229,14 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let mut log_r = f64::INFINITY;
     let mut batch = k.max(8);
     let alg = loop {
-        for _ in 0..batch {
-            let Some(raw) = sieve.relation(k, n, 5_000_000) else {
-                return Err(ProveError::SearchFailed(
-                    "relation search exhausted its attempts".into(),
-                ));
-            };
-            raws.push(raw);
+        let found = source.relations(batch, RELATION_ATTEMPTS).relations;
+        if found.len() < batch {
+            return Err(ProveError::SearchFailed(
+                "relation search exhausted its attempts".into(),
+            ));
+        }
+        for rel in found {
+            raws.push(Raw::from_found(rel)?);
             rows.push(substitute(raws.len() - 1, &raws));
         }
         batch = (k / 4).max(4);
@@ -467,7 +292,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         progress.say(&format!(
             "{} relations ({} candidates): h* = {h_star}, R* = {log_r:.6}, {} columns left to the echelon block",
             raws.len(),
-            sieve.candidates,
+            source.candidates(),
             alg.dense_cols.len()
         ));
         if confirmed && dense_ok {

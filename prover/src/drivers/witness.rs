@@ -9,10 +9,11 @@
 
 use crate::factor;
 use crate::fb::FactorBase;
-use crate::prove::{
+use crate::setup::{
     analytic, choose_x, collect_factors, euler_trace, maximality, producer, validate, Options,
     ProveError,
 };
+use crate::progress::Progress;
 use crate::rng::Rng;
 use classcert_format::*;
 use classcert_verifier::math::Form;
@@ -81,7 +82,7 @@ pub fn prove_witness(
             "the claimed class number {h} is not positive"
         )));
     }
-    let mut progress = crate::progress::Progress::new(opts.progress);
+    let mut progress = Progress::new(opts.progress);
     let abs_d = Integer::from(d.abs_ref());
     // H and its primes
     let fac: Vec<(Integer, u32)> = match h_factors {
