@@ -10,9 +10,9 @@
 //! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
 //! of their logarithms ([`crate::units::unit_gcd`]).
 
+use super::{eliminations, RELATION_ATTEMPTS};
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
 use crate::linalg::{cyclic_generators, smith};
-use super::{eliminations, RELATION_ATTEMPTS};
 use crate::progress::Progress;
 use crate::relations::elements::ElementSearch;
 use crate::relations::{FoundRelation, RelationSource, Sparse};
@@ -50,7 +50,6 @@ const KERNEL_PER_ROUND: usize = 32;
 
 /// Columns beyond the generators that may be left to the echelon block.
 const DENSE_SLACK: usize = 4;
-
 
 /// The essential block solved: unit pivots first, chosen by least
 /// Markowitz cost so that combinations stay short (structured Gaussian
@@ -151,8 +150,7 @@ fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
 
 pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let mut setup = setup(d, opts)?;
-    let mut progress =
-        std::mem::replace(&mut setup.progress, Progress::new(false));
+    let mut progress = std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();
     let k = essential_count(fb, d);

@@ -9,12 +9,12 @@
 
 use crate::factor;
 use crate::fb::FactorBase;
+use crate::progress::Progress;
+use crate::rng::Rng;
 use crate::setup::{
     analytic, choose_x, collect_factors, euler_trace, maximality, producer, validate, Options,
     ProveError,
 };
-use crate::progress::Progress;
-use crate::rng::Rng;
 use classcert_format::*;
 use classcert_verifier::math::Form;
 use classcert_verifier::math::Interval;

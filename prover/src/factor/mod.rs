@@ -338,5 +338,4 @@ mod tests {
         let smooth = Integer::from(2 * 3 * 5 * 7 * 11 * 99_991u64);
         assert!(factor(&smooth, 0).is_some());
     }
-
 }

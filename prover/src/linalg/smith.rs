@@ -158,13 +158,9 @@ pub fn smith(a: &Matrix) -> Option<Smith> {
     })
 }
 
-
 /// Generators of the cyclic factors `Z/d_i` with `d_i > 1`: rows of `V^{-1}`
 /// reduced modulo the upper triangular `H`. Returns `(d_i, exponents)`.
-pub fn cyclic_generators(
-    sm: &Smith,
-    h_g: &[Vec<Integer>],
-) -> Vec<(Integer, Vec<Integer>)> {
+pub fn cyclic_generators(sm: &Smith, h_g: &[Vec<Integer>]) -> Vec<(Integer, Vec<Integer>)> {
     let r = h_g.len();
     let mut out = Vec::new();
     for (i, di) in sm.diag.iter().enumerate() {
@@ -223,5 +219,4 @@ mod tests {
             }
         }
     }
-
 }

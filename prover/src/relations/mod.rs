@@ -27,8 +27,8 @@
 pub mod elements;
 pub mod forms;
 
-use classcert_format::cbor::{self, DecodeError, MapReader, WalkLimits};
 use ciborium::Value;
+use classcert_format::cbor::{self, DecodeError, MapReader, WalkLimits};
 use rug::Integer;
 use std::collections::BTreeMap;
 use std::ops::Range;
@@ -169,7 +169,10 @@ impl RelationBatch {
                     .collect();
                 let mut fields = vec![("exponents", Value::Array(exps))];
                 if let Some(el) = &r.element {
-                    fields.push(("element", Value::Array(vec![cbor::int(&el.x), cbor::int(&el.y)])));
+                    fields.push((
+                        "element",
+                        Value::Array(vec![cbor::int(&el.x), cbor::int(&el.y)]),
+                    ));
                 }
                 cbor::map(fields)
             })
@@ -198,7 +201,9 @@ impl RelationBatch {
         let mut m = MapReader::new(&v, "batch")?;
         let version = cbor::get_u64(m.req("version")?, "batch.version")?;
         if version != BATCH_FORMAT_VERSION {
-            return Err(bad(&format!("version {version} is not {BATCH_FORMAT_VERSION}")));
+            return Err(bad(&format!(
+                "version {version} is not {BATCH_FORMAT_VERSION}"
+            )));
         }
         let discriminant = cbor::get_int(m.req("discriminant")?, "batch.discriminant")?;
         let seed = cbor::get_u64(m.req("seed")?, "batch.seed")?;
@@ -217,7 +222,9 @@ impl RelationBatch {
         let items = cbor::get_array(m.req("relations")?, "batch.relations")?;
         m.finish()?;
         if end.checked_sub(first) != Some(items.len() as u64) {
-            return Err(bad("the index range does not match the number of relations"));
+            return Err(bad(
+                "the index range does not match the number of relations",
+            ));
         }
         let mut relations = Vec::with_capacity(items.len());
         for item in items {
@@ -269,5 +276,210 @@ impl RelationBatch {
             return Err(DecodeError::NonCanonical("relation batch"));
         }
         Ok(batch)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::elements::ElementSearch;
+    use super::forms::FormSearch;
+    use super::*;
+    use crate::fb::FactorBase;
+    use classcert_verifier::math::{primes_up_to, Form};
+    use rug::ops::Pow;
+
+    /// Prime ideals of norm below 200, the first 8 essential.
+    fn small_fb(d: i64) -> (Integer, FactorBase) {
+        let d = Integer::from(d);
+        let fb = FactorBase::new(&d, &primes_up_to(200), 200, &[]);
+        (d, fb)
+    }
+
+    fn sparse(pairs: &[(usize, i64)]) -> Sparse {
+        pairs.iter().copied().collect()
+    }
+
+    #[test]
+    fn batches_round_trip_through_cbor() {
+        let (d, fb) = small_fb(-3299);
+        let mut forms = FormSearch::new(&d, &fb, 8, 1);
+        let (e, r) = (
+            forms.eliminations(8..12, 2_000_000),
+            forms.relations(6, 5_000_000),
+        );
+        let (d2, fb2) = small_fb(316);
+        let mut elements = ElementSearch::new(&d2, &fb2, 8, 1);
+        let (e2, r2) = (
+            elements.eliminations(8..12, 2_000_000),
+            elements.relations(6, 5_000_000),
+        );
+        for batch in [&e, &r, &e2, &r2] {
+            let bytes = batch.to_cbor().unwrap();
+            let back = RelationBatch::from_cbor(&bytes).unwrap();
+            assert_eq!(&back, batch);
+            assert_eq!(back.to_cbor().unwrap(), bytes);
+        }
+        assert_eq!(
+            (e.header.kind, e.header.first, e.header.end),
+            (BatchKind::Eliminations, 8, 12)
+        );
+        assert_eq!(
+            (r.header.kind, r.header.first, r.header.end),
+            (BatchKind::Relations, 0, 6)
+        );
+        assert_eq!(r.header.factor_base, fb.digest());
+        assert_ne!(fb.digest(), fb2.digest());
+        assert_eq!((r.header.seed, r.header.essential), (1, 8));
+        assert_eq!(r2.header.discriminant, 316);
+        assert!(r2.relations.iter().all(|x| x.element.is_some()));
+        // the next batch continues the index range
+        let more = forms.relations(2, 5_000_000);
+        assert_eq!((more.header.first, more.header.end), (6, 8));
+    }
+
+    #[test]
+    fn batches_that_do_not_describe_themselves_are_refused() {
+        let (d, fb) = small_fb(-3299);
+        let mut batch = FormSearch::new(&d, &fb, 8, 1).relations(3, 5_000_000);
+        batch.header.end = 4;
+        let bytes = batch.to_cbor().unwrap();
+        assert!(
+            RelationBatch::from_cbor(&bytes).is_err(),
+            "range longer than the relations"
+        );
+        batch.header.end = 3;
+        batch.header.version = 2;
+        assert!(
+            RelationBatch::from_cbor(&batch.to_cbor().unwrap()).is_err(),
+            "unknown version"
+        );
+        batch.header.version = BATCH_FORMAT_VERSION;
+        let mut bytes = batch.to_cbor().unwrap();
+        bytes.push(0);
+        assert!(RelationBatch::from_cbor(&bytes).is_err(), "trailing byte");
+    }
+
+    /// The first relations of the form search for D = -3299, seed 1, over
+    /// the prime ideals below 200 with 8 essential: regression values
+    /// printed by `Searcher::elimination` / `Searcher::relation` of
+    /// `prover/src/search.rs` at commit 754551b, before the trait existed
+    /// (not mathematical facts: `form_relations_hold` checks those).
+    #[test]
+    fn form_search_gives_the_relations_it_gave_before() {
+        let (d, fb) = small_fb(-3299);
+        let mut s = FormSearch::new(&d, &fb, 8, 1);
+        let e = s.eliminations(8..12, 2_000_000);
+        let r = s.relations(6, 5_000_000);
+        let want_e = [
+            sparse(&[(0, 2), (1, -2), (2, -1), (4, -1), (6, -1), (7, -2), (8, 1)]),
+            sparse(&[(0, -1), (2, 1), (5, -1), (7, 1), (9, 1)]),
+            sparse(&[(1, -2), (2, 3), (3, 1), (5, 1), (6, 2), (7, 1), (10, 1)]),
+            sparse(&[(0, -3), (3, 1), (4, 1), (5, 3), (11, 1)]),
+        ];
+        let want_r = [
+            sparse(&[(0, 1), (1, 1), (2, -1), (3, -1), (4, 3), (6, 1)]),
+            sparse(&[(1, 1), (2, -3), (6, -1), (7, -1)]),
+            sparse(&[(0, -2), (1, -1), (3, 3), (4, -1), (6, 1), (7, 1)]),
+            sparse(&[(4, 1), (5, -1), (6, 1)]),
+            sparse(&[(0, -1), (1, 2), (2, 1), (3, -1), (4, 2), (6, -1), (7, -1)]),
+            sparse(&[(4, 1), (5, -1), (6, 1)]),
+        ];
+        let got = |b: &RelationBatch| -> Vec<Sparse> {
+            b.relations.iter().map(|x| x.exponents.clone()).collect()
+        };
+        assert_eq!(got(&e), want_e);
+        assert_eq!(got(&r), want_r);
+        assert_eq!(s.candidates(), 10);
+    }
+
+    /// As above for the element search, D = 316, seed 1: regression values
+    /// from `Sieve::elimination` / `Sieve::relation` of
+    /// `prover/src/real.rs` at commit 754551b.
+    #[test]
+    fn element_search_gives_the_relations_it_gave_before() {
+        let (d, fb) = small_fb(316);
+        assert_eq!(fb.len(), 21);
+        let mut s = ElementSearch::new(&d, &fb, 8, 1);
+        let e = s.eliminations(8..12, 2_000_000);
+        let r = s.relations(6, 5_000_000);
+        let want_e: [(Sparse, i64); 4] = [
+            (sparse(&[(0, 1), (1, 1), (2, -1), (8, 1)]), -94),
+            (sparse(&[(1, -2), (2, 1), (9, 1)]), -116),
+            (sparse(&[(10, 1)]), 0),
+            (sparse(&[(2, 2), (11, 1)]), -96),
+        ];
+        let want_r: [(Sparse, i64); 6] = [
+            (sparse(&[(0, 1), (1, 2), (2, 2)]), -46),
+            (sparse(&[(1, 1), (2, 2), (16, 1)]), -196),
+            (sparse(&[(1, -1), (2, 1), (3, 1), (9, -1)]), -176),
+            (sparse(&[(0, 1), (1, 3), (2, 1), (3, 1), (4, 1)]), 314),
+            (sparse(&[(0, 1), (1, 2), (3, 1), (8, -1)]), -190),
+            (sparse(&[(0, 1), (1, -1), (2, -1)]), -14),
+        ];
+        for (batch, want) in [(&e, &want_e[..]), (&r, &want_r[..])] {
+            assert_eq!(batch.relations.len(), want.len());
+            for (rel, (v, x)) in batch.relations.iter().zip(want) {
+                assert_eq!(&rel.exponents, v);
+                let el = rel.element.as_ref().unwrap();
+                assert_eq!(
+                    (el.x.clone(), el.y.clone()),
+                    (Integer::from(*x), Integer::from(1))
+                );
+            }
+        }
+        assert_eq!(s.candidates(), 13);
+    }
+
+    /// Every relation from the form search is one: the product of the
+    /// prime forms to its exponents is the principal class (the
+    /// definition of a relation, common practice).
+    #[test]
+    fn form_relations_hold() {
+        for dv in [-3299, -1000003, -4 * 1009] {
+            let (d, fb) = small_fb(dv);
+            let k = fb.len().min(10);
+            let mut s = FormSearch::new(&d, &fb, k, 5);
+            let mut rels = s.eliminations(k..fb.len(), 2_000_000).relations;
+            assert_eq!(rels.len(), fb.len() - k);
+            rels.extend(s.relations(20, 5_000_000).relations);
+            for rel in rels {
+                let exps: Vec<Integer> =
+                    rel.exponents.values().map(|&e| Integer::from(e)).collect();
+                let terms: Vec<(&Form, &Integer)> = rel
+                    .exponents
+                    .keys()
+                    .map(|&i| &fb.forms[i])
+                    .zip(exps.iter())
+                    .collect();
+                let f = Form::product(&terms, &d).unwrap();
+                assert_eq!(f, Form::principal(&d), "D = {dv}: {:?}", rel.exponents);
+            }
+        }
+    }
+
+    /// Every relation from the element search has an element whose norm
+    /// `(x² - D y²)/4` is `± ∏ p^|e|` (the norm of a principal ideal is the
+    /// absolute norm of its generator, common practice).
+    #[test]
+    fn element_relations_hold() {
+        for dv in [316, 999_997, 4 * 1019] {
+            let (d, fb) = small_fb(dv);
+            let k = fb.len().min(10);
+            let mut s = ElementSearch::new(&d, &fb, k, 5);
+            let mut rels = s.eliminations(k..fb.len(), 2_000_000).relations;
+            assert_eq!(rels.len(), fb.len() - k);
+            rels.extend(s.relations(20, 5_000_000).relations);
+            for rel in rels {
+                let el = rel.element.unwrap();
+                let dy2 = Integer::from(&d * Integer::from(el.y.square_ref()));
+                let norm: Integer = (Integer::from(el.x.square_ref()) - dy2) / 4u32;
+                let prod: Integer = rel
+                    .exponents
+                    .iter()
+                    .map(|(&i, &e)| Integer::from(fb.primes[i]).pow(e.unsigned_abs() as u32))
+                    .product();
+                assert_eq!(norm.abs(), prod, "D = {dv}: {:?}", rel.exponents);
+            }
+        }
     }
 }
