@@ -5,7 +5,7 @@
 //! when the lattice is the whole relation lattice.
 
 use super::{eliminations, RELATION_ATTEMPTS};
-use crate::linalg::sge::Sge;
+use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
 use crate::progress::Progress;
 use crate::relations::forms::FormSearch;
@@ -112,7 +112,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // relations here, so large primes stay sparse columns (no fill-in
     // from substituting them).
     rels.extend(elim.iter().flatten().cloned());
-    let (sge, active) = Sge::run(n, rels);
+    let Eliminated { sge, active, .. } = Sge::run(n, rels);
     let cols = sge.remaining();
     let kd = cols.len();
     progress.say(&format!(

@@ -12,6 +12,7 @@
 
 use super::{eliminations, RELATION_ATTEMPTS};
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
+use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, smith};
 use crate::progress::Progress;
 use crate::relations::elements::ElementSearch;
@@ -51,10 +52,9 @@ const KERNEL_PER_ROUND: usize = 32;
 /// Columns beyond the generators that may be left to the echelon block.
 const DENSE_SLACK: usize = 4;
 
-/// The essential block solved: unit pivots first, chosen by least
-/// Markowitz cost so that combinations stay short (structured Gaussian
-/// elimination: B. A. LaMacchia and A. M. Odlyzko, CRYPTO '90), then an
-/// echelon form on the columns left.
+/// The essential block solved: unit pivots first, by the structured
+/// elimination both drivers share ([`Sge`]; least Markowitz cost keeps the
+/// combinations short), then an echelon form on the columns left.
 struct Algebra {
     /// `(column, row)` in pivoting order; each row has `+1` at its column
     /// and its other entries on columns pivoted later or left dense.
@@ -66,60 +66,30 @@ struct Algebra {
 
 impl Algebra {
     fn solve(k: usize, rows: Vec<Row>) -> Algebra {
-        let mut active: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
-        let mut kernel = Vec::new();
-        active.retain(|r| {
-            if r.v.is_empty() {
-                kernel.push(r.combo.clone());
-                false
-            } else {
-                true
-            }
-        });
-        let mut done = vec![false; k];
-        let mut unit_pivots = Vec::new();
-        loop {
-            let mut count = vec![0usize; k];
-            for r in &active {
-                for c in r.v.keys() {
-                    count[*c] += 1;
-                }
-            }
-            let mut best: Option<(usize, usize, usize)> = None; // (cost, row, col)
-            for (ri, r) in active.iter().enumerate() {
-                let w = r.v.len();
-                for (c, e) in &r.v {
-                    if *e == 1 || *e == -1 {
-                        let cost = (w - 1) * (count[*c] - 1);
-                        if best.is_none_or(|(b, _, _)| cost < b) {
-                            best = Some((cost, ri, *c));
-                        }
-                    }
-                }
-            }
-            let Some((_, ri, c)) = best else { break };
-            let mut p = active.swap_remove(ri);
-            if p.v[&c] < 0 {
-                p = p.lin(&Integer::from(-1), &p, &Integer::new());
-            }
-            let mut next = Vec::with_capacity(active.len());
-            for mut r in active {
-                if let Some(e) = r.v.get(&c).cloned() {
-                    r.sub_mul(&e, &p);
-                }
-                if r.v.is_empty() {
-                    if !r.combo.is_empty() {
-                        kernel.push(r.combo);
-                    }
+        let rows: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
+        let Eliminated {
+            sge,
+            active,
+            vanished,
+        } = Sge::run(k, rows);
+        let dense_cols = sge.remaining();
+        // rows that vanish are units
+        let kernel = vanished
+            .into_iter()
+            .map(|r| r.combo)
+            .filter(|c| !c.is_empty())
+            .collect();
+        let unit_pivots = sge
+            .pivots
+            .into_iter()
+            .map(|(c, p)| {
+                if p.v[&c] < 0 {
+                    (c, p.lin(&Integer::from(-1), &p, &Integer::new()))
                 } else {
-                    next.push(r);
+                    (c, p)
                 }
-            }
-            active = next;
-            done[c] = true;
-            unit_pivots.push((c, p));
-        }
-        let dense_cols: Vec<usize> = (0..k).filter(|&c| !done[c]).collect();
+            })
+            .collect();
         let mut dense = Echelon::new(k);
         dense.kernel = kernel;
         dense.triangularise(&dense_cols, active);

@@ -3,6 +3,7 @@
 //! derived relation as such a combination (the verifier checks raw
 //! relations by their elements), and the rows that vanish give units.
 
+use super::sge::PivotRow;
 use rug::ops::DivRounding;
 use rug::Integer;
 use std::collections::BTreeMap;
@@ -49,6 +50,40 @@ impl Row {
         let m = Integer::from(-q);
         axpy(&mut self.v, &m, &other.v);
         axpy(&mut self.combo, &m, &other.combo);
+    }
+}
+
+impl PivotRow for Row {
+    fn columns(&self) -> impl Iterator<Item = usize> + '_ {
+        self.v.keys().copied()
+    }
+
+    fn unit_columns(&self) -> impl Iterator<Item = usize> + '_ {
+        self.v
+            .iter()
+            .filter(|(_, e)| **e == 1 || **e == -1)
+            .map(|(&c, _)| c)
+    }
+
+    fn weight(&self) -> usize {
+        self.v.len()
+    }
+
+    fn has(&self, c: usize) -> bool {
+        self.v.contains_key(&c)
+    }
+
+    fn is_zero(&self) -> bool {
+        self.v.is_empty()
+    }
+
+    /// Exact: never drops a row.
+    fn eliminate(&mut self, c: usize, pivot: &Self) -> bool {
+        if let (Some(e), Some(s)) = (self.v.get(&c), pivot.v.get(&c)) {
+            let q = Integer::from(e * s);
+            self.sub_mul(&q, pivot);
+        }
+        true
     }
 }
 
