@@ -32,18 +32,20 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     let ceiling = setup.ceiling.clone();
     let k = essential_count(fb, &abs_d);
     progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
-    let mut source = FormSearch::new(d, fb, k, opts.seed);
+    // today's search; anything that implements RelationSource can stand here
+    let mut search = FormSearch::new(d, fb, k, opts.seed);
+    let source: &mut dyn RelationSource = &mut search;
 
     // Eliminations for every ideal beyond the essential block.
     let mut elim: Vec<Option<Sparse>> = vec![None; n];
-    for (i, rel) in (k..n).zip(eliminations(&mut source, fb, k, &mut progress)?) {
+    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &mut progress)?) {
         elim[i] = Some(rel.exponents);
     }
 
     // Relations on the essential block, until the index is confirmed.
     let found = std::cell::Cell::new(0u64);
     let max_relations = 50 * (k as u64) + 2000;
-    let next_relation = |source: &mut FormSearch| -> Result<Sparse, ProveError> {
+    let next_relation = |source: &mut dyn RelationSource| -> Result<Sparse, ProveError> {
         if found.get() > max_relations {
             return Err(ProveError::SearchFailed(format!(
                 "{} relations did not determine the class group; try another --seed",
@@ -98,7 +100,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         rank.add(&dense(v, &all_cols));
     }
     while rank.rank < k {
-        let v = next_relation(&mut source)?;
+        let v = next_relation(source)?;
         if let Some(sv) = substitute(v.clone()) {
             rank.add(&dense(&sv, &all_cols));
         }
@@ -106,7 +108,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     }
     // some excess gives the elimination more unit pivots to choose from
     for _ in 0..k / 3 {
-        rels.push(next_relation(&mut source)?);
+        rels.push(next_relation(source)?);
     }
     // Unit pivots leave the dense block. The eliminations join the raw
     // relations here, so large primes stay sparse columns (no fill-in
@@ -133,7 +135,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         pending.push(dv);
     }
     while rank.rank < kd {
-        let Some(v) = sge.reduce(next_relation(&mut source)?) else {
+        let Some(v) = sge.reduce(next_relation(source)?) else {
             continue;
         };
         let dv = dense(&v, &cols);
@@ -196,7 +198,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         }
     };
     while !confirmed(&hnf) {
-        let Some(v) = sge.reduce(next_relation(&mut source)?) else {
+        let Some(v) = sge.reduce(next_relation(source)?) else {
             continue;
         };
         hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());

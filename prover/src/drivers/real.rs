@@ -125,10 +125,12 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let n = fb.len();
     let k = essential_count(fb, d);
     progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
-    let mut source = ElementSearch::new(d, fb, k, opts.seed);
+    // today's search; anything that implements RelationSource can stand here
+    let mut search = ElementSearch::new(d, fb, k, opts.seed);
+    let source: &mut dyn RelationSource = &mut search;
     let mut raws: Vec<Raw> = Vec::new();
     let mut elim_of: Vec<Option<usize>> = vec![None; n];
-    for (i, rel) in (k..n).zip(eliminations(&mut source, fb, k, &mut progress)?) {
+    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &mut progress)?) {
         elim_of[i] = Some(raws.len());
         raws.push(Raw::from_found(rel)?);
     }
