@@ -31,36 +31,8 @@ pub mod setup;
 pub mod show;
 pub mod units;
 
-pub use drivers::{prove, witness};
+pub use drivers::{encode_and_check, prove, prove_to_bytes, witness};
 pub use setup::{Options, ProveError};
-
-/// Proves `D`, encodes the certificate file, and runs the verifier on the
-/// bytes (decoding included) before handing them out.
-pub fn prove_to_bytes(d: &rug::Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
-    let body = prove(d, opts)?;
-    encode_and_check(&classcert_format::Document::Relations(Box::new(body)), opts)
-}
-
-/// Encodes a certificate and runs the verifier on the bytes (decoding
-/// included); a rejection is a prover bug and is reported as such.
-pub fn encode_and_check(
-    doc: &classcert_format::Document,
-    opts: &Options,
-) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
-    let (bytes, id) = classcert_format::encode_document(doc)
-        .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
-    let mut progress = progress::Progress::new(opts.progress);
-    progress.say("self-check: verifying the encoded certificate");
-    let report = classcert_verifier::verify_bytes(&bytes);
-    if let Err(rej) = report.outcome {
-        return Err(ProveError::SelfCheckFailed(format!(
-            "{}: {}",
-            rej.reason.code(),
-            rej.detail
-        )));
-    }
-    Ok((bytes, id))
-}
 
 /// Writes a certificate through a temporary file and a rename, so a crash
 /// or a full disk never leaves a half-written certificate under `path`.

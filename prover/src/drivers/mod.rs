@@ -14,7 +14,7 @@ use crate::fb::FactorBase;
 use crate::progress::Progress;
 use crate::relations::{FoundRelation, RelationSource};
 use crate::setup::{validate, Options, ProveError};
-use classcert_format::Body;
+use classcert_format::{Body, Document};
 use rug::Integer;
 
 /// Candidates tried for one elimination before the search gives up.
@@ -35,6 +35,31 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     } else {
         imaginary::prove_imaginary(d, opts)
     }
+}
+
+/// Proves `D`, encodes the certificate file, and runs the verifier on the
+/// bytes (decoding included) before handing them out.
+pub fn prove_to_bytes(d: &Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
+    let body = prove(d, opts)?;
+    encode_and_check(&Document::Relations(Box::new(body)), opts)
+}
+
+/// Encodes a certificate and runs the verifier on the bytes (decoding
+/// included); a rejection is a prover bug and is reported as such.
+pub fn encode_and_check(doc: &Document, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
+    let (bytes, id) = classcert_format::encode_document(doc)
+        .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
+    let mut progress = Progress::new(opts.progress);
+    progress.say("self-check: verifying the encoded certificate");
+    let report = classcert_verifier::verify_bytes(&bytes);
+    if let Err(rej) = report.outcome {
+        return Err(ProveError::SelfCheckFailed(format!(
+            "{}: {}",
+            rej.reason.code(),
+            rej.detail
+        )));
+    }
+    Ok((bytes, id))
 }
 
 /// An elimination for every factor-base ideal beyond the essential block
