@@ -471,7 +471,7 @@ mod tests {
             rels.extend(s.relations(20, 5_000_000).relations);
             for rel in rels {
                 let el = rel.element.unwrap();
-                let dy2 = Integer::from(&d * Integer::from(el.y.square_ref()));
+                let dy2: Integer = &d * Integer::from(el.y.square_ref());
                 let norm: Integer = (Integer::from(el.x.square_ref()) - dy2) / 4u32;
                 let prod: Integer = rel
                     .exponents
