@@ -12,7 +12,7 @@
 //! M. J. Jacobson, Jr., Math. Comp. 68 (1999); here each `Q(x)` is divided
 //! by the factor-base primes in turn, which a sieve over `x` would replace).
 
-use super::{BatchKind, Element, FoundRelation, Origin, RelationBatch, RelationSource};
+use super::{gather, Element, FoundRelation, Origin, RelationBatch, RelationSource};
 use crate::fb::FactorBase;
 use crate::rng::Rng;
 use rug::ops::{DivRounding, RemRounding};
@@ -32,7 +32,6 @@ pub struct ElementSearch<'a> {
     /// Essential ideals (indices `0..k`) make up the polynomials.
     k: usize,
     origin: Origin,
-    produced: usize,
 }
 
 impl<'a> ElementSearch<'a> {
@@ -54,8 +53,8 @@ impl<'a> ElementSearch<'a> {
                 source: "element-norms",
                 essential: k as u64,
                 factor_base: fb.digest(),
+                produced: 0,
             },
-            produced: 0,
         }
     }
 
@@ -219,37 +218,15 @@ impl<'a> ElementSearch<'a> {
 impl RelationSource for ElementSearch<'_> {
     fn eliminations(&mut self, ideals: Range<usize>, attempts: u64) -> RelationBatch {
         let first = ideals.start;
-        let mut relations = Vec::new();
-        for i in ideals {
-            let Some(rel) = self.elimination(i, i64::try_from(attempts).unwrap_or(i64::MAX)) else {
-                break;
-            };
-            relations.push(rel);
-        }
-        RelationBatch {
-            header: self
-                .origin
-                .header(BatchKind::Eliminations, first, relations.len()),
-            relations,
-        }
+        let found = gather(ideals, |i| {
+            self.elimination(i, i64::try_from(attempts).unwrap_or(i64::MAX))
+        });
+        self.origin.eliminations(first, found)
     }
 
     fn relations(&mut self, count: usize, attempts: u64) -> RelationBatch {
-        let first = self.produced;
-        let mut relations = Vec::new();
-        while relations.len() < count {
-            let Some(rel) = self.relation(attempts) else {
-                break;
-            };
-            relations.push(rel);
-        }
-        self.produced += relations.len();
-        RelationBatch {
-            header: self
-                .origin
-                .header(BatchKind::Relations, first, relations.len()),
-            relations,
-        }
+        let found = gather(0..count, |_| self.relation(attempts));
+        self.origin.relations(found)
     }
 
     fn candidates(&self) -> u64 {

@@ -5,7 +5,7 @@
 //! `a = ∏ p^e`, then `(a, b, c) ~ ∏ P_p^{±e}` with the sign `+` exactly
 //! when `b ≡ b_p (mod 2p)` (composition of united forms).
 
-use super::{BatchKind, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
+use super::{gather, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
 use crate::fb::FactorBase;
 use crate::rng::Rng;
 use classcert_verifier::math::Form;
@@ -24,8 +24,6 @@ pub struct FormSearch<'a> {
     pool: Vec<(Form, Vec<(usize, i64)>)>,
     attempts: u64,
     origin: Origin,
-    /// Relations handed out so far (the next relation's index).
-    produced: usize,
 }
 
 fn add(v: &mut Sparse, i: usize, e: i64) {
@@ -86,8 +84,8 @@ impl<'a> FormSearch<'a> {
                 source: "form-products",
                 essential: k as u64,
                 factor_base: fb.digest(),
+                produced: 0,
             },
-            produced: 0,
         }
     }
 
@@ -238,37 +236,13 @@ fn plain(exponents: Sparse) -> FoundRelation {
 impl RelationSource for FormSearch<'_> {
     fn eliminations(&mut self, ideals: Range<usize>, attempts: u64) -> RelationBatch {
         let first = ideals.start;
-        let mut relations = Vec::new();
-        for i in ideals {
-            let Some(rel) = self.elimination(i, attempts) else {
-                break;
-            };
-            relations.push(plain(rel));
-        }
-        RelationBatch {
-            header: self
-                .origin
-                .header(BatchKind::Eliminations, first, relations.len()),
-            relations,
-        }
+        let found = gather(ideals, |i| self.elimination(i, attempts).map(plain));
+        self.origin.eliminations(first, found)
     }
 
     fn relations(&mut self, count: usize, attempts: u64) -> RelationBatch {
-        let first = self.produced;
-        let mut relations = Vec::new();
-        while relations.len() < count {
-            let Some(rel) = self.relation(attempts) else {
-                break;
-            };
-            relations.push(plain(rel));
-        }
-        self.produced += relations.len();
-        RelationBatch {
-            header: self
-                .origin
-                .header(BatchKind::Relations, first, relations.len()),
-            relations,
-        }
+        let found = gather(0..count, |_| self.relation(attempts).map(plain));
+        self.origin.relations(found)
     }
 
     fn candidates(&self) -> u64 {

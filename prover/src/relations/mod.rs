@@ -115,7 +115,8 @@ pub trait RelationSource {
     fn candidates(&self) -> u64;
 }
 
-/// The fixed part of a source's headers: everything but kind and range.
+/// The fixed part of a source's headers (everything but kind and range),
+/// and the count of relations handed out so far.
 #[derive(Debug, Clone)]
 pub(crate) struct Origin {
     pub discriminant: Integer,
@@ -123,22 +124,48 @@ pub(crate) struct Origin {
     pub source: &'static str,
     pub essential: u64,
     pub factor_base: [u8; 32],
+    /// Relations handed out so far: the next relation's index.
+    pub produced: usize,
 }
 
 impl Origin {
-    pub fn header(&self, kind: BatchKind, first: usize, count: usize) -> BatchHeader {
-        BatchHeader {
-            version: BATCH_FORMAT_VERSION,
-            discriminant: self.discriminant.clone(),
-            seed: self.seed,
-            source: self.source.to_string(),
-            essential: self.essential,
-            factor_base: self.factor_base,
-            kind,
-            first: first as u64,
-            end: (first + count) as u64,
+    fn batch(&self, kind: BatchKind, first: usize, relations: Vec<FoundRelation>) -> RelationBatch {
+        RelationBatch {
+            header: BatchHeader {
+                version: BATCH_FORMAT_VERSION,
+                discriminant: self.discriminant.clone(),
+                seed: self.seed,
+                source: self.source.to_string(),
+                essential: self.essential,
+                factor_base: self.factor_base,
+                kind,
+                first: first as u64,
+                end: (first + relations.len()) as u64,
+            },
+            relations,
         }
     }
+
+    /// The eliminations found for the ideals from `first` on.
+    pub fn eliminations(&self, first: usize, found: Vec<FoundRelation>) -> RelationBatch {
+        self.batch(BatchKind::Eliminations, first, found)
+    }
+
+    /// The next relations, numbered on from those handed out before.
+    pub fn relations(&mut self, found: Vec<FoundRelation>) -> RelationBatch {
+        let first = self.produced;
+        self.produced += found.len();
+        self.batch(BatchKind::Relations, first, found)
+    }
+}
+
+/// What `find` gives for each of `indices` in turn, up to the first index
+/// it finds nothing for.
+pub(crate) fn gather(
+    indices: Range<usize>,
+    find: impl FnMut(usize) -> Option<FoundRelation>,
+) -> Vec<FoundRelation> {
+    indices.map_while(find).collect()
 }
 
 /// Limits for decoding a batch: deep enough for its three levels, and
