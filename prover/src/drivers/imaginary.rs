@@ -16,6 +16,10 @@ use classcert_verifier::math::Form;
 use classcert_verifier::math::Interval;
 use rug::Integer;
 
+/// Candidates per relation while a second full-rank set is sought (tiny
+/// factor bases may have none to give).
+const SECOND_SET_ATTEMPTS: u64 = 20_000;
+
 fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
     rel.iter()
         .map(|(&i, &e)| (i as u32, Integer::from(e)))
@@ -162,7 +166,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         let mut tries = 0u32;
         while rank2.rank < kd && tries < 20 * kd as u32 + 200 {
             tries += 1;
-            let fresh = source.relations(1, 20_000).relations.pop();
+            let fresh = source.relations(1, SECOND_SET_ATTEMPTS).relations.pop();
             let Some(v) = fresh.and_then(|v| sge.reduce(v.exponents)) else {
                 continue;
             };
