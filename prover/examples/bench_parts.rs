@@ -10,7 +10,7 @@
 //! 2.5·10^(DIGITS-2), as in `bench_d`; the forms are powers of a prime form.
 
 use classcert_prover::factor::primality_evidence;
-use classcert_prover::prove::choose_x;
+use classcert_prover::setup::choose_x;
 use classcert_verifier::math::euler;
 use classcert_verifier::math::primality::{check, Used};
 use classcert_verifier::math::Form;

@@ -102,6 +102,26 @@ impl FactorBase {
         fb
     }
 
+    /// SHA-256 of the canonical CBOR array `[[p, b], …]` of the prime
+    /// ideals: names this factor base in relation batches.
+    pub fn digest(&self) -> [u8; 32] {
+        use sha2::{Digest, Sha256};
+        let pairs = self
+            .primes
+            .iter()
+            .zip(&self.bs)
+            .map(|(&p, &b)| {
+                ciborium::Value::Array(vec![
+                    classcert_format::cbor::uint(p),
+                    classcert_format::cbor::uint(b),
+                ])
+            })
+            .collect();
+        let bytes = classcert_format::cbor::from_value(&ciborium::Value::Array(pairs))
+            .expect("an array of integers encodes");
+        Sha256::digest(bytes).into()
+    }
+
     pub fn len(&self) -> usize {
         self.primes.len()
     }

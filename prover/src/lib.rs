@@ -1,60 +1,38 @@
 //! # classcert-prover
 //!
-//! Computes the class group of an imaginary quadratic order and writes a
-//! certificate that `classcert-verify` re-checks on its own.
+//! Computes the class group of a quadratic order (and the units when
+//! `D > 0`) and writes a certificate that `classcert-verify` re-checks on
+//! its own.
 //!
 //! ```text
-//! D ─▶ maximality (factor |D|) ─▶ factor base ─▶ Euler product (X)
-//!   ─▶ eliminations ─▶ relations ─▶ Hermite form ─▶ Smith form
+//! D ─▶ setup: maximality (factor |D|), factor base, Euler product (X)
+//!   ─▶ relations (a RelationSource) ─▶ linalg: eliminations, Hermite
+//!      or echelon form, Smith form ─▶ units (D > 0)
 //!   ─▶ certificate body ─▶ self-check with the verifier ─▶ file
 //! ```
+//!
+//! Layout, along the mathematics: [`setup`] (what every driver shares),
+//! [`drivers`] (one per kind of certificate), [`relations`] (the
+//! `RelationSource` trait, the `RelationBatch` type and today's two
+//! searches), [`linalg`], [`units`], [`factor`], [`fb`] (the factor base)
+//! and [`rng`].
 
 // Matrix code here reads more plainly with explicit indices.
 #![allow(clippy::needless_range_loop)]
 
-pub mod compact;
+pub mod drivers;
 pub mod factor;
 pub mod fb;
 pub mod linalg;
 pub mod progress;
-pub mod prove;
-pub mod real;
+pub mod relations;
 pub mod rng;
-pub mod search;
-pub mod sge;
+pub mod setup;
 pub mod show;
 pub mod units;
-pub mod witness;
 
-pub use prove::{prove, Options, ProveError};
-
-/// Proves `D`, encodes the certificate file, and runs the verifier on the
-/// bytes (decoding included) before handing them out.
-pub fn prove_to_bytes(d: &rug::Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
-    let body = prove(d, opts)?;
-    encode_and_check(&classcert_format::Document::Relations(Box::new(body)), opts)
-}
-
-/// Encodes a certificate and runs the verifier on the bytes (decoding
-/// included); a rejection is a prover bug and is reported as such.
-pub fn encode_and_check(
-    doc: &classcert_format::Document,
-    opts: &Options,
-) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
-    let (bytes, id) = classcert_format::encode_document(doc)
-        .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
-    let mut progress = progress::Progress::new(opts.progress);
-    progress.say("self-check: verifying the encoded certificate");
-    let report = classcert_verifier::verify_bytes(&bytes);
-    if let Err(rej) = report.outcome {
-        return Err(ProveError::SelfCheckFailed(format!(
-            "{}: {}",
-            rej.reason.code(),
-            rej.detail
-        )));
-    }
-    Ok((bytes, id))
-}
+pub use drivers::{encode_and_check, prove, prove_to_bytes, witness};
+pub use setup::{Options, ProveError};
 
 /// Writes a certificate through a temporary file and a rename, so a crash
 /// or a full disk never leaves a half-written certificate under `path`.

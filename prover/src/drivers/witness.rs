@@ -9,11 +9,12 @@
 
 use crate::factor;
 use crate::fb::FactorBase;
-use crate::prove::{
+use crate::progress::Progress;
+use crate::rng::Rng;
+use crate::setup::{
     analytic, choose_x, collect_factors, euler_trace, maximality, producer, validate, Options,
     ProveError,
 };
-use crate::rng::Rng;
 use classcert_format::*;
 use classcert_verifier::math::Form;
 use classcert_verifier::math::Interval;
@@ -81,7 +82,7 @@ pub fn prove_witness(
             "the claimed class number {h} is not positive"
         )));
     }
-    let mut progress = crate::progress::Progress::new(opts.progress);
+    let mut progress = Progress::new(opts.progress);
     let abs_d = Integer::from(d.abs_ref());
     // H and its primes
     let fac: Vec<(Integer, u32)> = match h_factors {
@@ -230,5 +231,5 @@ pub fn prove_witness_to_bytes(
     opts: &Options,
 ) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
     let w = prove_witness(d, h, h_factors, invariants, opts)?;
-    crate::encode_and_check(&Document::OrderWitness(Box::new(w)), opts)
+    super::encode_and_check(&Document::OrderWitness(Box::new(w)), opts)
 }

@@ -1,4 +1,5 @@
-//! Units of real quadratic orders in compact (power-product) representation.
+//! The regulator: units of real quadratic orders as power products of the
+//! relations' elements, their logarithms, and their expansion.
 //!
 //! A unit ε of the order O of discriminant D > 0 is kept as a power product
 //! ε = ∏ α'_j^{w_j} of "factors" α'_j = (x_j + y_j√D)/(2 s_j), following the

@@ -11,7 +11,7 @@
 //! with `μ = θ / |c|`. For a reduced ideal with `sqrt D - 2a < B < sqrt D`
 //! the factor `μ` exceeds 1: the walk moves forward.
 
-use crate::units::{self, Factor};
+use super::regulator::{self as units, Factor};
 use classcert_format::CompactStep;
 use classcert_verifier::math::Form;
 use rug::ops::DivRounding;

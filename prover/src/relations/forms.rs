@@ -5,24 +5,25 @@
 //! `a = ∏ p^e`, then `(a, b, c) ~ ∏ P_p^{±e}` with the sign `+` exactly
 //! when `b ≡ b_p (mod 2p)` (composition of united forms).
 
+use super::{gather, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
 use crate::fb::FactorBase;
 use crate::rng::Rng;
 use classcert_verifier::math::Form;
 use rug::Integer;
-use std::collections::BTreeMap;
-
-/// A sparse relation vector.
-pub type Sparse = BTreeMap<usize, i64>;
+use std::ops::Range;
 
 /// Factor-base index after which the early-abort test is made.
 const EARLY_ABORT_INDEX: usize = 150;
 
-pub struct Searcher<'a> {
-    d: &'a Integer,
+/// The relation search for `D < 0`: a pool of random products of the
+/// essential prime forms, two of them composed (with `P_i` for an
+/// elimination) and reduced at a time.
+pub struct FormSearch<'a> {
     fb: &'a FactorBase,
-    pub rng: Rng,
+    rng: Rng,
     pool: Vec<(Form, Vec<(usize, i64)>)>,
-    pub attempts: u64,
+    attempts: u64,
+    origin: Origin,
 }
 
 fn add(v: &mut Sparse, i: usize, e: i64) {
@@ -33,9 +34,9 @@ fn add(v: &mut Sparse, i: usize, e: i64) {
     }
 }
 
-impl<'a> Searcher<'a> {
+impl<'a> FormSearch<'a> {
     /// `k` essential ideals (indices `0..k`) make up the random products.
-    pub fn new(d: &'a Integer, fb: &'a FactorBase, k: usize, seed: u64) -> Searcher<'a> {
+    pub fn new(d: &Integer, fb: &'a FactorBase, k: usize, seed: u64) -> FormSearch<'a> {
         let mut rng = Rng::new(seed);
         let mut pool = Vec::new();
         if k > 0 {
@@ -72,12 +73,19 @@ impl<'a> Searcher<'a> {
                 pool.push((f, ex));
             }
         }
-        Searcher {
-            d,
+        FormSearch {
             fb,
             rng,
             pool,
             attempts: 0,
+            origin: Origin {
+                discriminant: d.clone(),
+                seed,
+                source: "form-products",
+                essential: k as u64,
+                factor_base: fb.digest(),
+                produced: 0,
+            },
         }
     }
 
@@ -166,7 +174,7 @@ impl<'a> Searcher<'a> {
     }
 
     /// A relation with coefficient 1 at `i` and support on indices `< i`.
-    pub fn elimination(&mut self, i: usize, max_attempts: u64) -> Option<Sparse> {
+    fn elimination(&mut self, i: usize, max_attempts: u64) -> Option<Sparse> {
         let p_form = self.fb.forms[i].clone();
         for _ in 0..max_attempts {
             self.attempts += 1;
@@ -190,7 +198,7 @@ impl<'a> Searcher<'a> {
     }
 
     /// A relation over the whole factor base from two random products.
-    pub fn relation(&mut self, max_attempts: u64) -> Option<Sparse> {
+    fn relation(&mut self, max_attempts: u64) -> Option<Sparse> {
         for _ in 0..max_attempts {
             self.attempts += 1;
             let (f1, e1) = self.pick();
@@ -216,8 +224,28 @@ impl<'a> Searcher<'a> {
         }
         None
     }
+}
 
-    pub fn discriminant(&self) -> &Integer {
-        self.d
+fn plain(exponents: Sparse) -> FoundRelation {
+    FoundRelation {
+        exponents,
+        element: None,
+    }
+}
+
+impl RelationSource for FormSearch<'_> {
+    fn eliminations(&mut self, ideals: Range<usize>, attempts: u64) -> RelationBatch {
+        let first = ideals.start;
+        let found = gather(ideals, |i| self.elimination(i, attempts).map(plain));
+        self.origin.eliminations(first, found)
+    }
+
+    fn relations(&mut self, count: usize, attempts: u64) -> RelationBatch {
+        let found = gather(0..count, |_| self.relation(attempts).map(plain));
+        self.origin.relations(found)
+    }
+
+    fn candidates(&self) -> u64 {
+        self.attempts
     }
 }

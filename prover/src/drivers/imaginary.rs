@@ -1,0 +1,287 @@
+//! The driver for imaginary quadratic orders (`D < 0`): relations from a
+//! [`RelationSource`] (random products of prime forms), structured
+//! elimination, a Hermite form kept modulo a multiple of its determinant,
+//! the Smith form, and the certificate body. The analytic side tells it
+//! when the lattice is the whole relation lattice.
+
+use super::{eliminations, RELATION_ATTEMPTS};
+use crate::linalg::sge::{Eliminated, Sge};
+use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
+use crate::progress::Progress;
+use crate::relations::forms::FormSearch;
+use crate::relations::{RelationSource, Sparse};
+use crate::setup::{essential_count, setup, Options, ProveError};
+use classcert_format::*;
+use classcert_verifier::math::Form;
+use classcert_verifier::math::Interval;
+use rug::Integer;
+
+/// Candidates per relation while a second full-rank set is sought (tiny
+/// factor bases may have none to give).
+const SECOND_SET_ATTEMPTS: u64 = 20_000;
+
+fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
+    rel.iter()
+        .map(|(&i, &e)| (i as u32, Integer::from(e)))
+        .collect()
+}
+
+/// The certificate body for `D < 0` (`D` already validated).
+pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
+    let abs_d = Integer::from(d.abs_ref());
+    let mut setup = setup(d, opts)?;
+    let mut progress = std::mem::replace(&mut setup.progress, Progress::new(false));
+    let fb = &setup.fb;
+    let n = fb.len();
+    let ceiling = setup.ceiling.clone();
+    let k = essential_count(fb, &abs_d);
+    progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
+    // today's search; anything that implements RelationSource can stand here
+    let mut search = FormSearch::new(d, fb, k, opts.seed);
+    let source: &mut dyn RelationSource = &mut search;
+
+    // Eliminations for every ideal beyond the essential block.
+    let mut elim: Vec<Option<Sparse>> = vec![None; n];
+    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &mut progress)?) {
+        elim[i] = Some(rel.exponents);
+    }
+
+    // Relations on the essential block, until the index is confirmed.
+    let found = std::cell::Cell::new(0u64);
+    let max_relations = 50 * (k as u64) + 2000;
+    let next_relation = |source: &mut dyn RelationSource| -> Result<Sparse, ProveError> {
+        if found.get() > max_relations {
+            return Err(ProveError::SearchFailed(format!(
+                "{} relations did not determine the class group; try another --seed",
+                found.get()
+            )));
+        }
+        let Some(rel) = source.relations(1, RELATION_ATTEMPTS).relations.pop() else {
+            return Err(ProveError::SearchFailed(
+                "relation search exhausted its attempts".into(),
+            ));
+        };
+        found.set(found.get() + 1);
+        Ok(rel.exponents)
+    };
+    // The relation restricted to the essential block, by substituting the
+    // eliminations (largest index first); used only to test for full rank.
+    let substitute = |mut rel: Sparse| -> Option<Sparse> {
+        while let Some((&j, &e)) = rel.iter().next_back() {
+            if j < k {
+                break;
+            }
+            for (&c, &x) in elim[j].as_ref()? {
+                let t = rel.entry(c).or_insert(0);
+                *t = t.checked_sub(e.checked_mul(x)?)?;
+                if *t == 0 {
+                    rel.remove(&c);
+                }
+            }
+        }
+        Some(rel)
+    };
+    let dense = |v: &Sparse, cols: &[usize]| -> Vec<i64> {
+        let mut out = vec![0i64; cols.len()];
+        for (&c, &e) in v {
+            if let Ok(pos) = cols.binary_search(&c) {
+                out[pos] = e;
+            }
+        }
+        out
+    };
+    let all_cols: Vec<usize> = (0..k).collect();
+    let mut rels: Vec<Sparse> = Vec::new();
+    // ramified primes: P^2 = (p) is principal
+    for i in 0..k {
+        if fb.bs[i].is_multiple_of(fb.primes[i]) {
+            rels.push(Sparse::from([(i, 2)]));
+        }
+    }
+    // Enough relations for full rank on the essential block.
+    let mut rank = RankModP::new(k, (1u64 << 61) - 1);
+    for v in &rels {
+        rank.add(&dense(v, &all_cols));
+    }
+    while rank.rank < k {
+        let v = next_relation(source)?;
+        if let Some(sv) = substitute(v.clone()) {
+            rank.add(&dense(&sv, &all_cols));
+        }
+        rels.push(v);
+    }
+    // some excess gives the elimination more unit pivots to choose from
+    for _ in 0..k / 3 {
+        rels.push(next_relation(source)?);
+    }
+    // Unit pivots leave the dense block. The eliminations join the raw
+    // relations here, so large primes stay sparse columns (no fill-in
+    // from substituting them).
+    rels.extend(elim.iter().flatten().cloned());
+    let Eliminated { sge, active, .. } = Sge::run(n, rels);
+    let cols = sge.remaining();
+    let kd = cols.len();
+    progress.say(&format!(
+        "full rank after {} relations; {} columns left after structured elimination",
+        found.get(),
+        kd
+    ));
+    // A full-rank set first: its determinant M gives M·Z^kd inside the
+    // lattice, so the Hermite form can be kept modulo M.
+    let mut rank = RankModP::new(kd, (1u64 << 61) - 1);
+    let mut independent = Vec::new();
+    let mut pending: Vec<Vec<i64>> = Vec::new();
+    for v in &active {
+        let dv = dense(v, &cols);
+        if rank.add(&dv) {
+            independent.push(dv.clone());
+        }
+        pending.push(dv);
+    }
+    while rank.rank < kd {
+        let Some(v) = sge.reduce(next_relation(source)?) else {
+            continue;
+        };
+        let dv = dense(&v, &cols);
+        if rank.add(&dv) {
+            independent.push(dv.clone());
+        }
+        pending.push(dv);
+    }
+    let mut hnf = if kd == 0 {
+        Hnf::new(0)
+    } else {
+        // A second full-rank subset from the other rows: M·Z^kd lies in the
+        // lattice for both determinants, hence for their gcd, which is
+        // usually close to the class number and keeps the entries small.
+        let mut rank2 = RankModP::new(kd, (1u64 << 61) - 31);
+        let mut second = Vec::new();
+        let mut extra = Vec::new();
+        for v in pending.iter().filter(|v| !independent.contains(v)) {
+            if rank2.add(v) {
+                second.push(v.clone());
+            }
+        }
+        // Tiny factor bases may have no fresh relations left: then d1 alone.
+        let mut tries = 0u32;
+        while rank2.rank < kd && tries < 20 * kd as u32 + 200 {
+            tries += 1;
+            let fresh = source.relations(1, SECOND_SET_ATTEMPTS).relations.pop();
+            let Some(v) = fresh.and_then(|v| sge.reduce(v.exponents)) else {
+                continue;
+            };
+            let dv = dense(&v, &cols);
+            if rank2.add(&dv) {
+                second.push(dv.clone());
+            }
+            extra.push(dv);
+        }
+        pending.extend(extra);
+        let d1 = Integer::from(det_crt(&independent).abs_ref());
+        let d2 = if rank2.rank == kd {
+            Integer::from(det_crt(&second).abs_ref())
+        } else {
+            d1.clone()
+        };
+        let m = d1.clone().gcd(&d2);
+        progress.say(&format!(
+            "dense block {kd} x {kd}; determinants of {} and {} bits, gcd {} bits",
+            d1.significant_bits(),
+            d2.significant_bits(),
+            m.significant_bits()
+        ));
+        Hnf::with_modulus(kd, &m)
+    };
+    for v in pending {
+        hnf.insert(v.into_iter().map(Integer::from).collect());
+    }
+    let confirmed = |h: &Hnf| -> bool {
+        match h.det() {
+            Some(det) => Interval::int(det).ln().is_some_and(|l| l.hi < ceiling),
+            None => false,
+        }
+    };
+    while !confirmed(&hnf) {
+        let Some(v) = sge.reduce(next_relation(source)?) else {
+            continue;
+        };
+        hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
+        if found.get().is_multiple_of(200) {
+            progress.say(&format!(
+                "{} relations ({} attempts)",
+                found.get(),
+                source.candidates()
+            ));
+        }
+    }
+    let rows = hnf.finish().expect("full rank");
+    // positions in the dense block with a pivot > 1 are the generators
+    let gpos: Vec<usize> = (0..kd).filter(|&j| rows[j][j] > 1).collect();
+    let gens: Vec<usize> = gpos.iter().map(|&j| cols[j]).collect();
+    let h_g: Vec<Vec<Integer>> = gpos
+        .iter()
+        .map(|&g| gpos.iter().map(|&c| rows[g][c].clone()).collect())
+        .collect();
+    let sm = smith(&h_g).ok_or_else(|| ProveError::SearchFailed("Smith form failed".into()))?;
+    let mut eliminations = Vec::new();
+    // dense-block columns with pivot 1: Hermite rows, supported on G
+    for c in (0..kd).filter(|c| !gpos.contains(c)) {
+        let entries: Vec<(u32, Integer)> = (0..kd)
+            .filter(|&j| !rows[c][j].is_zero())
+            .map(|j| (cols[j] as u32, rows[c][j].clone()))
+            .collect();
+        eliminations.push(Elimination {
+            pivot: cols[c] as u32,
+            relation: Relation {
+                entries,
+                witness: Witness::FormReduction,
+            },
+        });
+    }
+    // unit pivots, last eliminated first
+    for (c, prow) in sge.pivots.iter().rev() {
+        eliminations.push(Elimination {
+            pivot: *c as u32,
+            relation: Relation {
+                entries: to_entries(prow),
+                witness: Witness::FormReduction,
+            },
+        });
+    }
+    // Generators of the cyclic factors: rows of V^{-1}, reduced modulo H_G.
+    let mut generators = Vec::new();
+    let mut invariants = Vec::new();
+    for (di, xv) in cyclic_generators(&sm, &h_g) {
+        invariants.push(di);
+        let mut f = Form::principal(d);
+        for (t, e) in xv.iter().enumerate() {
+            if !e.is_zero() {
+                let p = fb.forms[gens[t]].pow(e, d).expect("form arithmetic");
+                f = f.compose(&p).expect("form arithmetic");
+            }
+        }
+        generators.push(CyclicGenerator {
+            exponents: xv,
+            form: Some(classcert_format::Form {
+                a: f.a,
+                b: f.b,
+                c: f.c,
+            }),
+        });
+    }
+    let class_number: Integer = sm.diag.iter().product();
+    let claim = Claim {
+        class_number,
+        invariants,
+        generators,
+    };
+    let lattice = Lattice {
+        generators: gens.iter().map(|&g| g as u32).collect(),
+        relations: h_g,
+        relation_witness: Witness::FormReduction,
+        smith: sm.into(),
+        eliminations,
+        raw_relations: None,
+    };
+    Ok(setup.body(d, opts, claim, lattice, None))
+}

@@ -1,0 +1,409 @@
+//! The driver for real quadratic orders (`D > 0`).
+//!
+//! Relations come from a [`RelationSource`] of elements of small norm
+//! ([`crate::relations::elements`]), each witnessed by its element.
+//!
+//! Linear algebra is exact and keeps track of how every row combines the
+//! raw relations, because the verifier checks each derived relation as such
+//! a combination: eliminations for the large primes, an echelon form on the
+//! essential block, and the rows that vanish there are units (J. Buchmann,
+//! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
+//! of their logarithms ([`crate::units::unit_gcd`]).
+
+use super::{eliminations, RELATION_ATTEMPTS};
+use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
+use crate::linalg::sge::{Eliminated, Sge};
+use crate::linalg::{cyclic_generators, smith};
+use crate::progress::Progress;
+use crate::relations::elements::ElementSearch;
+use crate::relations::{FoundRelation, RelationSource, Sparse};
+use crate::setup::{essential_count, setup, Options, ProveError};
+use crate::units::{self, compact, Factor};
+use classcert_format::*;
+use classcert_verifier::math::Interval;
+use rug::ops::Pow;
+use rug::Integer;
+use std::collections::BTreeMap;
+
+/// A raw relation: exponents over the factor base (`+e` for `P^e`, `-e`
+/// for `conj(P)^e`) and the element `(x + y sqrt D)/2`.
+struct Raw {
+    entries: Sparse,
+    x: Integer,
+    y: Integer,
+}
+
+impl Raw {
+    fn from_found(rel: FoundRelation) -> Result<Raw, ProveError> {
+        let element = rel.element.ok_or_else(|| {
+            ProveError::SearchFailed("a relation for D > 0 came without its element".into())
+        })?;
+        Ok(Raw {
+            entries: rel.exponents,
+            x: element.x,
+            y: element.y,
+        })
+    }
+}
+
+/// Kernel vectors offered to the unit search per round.
+const KERNEL_PER_ROUND: usize = 32;
+
+/// Columns beyond the generators that may be left to the echelon block.
+const DENSE_SLACK: usize = 4;
+
+/// The essential block solved: unit pivots first, by the structured
+/// elimination both drivers share ([`Sge`]; least Markowitz cost keeps the
+/// combinations short), then an echelon form on the columns left.
+struct Algebra {
+    /// `(column, row)` in pivoting order; each row has `+1` at its column
+    /// and its other entries on columns pivoted later or left dense.
+    unit_pivots: Vec<(usize, Row)>,
+    dense: Echelon,
+    /// Columns left to the echelon form.
+    dense_cols: Vec<usize>,
+}
+
+impl Algebra {
+    fn solve(k: usize, rows: Vec<Row>) -> Algebra {
+        let rows: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
+        let Eliminated {
+            sge,
+            active,
+            vanished,
+        } = Sge::run(k, rows);
+        let dense_cols = sge.remaining();
+        // rows that vanish are units
+        let kernel = vanished
+            .into_iter()
+            .map(|r| r.combo)
+            .filter(|c| !c.is_empty())
+            .collect();
+        let unit_pivots = sge
+            .pivots
+            .into_iter()
+            .map(|(c, p)| {
+                if p.v[&c] < 0 {
+                    (c, p.lin(&Integer::from(-1), &p, &Integer::new()))
+                } else {
+                    (c, p)
+                }
+            })
+            .collect();
+        let mut dense = Echelon::new(k);
+        dense.kernel = kernel;
+        dense.triangularise(&dense_cols, active);
+        Algebra {
+            unit_pivots,
+            dense,
+            dense_cols,
+        }
+    }
+
+    fn full_rank(&self) -> bool {
+        self.dense_cols
+            .iter()
+            .all(|&c| self.dense.pivots[c].is_some())
+    }
+
+    fn h_star(&self) -> Integer {
+        self.dense_cols
+            .iter()
+            .map(|&c| self.dense.diagonal(c))
+            .product()
+    }
+}
+
+fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
+    v.iter().map(|(i, e)| (*i as u32, e.clone())).collect()
+}
+
+pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
+    let mut setup = setup(d, opts)?;
+    let mut progress = std::mem::replace(&mut setup.progress, Progress::new(false));
+    let fb = &setup.fb;
+    let n = fb.len();
+    let k = essential_count(fb, d);
+    progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
+    // today's search; anything that implements RelationSource can stand here
+    let mut search = ElementSearch::new(d, fb, k, opts.seed);
+    let source: &mut dyn RelationSource = &mut search;
+    let mut raws: Vec<Raw> = Vec::new();
+    let mut elim_of: Vec<Option<usize>> = vec![None; n];
+    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &mut progress)?) {
+        elim_of[i] = Some(raws.len());
+        raws.push(Raw::from_found(rel)?);
+    }
+    // ramified primes: (p) = P^2, witness α = p
+    for i in 0..k {
+        let p = fb.primes[i];
+        if d.is_divisible_u(p as u32) {
+            raws.push(Raw {
+                entries: BTreeMap::from([(i, 2)]),
+                x: Integer::from(2 * p),
+                y: Integer::new(),
+            });
+        }
+    }
+
+    // The essential block: substitute the eliminations, then echelon form.
+    let substitute = |j: usize, raws: &[Raw]| -> Row {
+        let mut v: Vector = raws[j]
+            .entries
+            .iter()
+            .map(|(i, e)| (*i, Integer::from(*e)))
+            .collect();
+        let mut combo = Vector::from([(j, Integer::from(1))]);
+        while let Some((&c, e)) = v.iter().next_back() {
+            if c < k {
+                break;
+            }
+            let e = e.clone();
+            let Some(r) = elim_of[c] else { break };
+            let rv: Vector = raws[r]
+                .entries
+                .iter()
+                .map(|(i, x)| (*i, Integer::from(*x)))
+                .collect();
+            let m = Integer::from(-&e);
+            axpy(&mut v, &m, &rv);
+            axpy(&mut combo, &m, &Vector::from([(r, Integer::from(1))]));
+        }
+        Row { v, combo }
+    };
+    let mut rows: Vec<Row> = ((n - k)..raws.len())
+        .map(|j| substitute(j, &raws))
+        .collect();
+    let factors = |raws: &[Raw]| -> Vec<Factor> {
+        raws.iter()
+            .map(|r| {
+                let mut s = Integer::from(1);
+                for (i, e) in &r.entries {
+                    if *e < 0 {
+                        s *= Integer::from(fb.primes[*i]).pow(e.unsigned_abs() as u32);
+                    }
+                }
+                Factor {
+                    x: r.x.clone(),
+                    y: r.y.clone(),
+                    s,
+                }
+            })
+            .collect()
+    };
+    let max_relations = 60 * k + 2000;
+    // how many essential relations may be spent on shrinking the echelon block
+    let dense_budget = 6 * k + 100;
+    let mut unit: Option<Vector> = None;
+    let mut confirmed = false;
+    let mut log_r = f64::INFINITY;
+    let mut batch = k.max(8);
+    let alg = loop {
+        let found = source.relations(batch, RELATION_ATTEMPTS).relations;
+        if found.len() < batch {
+            return Err(ProveError::SearchFailed(
+                "relation search exhausted its attempts".into(),
+            ));
+        }
+        for rel in found {
+            raws.push(Raw::from_found(rel)?);
+            rows.push(substitute(raws.len() - 1, &raws));
+        }
+        batch = (k / 4).max(4);
+        if raws.len() > max_relations + n {
+            return Err(ProveError::SearchFailed(format!(
+                "{} relations did not determine the class group and regulator; try another --seed",
+                raws.len()
+            )));
+        }
+        let alg = Algebra::solve(k, rows.clone());
+        if !alg.full_rank() || alg.dense.kernel.is_empty() {
+            continue;
+        }
+        let h_star = alg.h_star();
+        if !confirmed {
+            // the current unit and kernel vectors spread over the kernel
+            let kernel = &alg.dense.kernel;
+            let step = kernel.len().div_ceil(KERNEL_PER_ROUND).max(1);
+            let cands: Vec<Vec<(usize, Integer)>> = unit
+                .iter()
+                .chain(kernel.iter().step_by(step))
+                .map(|kv| kv.iter().map(|(i, e)| (*i, e.clone())).collect())
+                .collect();
+            let fs = factors(&raws);
+            if let Some(g) = units::unit_gcd(d, &fs, &cands) {
+                unit = Some(g.into_iter().collect());
+            }
+            let Some(u) = &unit else { continue };
+            log_r = units::log_power_product(
+                d,
+                &fs,
+                &u.iter().map(|(i, e)| (*i, e.clone())).collect::<Vec<_>>(),
+            )
+            .map(|l| l.abs().to_f64())
+            .unwrap_or(f64::INFINITY);
+            let log_hr = Interval::int(&h_star)
+                .ln()
+                .map(|l| l.hi.to_f64())
+                .unwrap_or(f64::INFINITY)
+                + log_r.ln();
+            // a margin for the rigorous check that follows
+            confirmed = log_hr < setup.ceiling.to_f64() - 1e-9;
+        }
+        // Columns left to the echelon block carry long combinations into
+        // the certificate; more relations give more unit pivots.
+        let dense_gens = alg
+            .dense_cols
+            .iter()
+            .filter(|&&c| alg.dense.diagonal(c) > 1)
+            .count();
+        let dense_ok =
+            alg.dense_cols.len() <= dense_gens + DENSE_SLACK || raws.len() > dense_budget + n;
+        progress.say(&format!(
+            "{} relations ({} candidates): h* = {h_star}, R* = {log_r:.6}, {} columns left to the echelon block",
+            raws.len(),
+            source.candidates(),
+            alg.dense_cols.len()
+        ));
+        if confirmed && dense_ok {
+            break alg;
+        }
+    };
+    let mut ech = alg.dense;
+    ech.reduce();
+
+    // Generators: dense columns whose pivot is > 1.
+    let gens: Vec<usize> = alg
+        .dense_cols
+        .iter()
+        .copied()
+        .filter(|&c| ech.diagonal(c) > 1)
+        .collect();
+    let pivot = |c: usize| ech.pivots[c].clone().expect("full rank");
+    let mut h_rows: Vec<Row> = Vec::new();
+    for &g in &gens {
+        let mut row = pivot(g);
+        for &c in alg.dense_cols.iter().filter(|&&c| c > g) {
+            if gens.contains(&c) {
+                continue;
+            }
+            if let Some(e) = row.v.get(&c).cloned() {
+                row.sub_mul(&e, &pivot(c));
+            }
+        }
+        h_rows.push(row);
+    }
+    let h_g: Vec<Vec<Integer>> = h_rows
+        .iter()
+        .map(|r| {
+            gens.iter()
+                .map(|g| r.v.get(g).cloned().unwrap_or_default())
+                .collect()
+        })
+        .collect();
+    let sm = smith(&h_g).ok_or_else(|| ProveError::SearchFailed("Smith form failed".into()))?;
+    let mut eliminations = Vec::new();
+    let elimination_rows = alg
+        .dense_cols
+        .iter()
+        .rev()
+        .filter(|c| !gens.contains(c))
+        .map(|&c| (c, pivot(c)))
+        .chain(alg.unit_pivots.iter().rev().cloned());
+    for (c, row) in elimination_rows {
+        eliminations.push(Elimination {
+            pivot: c as u32,
+            relation: Relation {
+                entries: to_terms(&row.v),
+                witness: Witness::Combination {
+                    terms: to_terms(&row.combo),
+                },
+            },
+        });
+    }
+    for i in k..n {
+        let r = elim_of[i].expect("every large prime has an elimination");
+        eliminations.push(Elimination {
+            pivot: i as u32,
+            relation: Relation {
+                entries: raws[r]
+                    .entries
+                    .iter()
+                    .map(|(c, e)| (*c as u32, Integer::from(*e)))
+                    .collect(),
+                witness: Witness::Combination {
+                    terms: vec![(r as u32, Integer::from(1))],
+                },
+            },
+        });
+    }
+    let raw_relations: Vec<Relation> = raws
+        .iter()
+        .map(|r| Relation {
+            entries: r
+                .entries
+                .iter()
+                .map(|(c, e)| (*c as u32, Integer::from(*e)))
+                .collect(),
+            witness: Witness::Element {
+                x: r.x.clone(),
+                y: r.y.clone(),
+            },
+        })
+        .collect();
+    // The unit found from the relations, rewritten in compact form from
+    // its logarithm; the verifier's own check gives the stated enclosure.
+    let terms: Vec<(usize, Integer)> = unit
+        .as_ref()
+        .expect("a unit was found")
+        .iter()
+        .map(|(i, e)| (*i, e.clone()))
+        .collect();
+    let log_r = units::log_power_product(d, &factors(&raws), &terms)
+        .ok_or_else(|| ProveError::SearchFailed("the unit's logarithm failed".into()))?
+        .abs();
+    let steps = compact::compact(d, &log_r).ok_or_else(|| {
+        ProveError::SearchFailed("the compact representation of the unit failed".into())
+    })?;
+    let chain = classcert_verifier::math::units::check_chain(d, &steps).map_err(|e| {
+        ProveError::SelfCheckFailed(format!("compact representation: {}", e.detail))
+    })?;
+    let regulator = chain.log_eps;
+    let mut generators = Vec::new();
+    let mut invariants = Vec::new();
+    for (di, xv) in cyclic_generators(&sm, &h_g) {
+        invariants.push(di);
+        generators.push(CyclicGenerator {
+            exponents: xv,
+            form: None,
+        });
+    }
+    let claim = Claim {
+        class_number: sm.diag.iter().product(),
+        invariants,
+        generators,
+    };
+    let lattice = Lattice {
+        generators: gens.iter().map(|&g| g as u32).collect(),
+        relations: h_g,
+        relation_witness: Witness::Combinations {
+            rows: h_rows.iter().map(|r| to_terms(&r.combo)).collect(),
+        },
+        smith: sm.into(),
+        eliminations,
+        raw_relations: Some(raw_relations),
+    };
+    let units = Units {
+        steps,
+        norm: if chain.norm_negative { -1 } else { 1 },
+        regulator: regulator
+            .to_bounds()
+            .ok_or_else(|| ProveError::SearchFailed("regulator out of range".into()))?,
+    };
+    progress.say(&format!(
+        "class number {}, regulator {}",
+        claim.class_number,
+        classcert_verifier::report::decimal(&regulator)
+    ));
+    Ok(setup.body(d, opts, claim, lattice, Some(units)))
+}

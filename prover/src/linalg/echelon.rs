@@ -1,0 +1,222 @@
+//! An integer echelon form that remembers, for every row, the combination
+//! of raw relations it stands for. The certificate for `D > 0` states each
+//! derived relation as such a combination (the verifier checks raw
+//! relations by their elements), and the rows that vanish give units.
+
+use super::sge::PivotRow;
+use rug::ops::DivRounding;
+use rug::Integer;
+use std::collections::BTreeMap;
+
+/// Sparse integer vectors: over factor-base indices, or over raw relations.
+pub type Vector = BTreeMap<usize, Integer>;
+
+pub fn axpy(dst: &mut Vector, c: &Integer, src: &Vector) {
+    for (i, e) in src {
+        let t = dst.entry(*i).or_default();
+        *t += Integer::from(c * e);
+        if t.is_zero() {
+            dst.remove(i);
+        }
+    }
+}
+
+pub fn scaled(c: &Integer, v: &Vector) -> Vector {
+    v.iter()
+        .map(|(i, e)| (*i, Integer::from(c * e)))
+        .filter(|(_, e)| !e.is_zero())
+        .collect()
+}
+
+/// A relation on the essential block with the combination of raw
+/// relations it stands for.
+#[derive(Clone)]
+pub struct Row {
+    pub v: Vector,
+    pub combo: Vector,
+}
+
+impl Row {
+    /// `a·self + b·other`.
+    pub fn lin(&self, a: &Integer, other: &Row, b: &Integer) -> Row {
+        let mut v = scaled(a, &self.v);
+        axpy(&mut v, b, &other.v);
+        let mut combo = scaled(a, &self.combo);
+        axpy(&mut combo, b, &other.combo);
+        Row { v, combo }
+    }
+
+    pub fn sub_mul(&mut self, q: &Integer, other: &Row) {
+        let m = Integer::from(-q);
+        axpy(&mut self.v, &m, &other.v);
+        axpy(&mut self.combo, &m, &other.combo);
+    }
+}
+
+impl PivotRow for Row {
+    fn columns(&self) -> impl Iterator<Item = usize> + '_ {
+        self.v.keys().copied()
+    }
+
+    fn unit_columns(&self) -> impl Iterator<Item = usize> + '_ {
+        self.v
+            .iter()
+            .filter(|(_, e)| **e == 1 || **e == -1)
+            .map(|(&c, _)| c)
+    }
+
+    fn weight(&self) -> usize {
+        self.v.len()
+    }
+
+    fn has(&self, c: usize) -> bool {
+        self.v.contains_key(&c)
+    }
+
+    fn is_zero(&self) -> bool {
+        self.v.is_empty()
+    }
+
+    /// Exact: never drops a row.
+    fn eliminate(&mut self, c: usize, pivot: &Self) -> bool {
+        if let (Some(e), Some(s)) = (self.v.get(&c), pivot.v.get(&c)) {
+            let q = Integer::from(e * s);
+            self.sub_mul(&q, pivot);
+        }
+        true
+    }
+}
+
+/// Row echelon form over the integers, column by column from the left
+/// (H. Cohen, GTM 138, §2.4.2); rows that vanish are kernel vectors.
+pub struct Echelon {
+    pub pivots: Vec<Option<Row>>,
+    pub kernel: Vec<Vector>,
+}
+
+impl Echelon {
+    pub fn new(k: usize) -> Echelon {
+        Echelon {
+            pivots: vec![None; k],
+            kernel: Vec::new(),
+        }
+    }
+
+    /// Echelon form of `rows` on `cols` (ascending). Combinations are what
+    /// the certificate carries, so the form is built from as few rows with
+    /// short combinations as will do: the shortest rows first, more only if
+    /// the others do not reduce to zero against the result (they then lie
+    /// in its lattice, and are units).
+    pub fn triangularise(&mut self, cols: &[usize], mut rows: Vec<Row>) {
+        rows.sort_by_key(|r| r.combo.len());
+        let mut take = rows.len().min(cols.len() + 8);
+        loop {
+            let mut trial = Echelon::new(self.pivots.len());
+            trial.euclid(cols, rows[..take].to_vec());
+            let complete = cols.iter().all(|&c| trial.pivots[c].is_some());
+            let mut left = Vec::new();
+            let mut units = Vec::new();
+            if complete {
+                for r in &rows[take..] {
+                    let mut r = r.clone();
+                    for &c in cols {
+                        let (Some(e), Some(p)) = (r.v.get(&c).cloned(), trial.pivots[c].as_ref())
+                        else {
+                            continue;
+                        };
+                        let q = e.div_floor(&p.v[&c]);
+                        r.sub_mul(&q, p);
+                    }
+                    if r.v.is_empty() {
+                        units.push(r.combo);
+                    } else {
+                        left.push(r);
+                    }
+                }
+            }
+            if complete && left.is_empty() || take == rows.len() {
+                self.pivots = trial.pivots;
+                self.kernel.extend(trial.kernel);
+                self.kernel
+                    .extend(units.into_iter().filter(|c| !c.is_empty()));
+                return;
+            }
+            take = rows.len().min(2 * take);
+        }
+    }
+
+    /// Echelon form by Euclid across all rows at once: in each column the
+    /// row with the smallest entry (and the shortest combination) reduces
+    /// every other, until one is left. Each pass at least halves the
+    /// largest entry, and combinations grow by small multiples only.
+    fn euclid(&mut self, cols: &[usize], mut rows: Vec<Row>) {
+        for &c in cols {
+            loop {
+                let with: Vec<usize> = (0..rows.len())
+                    .filter(|&i| rows[i].v.contains_key(&c))
+                    .collect();
+                let Some(&best) = with.iter().min_by(|&&i, &&j| {
+                    let key = |r: &Row| (r.v[&c].clone().abs(), r.combo.len());
+                    key(&rows[i]).cmp(&key(&rows[j]))
+                }) else {
+                    break;
+                };
+                if rows[best].v[&c] < 0 {
+                    let r = &rows[best];
+                    rows[best] = r.lin(&Integer::from(-1), r, &Integer::new());
+                }
+                if with.len() == 1 {
+                    self.pivots[c] = Some(rows.swap_remove(best));
+                    break;
+                }
+                let p = rows[best].clone();
+                let pc = p.v[&c].clone();
+                let two_pc = Integer::from(&pc << 1u32);
+                for &i in with.iter().filter(|&&i| i != best) {
+                    // the nearest integer to x / pc
+                    let q = (Integer::from(&rows[i].v[&c] << 1u32) + &pc).div_floor(&two_pc);
+                    rows[i].sub_mul(&q, &p);
+                }
+                let mut kept = Vec::with_capacity(rows.len());
+                for r in rows {
+                    if r.v.is_empty() {
+                        if !r.combo.is_empty() {
+                            self.kernel.push(r.combo);
+                        }
+                    } else {
+                        kept.push(r);
+                    }
+                }
+                rows = kept;
+            }
+        }
+    }
+
+    /// Reduces the entries right of each pivot modulo the pivots below it
+    /// (Hermite form), from the last column back.
+    pub fn reduce(&mut self) {
+        let k = self.pivots.len();
+        for c in (0..k).rev() {
+            for j in c + 1..k {
+                let Some(pj) = self.pivots[j].clone() else {
+                    continue;
+                };
+                let Some(pc) = self.pivots[c].as_mut() else {
+                    continue;
+                };
+                let Some(e) = pc.v.get(&j) else { continue };
+                let q = Integer::from(e.div_floor(&pj.v[&j]));
+                if !q.is_zero() {
+                    pc.sub_mul(&q, &pj);
+                }
+            }
+        }
+    }
+
+    pub fn diagonal(&self, c: usize) -> Integer {
+        self.pivots[c]
+            .as_ref()
+            .and_then(|p| p.v.get(&c).cloned())
+            .unwrap_or_default()
+    }
+}

@@ -1,0 +1,209 @@
+//! Arithmetic modulo word primes: an echelon basis for picking independent
+//! rows, and determinants by the Chinese remainder theorem.
+
+use rug::ops::RemRounding;
+use rug::Integer;
+
+fn mul_mod(a: u64, b: u64, p: u64) -> u64 {
+    ((a as u128 * b as u128) % p as u128) as u64
+}
+
+fn inv_mod(a: u64, p: u64) -> u64 {
+    // p prime
+    let mut r = 1u64;
+    let mut b = a % p;
+    let mut e = p - 2;
+    while e > 0 {
+        if e & 1 == 1 {
+            r = mul_mod(r, b, p);
+        }
+        b = mul_mod(b, b, p);
+        e >>= 1;
+    }
+    r
+}
+
+fn to_mod(x: i64, p: u64) -> u64 {
+    x.rem_euclid(p as i64) as u64
+}
+
+/// Echelon basis modulo a word prime, for picking independent rows.
+pub struct RankModP {
+    p: u64,
+    k: usize,
+    rows: Vec<Option<Vec<u64>>>,
+    pub rank: usize,
+}
+
+impl RankModP {
+    pub fn new(k: usize, p: u64) -> RankModP {
+        RankModP {
+            p,
+            k,
+            rows: vec![None; k],
+            rank: 0,
+        }
+    }
+
+    /// True if `v` is independent of the rows seen so far (and keeps it).
+    pub fn add(&mut self, v: &[i64]) -> bool {
+        let p = self.p;
+        let mut w: Vec<u64> = v.iter().map(|&x| to_mod(x, p)).collect();
+        for j in 0..self.k {
+            if w[j] == 0 {
+                continue;
+            }
+            match &self.rows[j] {
+                Some(b) => {
+                    let f = w[j];
+                    for c in j..self.k {
+                        w[c] = (w[c] + p - mul_mod(f, b[c], p)) % p;
+                    }
+                }
+                None => {
+                    let inv = inv_mod(w[j], p);
+                    for x in w.iter_mut() {
+                        *x = mul_mod(*x, inv, p);
+                    }
+                    self.rows[j] = Some(w);
+                    self.rank += 1;
+                    return true;
+                }
+            }
+        }
+        false
+    }
+}
+
+/// Montgomery arithmetic modulo an odd `p < 2^62` (P. L. Montgomery,
+/// "Modular multiplication without trial division", Math. Comp. 44 (1985)).
+struct Mont {
+    p: u64,
+    /// `-p^{-1} mod 2^64`
+    pinv: u64,
+    /// `2^128 mod p`
+    r2: u64,
+}
+
+impl Mont {
+    fn new(p: u64) -> Mont {
+        let mut inv: u64 = 1;
+        for _ in 0..6 {
+            inv = inv.wrapping_mul(2u64.wrapping_sub(p.wrapping_mul(inv)));
+        }
+        let r = ((1u128 << 64) % p as u128) as u64;
+        let r2 = ((r as u128 * r as u128) % p as u128) as u64;
+        Mont {
+            p,
+            pinv: inv.wrapping_neg(),
+            r2,
+        }
+    }
+
+    fn redc(&self, t: u128) -> u64 {
+        let m = (t as u64).wrapping_mul(self.pinv);
+        let u = ((t + m as u128 * self.p as u128) >> 64) as u64;
+        if u >= self.p {
+            u - self.p
+        } else {
+            u
+        }
+    }
+
+    fn mul(&self, a: u64, b: u64) -> u64 {
+        self.redc(a as u128 * b as u128)
+    }
+
+    fn to(&self, a: u64) -> u64 {
+        self.mul(a, self.r2)
+    }
+
+    fn from(&self, a: u64) -> u64 {
+        self.redc(a as u128)
+    }
+}
+
+fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
+    let n = m.len();
+    let mt = Mont::new(p);
+    let mut a: Vec<Vec<u64>> = m
+        .iter()
+        .map(|r| r.iter().map(|&x| mt.to(to_mod(x, p))).collect())
+        .collect();
+    let mut det = mt.to(1);
+    for c in 0..n {
+        let Some(piv) = (c..n).find(|&r| a[r][c] != 0) else {
+            return 0;
+        };
+        if piv != c {
+            a.swap(piv, c);
+            det = (p - det) % p;
+        }
+        det = mt.mul(det, a[c][c]);
+        let inv = mt.to(inv_mod(mt.from(a[c][c]), p));
+        let (top, bottom) = a.split_at_mut(c + 1);
+        let pivot_row = &top[c];
+        for row in bottom.iter_mut() {
+            if row[c] == 0 {
+                continue;
+            }
+            let f = mt.mul(row[c], inv);
+            for (x, &y) in row[c..].iter_mut().zip(pivot_row[c..].iter()) {
+                let t = mt.mul(f, y);
+                *x = if *x >= t { *x - t } else { *x + p - t };
+            }
+        }
+    }
+    mt.from(det)
+}
+
+/// The determinant of a square integer matrix, by Gaussian elimination
+/// modulo word primes and the Chinese remainder theorem, up to twice
+/// Hadamard's bound.
+pub fn det_crt(m: &[Vec<i64>]) -> Integer {
+    let mut bound = Integer::from(1);
+    for r in m {
+        let s: Integer = r.iter().map(|&x| Integer::from(x) * x).sum();
+        // ceil(sqrt(s)) >= row norm
+        let root = Integer::from(s.sqrt_ref()) + 1u32;
+        bound *= root;
+    }
+    bound <<= 1u32;
+    let mut modulus = Integer::from(1);
+    let mut value = Integer::new();
+    let mut cand: u64 = (1u64 << 62) - 1;
+    while modulus <= bound {
+        while Integer::from(cand).is_probably_prime(30) == rug::integer::IsPrime::No {
+            cand -= 2;
+        }
+        let p = cand;
+        cand -= 2;
+        let r = det_mod_p(m, p);
+        // x ≡ value (mod modulus), x ≡ r (mod p)
+        let pm = Integer::from(p);
+        let diff = (Integer::from(r) - &value).rem_euc(&pm);
+        let inv = Integer::from(modulus.invert_ref(&pm).expect("coprime"));
+        let t = (diff * inv).rem_euc(&pm);
+        value += Integer::from(&modulus * &t);
+        modulus *= &pm;
+    }
+    let half = Integer::from(&modulus >> 1u32);
+    if value > half {
+        value -= &modulus;
+    }
+    value
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn det_small() {
+        let m = vec![vec![2, 1, 0], vec![1, 3, 1], vec![0, 1, 4]];
+        // 2(12-1) - 1(4-0) = 18 (by hand)
+        assert_eq!(det_crt(&m), 18);
+        let s = vec![vec![0, 1], vec![1, 0]];
+        assert_eq!(det_crt(&s), -1);
+    }
+}
