@@ -285,6 +285,39 @@ fn euler_interval_narrowed(b: &Body) -> Vec<u8> {
     encode(&b)
 }
 
+/// Regression (issue 8): a stated bound with dyadic exponent `i64::MIN`
+/// once made the verifier panic on `abs()`; it must be refused.
+fn euler_exponent_min(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    b.euler.log_l.lo.exponent = i64::MIN;
+    encode(&b)
+}
+
+/// The same in an Euler checkpoint.
+fn checkpoint_exponent_min(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    b.euler
+        .checkpoints
+        .first_mut()
+        .expect("a checkpoint")
+        .c
+        .hi
+        .exponent = i64::MIN;
+    encode(&b)
+}
+
+/// The same in the stated regulator.
+fn regulator_exponent_min(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    b.units
+        .as_mut()
+        .expect("D > 0 has units")
+        .regulator
+        .hi
+        .exponent = i64::MIN;
+    encode(&b)
+}
+
 /// Moves the first checkpoint's `A` interval entirely above its old upper
 /// end, so it no longer contains the recomputed partial sum.
 fn euler_checkpoint_moved(b: &Body) -> Vec<u8> {
@@ -847,6 +880,33 @@ pub static CATALOGUE: &[Forgery] =
             true,
             "euler.log_l shrunk by a quarter of its width at each end",
             euler_interval_narrowed
+        ),
+        forgery!(
+            "euler-exponent-min",
+            "euler-interval-understated",
+            NONCYCLIC,
+            Mathematics,
+            false,
+            "regression: the stated log L bound has dyadic exponent i64::MIN",
+            euler_exponent_min
+        ),
+        forgery!(
+            "euler-checkpoint-exponent-min",
+            "euler-trace-mismatch",
+            NONCYCLIC,
+            Mathematics,
+            false,
+            "regression: a checkpoint bound has dyadic exponent i64::MIN",
+            checkpoint_exponent_min
+        ),
+        forgery!(
+            "real-regulator-exponent-min",
+            "regulator-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "regression: the stated regulator bound has dyadic exponent i64::MIN",
+            regulator_exponent_min
         ),
         forgery!(
             "euler-checkpoint-moved",

@@ -1,82 +1,128 @@
-//! `classcert-verify <FILE> [--json] [--require unconditional]`
+//! `classcert-verify`: re-checks a certificate and prints a verdict.
 //!
-//! Exit codes: 0 verified; 1 not verified (a check failed, or the input is
-//! malformed or over limits); 2 usage or I/O error.
+//! The command line lives here and only here: the library (the trusted
+//! checks) never sees clap. Exit codes: 0 verified; 1 not verified (a
+//! check failed, or the input is malformed or over limits); 2 usage or
+//! I/O error.
 
 #![forbid(unsafe_code)]
 
+use clap::{Parser, ValueEnum};
+use classcert_verifier::report::json;
 use classcert_verifier::report::Requirement;
-use std::io::Write;
+use classcert_verifier::STAGES;
+use std::io::{IsTerminal, Read, Write};
 use std::process::ExitCode;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::Arc;
+use std::time::{Duration, Instant};
 
-const USAGE: &str = concat!(
-    "usage: classcert-verify <FILE> [--json] [--require unconditional]\n",
-    "Re-checks a classcert certificate and prints a verdict.\n",
-    "  --json                    print one JSON object instead of text\n",
-    "  --require unconditional   refuse (reason policy) a result that rests on\n",
-    "                            any assumption, such as GRH\n",
-    "exit codes: 0 verified, 1 not verified, 2 usage or I/O error\n",
-);
+const AFTER_HELP: &str = "\
+FILE may be - to read the certificate from standard input.
+
+Exit codes:
+  0  verified (and every --require holds)
+  1  not verified: a check failed, the file is not a certificate, is
+     malformed, or is over the verifier's limits
+  2  usage or I/O error (bad arguments, unreadable file)
+
+The first line of the text output is VERIFIED or REJECTED: <reason>.
+With --json, one JSON object (schema classcert/1) is printed, also for
+usage and I/O errors (kind \"error\").";
+
+#[derive(Parser)]
+#[command(
+    name = "classcert-verify",
+    version,
+    about = "Re-checks a classcert certificate on its own and prints a verdict",
+    after_help = AFTER_HELP
+)]
+struct Cli {
+    /// The certificate file, or - for standard input.
+    file: String,
+    /// Print one JSON object instead of text.
+    #[arg(long)]
+    json: bool,
+    /// Refuse, with reason `policy`, a verified result that does not meet
+    /// this requirement.
+    #[arg(long, value_enum, value_name = "WHAT")]
+    require: Vec<Require>,
+    /// Print only the verdict line (text) and no progress.
+    #[arg(short, long)]
+    quiet: bool,
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+enum Require {
+    /// No assumption at all: neither GRH nor "BPSW probable prime".
+    Unconditional,
+}
 
 fn main() -> ExitCode {
-    let mut file: Option<String> = None;
-    let mut json = false;
-    let mut require = Vec::new();
-    let mut args = std::env::args().skip(1);
-    while let Some(arg) = args.next() {
-        match arg.as_str() {
-            "--json" => json = true,
-            "--require" => match args.next().as_deref().and_then(Requirement::parse) {
-                Some(r) => require.push(r),
-                None => {
-                    eprint!("classcert-verify: --require takes: unconditional\n{USAGE}");
-                    return ExitCode::from(2);
-                }
-            },
-            "-h" | "--help" => {
-                print!("{USAGE}");
-                return ExitCode::SUCCESS;
-            }
-            "-V" | "--version" => {
-                println!("classcert-verify {}", env!("CARGO_PKG_VERSION"));
-                return ExitCode::SUCCESS;
-            }
-            s if s.starts_with("--") => {
-                eprint!("classcert-verify: unknown option {s}\n{USAGE}");
+    let args: Vec<String> = std::env::args().collect();
+    // `classcert-verify help` is help, unless a file of that name exists.
+    if args.len() == 2
+        && args.get(1).map(String::as_str) == Some("help")
+        && !std::path::Path::new("help").exists()
+    {
+        let mut cmd = <Cli as clap::CommandFactory>::command();
+        let _ = cmd.print_help();
+        return ExitCode::SUCCESS;
+    }
+    let cli = match Cli::try_parse_from(&args) {
+        Ok(c) => c,
+        Err(e) => {
+            if e.use_stderr() && args.iter().any(|a| a == "--json") {
+                let detail = e.kind().to_string();
+                print_out(&json::error("usage", &detail).render());
                 return ExitCode::from(2);
             }
-            s => {
-                if file.replace(s.to_string()).is_some() {
-                    eprint!("classcert-verify: give exactly one certificate file\n{USAGE}");
-                    return ExitCode::from(2);
-                }
-            }
+            let _ = e.print();
+            return ExitCode::from(if e.use_stderr() { 2 } else { 0 });
         }
-    }
-    let Some(path) = file else {
-        eprint!("{USAGE}");
-        return ExitCode::from(2);
     };
-    let bytes = match read_bounded(&path) {
+    let bytes = match read_bounded(&cli.file) {
         Ok(b) => b,
         Err(e) => {
-            eprintln!("classcert-verify: cannot read {path}: {e}");
+            let what = if cli.file == "-" {
+                "standard input".to_string()
+            } else {
+                cli.file.clone()
+            };
+            let detail = format!("cannot read {what}: {e}");
+            if cli.json {
+                print_out(&json::error("io-error", &detail).render());
+            } else {
+                eprintln!("classcert-verify: {detail}");
+            }
             return ExitCode::from(2);
         }
     };
-    let mut report = classcert_verifier::verify_bytes(&bytes);
-    for r in require {
-        report = report.require(r);
+    let stage = Arc::new(AtomicUsize::new(0));
+    let ticker = (!cli.quiet).then(|| Ticker::start(Arc::clone(&stage)));
+    let mut report = classcert_verifier::verify_bytes_with(&bytes, &mut |name| {
+        if let Some(i) = STAGES.iter().position(|s| *s == name) {
+            stage.store(i + 1, Ordering::Relaxed);
+        }
+    });
+    if let Some(t) = ticker {
+        t.stop();
     }
-    let text = if json {
+    for r in &cli.require {
+        report = report.require(match r {
+            Require::Unconditional => Requirement::Unconditional,
+        });
+    }
+    let text = if cli.json {
         report.to_json().render()
+    } else if cli.quiet {
+        let mut t = report.to_text();
+        t.truncate(t.find('\n').map_or(t.len(), |i| i + 1));
+        t
     } else {
         report.to_text()
     };
-    let mut out = std::io::stdout().lock();
-    // A closed pipe (e.g. `| head`) is not an error worth reporting.
-    let _ = out.write_all(text.as_bytes());
-    let _ = out.flush();
+    print_out(&text);
     if report.is_verified() {
         ExitCode::SUCCESS
     } else {
@@ -84,13 +130,88 @@ fn main() -> ExitCode {
     }
 }
 
-/// Reads at most one byte past the format's size limit, so a huge file
-/// costs no more than that.
+/// Writes to standard output; a closed pipe (`| head`) is not an error.
+fn print_out(text: &str) {
+    let mut out = std::io::stdout().lock();
+    let _ = out.write_all(text.as_bytes());
+    let _ = out.flush();
+}
+
+/// Reads at most one byte past the size limit, so a huge input costs no
+/// more than that (the decoder then refuses it as over the limit).
 fn read_bounded(path: &str) -> std::io::Result<Vec<u8>> {
-    use std::io::Read;
-    let f = std::fs::File::open(path)?;
+    let limit = classcert_verifier::limits::MAX_FILE_BYTES as u64 + 1;
     let mut buf = Vec::new();
-    f.take(classcert_format::MAX_FILE_BYTES as u64 + 1)
-        .read_to_end(&mut buf)?;
+    if path == "-" {
+        std::io::stdin().lock().take(limit).read_to_end(&mut buf)?;
+    } else {
+        std::fs::File::open(path)?
+            .take(limit)
+            .read_to_end(&mut buf)?;
+    }
     Ok(buf)
+}
+
+/// Progress on standard error, once a run has taken longer than
+/// [`QUIET_FOR`]: one line updated in place on a terminal, otherwise a
+/// line at most every [`LOG_EVERY`].
+struct Ticker {
+    done: Arc<AtomicUsize>,
+    handle: std::thread::JoinHandle<()>,
+}
+
+const QUIET_FOR: Duration = Duration::from_secs(2);
+const LOG_EVERY: Duration = Duration::from_secs(10);
+
+impl Ticker {
+    fn start(stage: Arc<AtomicUsize>) -> Ticker {
+        let done = Arc::new(AtomicUsize::new(0));
+        let stop = Arc::clone(&done);
+        let handle = std::thread::spawn(move || {
+            let start = Instant::now();
+            let tty = std::io::stderr().is_terminal();
+            let mut last: Option<Instant> = None;
+            let mut shown = false;
+            while stop.load(Ordering::Relaxed) == 0 {
+                std::thread::sleep(Duration::from_millis(200));
+                let now = Instant::now();
+                if now - start < QUIET_FOR {
+                    continue;
+                }
+                let due = tty || last.is_none_or(|t| now - t >= LOG_EVERY);
+                if !due {
+                    continue;
+                }
+                let k = stage.load(Ordering::Relaxed);
+                let name = k
+                    .checked_sub(1)
+                    .and_then(|i| STAGES.get(i))
+                    .copied()
+                    .unwrap_or("reading");
+                let line = format!(
+                    "classcert-verify: checking {name} (step {k} of {}), {} s",
+                    STAGES.len(),
+                    (now - start).as_secs()
+                );
+                let mut err = std::io::stderr().lock();
+                let _ = if tty {
+                    write!(err, "\r\x1b[2K{line}")
+                } else {
+                    writeln!(err, "{line}")
+                };
+                let _ = err.flush();
+                last = Some(now);
+                shown = true;
+            }
+            if shown && tty {
+                let _ = write!(std::io::stderr().lock(), "\r\x1b[2K");
+            }
+        });
+        Ticker { done, handle }
+    }
+
+    fn stop(self) {
+        self.done.store(1, Ordering::Relaxed);
+        let _ = self.handle.join();
+    }
 }
