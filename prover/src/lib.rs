@@ -1,7 +1,9 @@
 //! # classcert-prover
 //!
-//! Computes the class group of an imaginary quadratic order and writes a
-//! certificate that `classcert-verify` re-checks on its own.
+//! Computes the class group of a quadratic order, imaginary or real (and,
+//! for a real one, its fundamental unit and regulator), and writes a
+//! certificate that `classcert-verify` re-checks on its own. Order
+//! witnesses certify a claimed class number of an imaginary order.
 //!
 //! ```text
 //! D ─▶ maximality (factor |D|) ─▶ factor base ─▶ Euler product (X)
@@ -43,8 +45,8 @@ pub fn encode_and_check(
 ) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
     let (bytes, id) = classcert_format::encode_document(doc)
         .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
-    let mut progress = progress::Progress::new(opts.progress);
-    progress.say("self-check: verifying the encoded certificate");
+    let progress = progress::Progress::new(opts.progress);
+    progress.phase("self-check: verifying the encoded certificate");
     let report = classcert_verifier::verify_bytes(&bytes);
     if let Err(rej) = report.outcome {
         return Err(ProveError::SelfCheckFailed(format!(

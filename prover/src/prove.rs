@@ -30,7 +30,8 @@ pub struct Options {
     pub euler_x: Option<u64>,
     /// Pollard-rho budget for factoring `|D|` to support a maximality claim.
     pub factor_budget: u64,
-    pub progress: bool,
+    /// Where progress, counters and warnings go (nowhere by default).
+    pub progress: crate::progress::Hook,
     /// Certify without GRH (maximal orders with D < -4): generation by the
     /// prime ideals up to sqrt(|D|/3) and h from an exact series.
     pub unconditional: bool,
@@ -43,7 +44,7 @@ impl Default for Options {
             factors: None,
             euler_x: None,
             factor_budget: 3_000_000,
-            progress: false,
+            progress: crate::progress::Hook::none(),
             unconditional: false,
         }
     }
@@ -55,6 +56,8 @@ pub enum ProveError {
     Unsupported(String),
     /// The search gave up; nothing false was produced.
     SearchFailed(String),
+    /// The claim given (an order witness's `H`) was shown false.
+    Refuted(String),
     /// The verifier rejected what the prover built: a bug in the prover.
     SelfCheckFailed(String),
 }
@@ -62,9 +65,10 @@ pub enum ProveError {
 impl std::fmt::Display for ProveError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            ProveError::InvalidInput(s) | ProveError::Unsupported(s) | ProveError::SearchFailed(s) => {
-                f.write_str(s)
-            }
+            ProveError::InvalidInput(s)
+            | ProveError::Unsupported(s)
+            | ProveError::SearchFailed(s)
+            | ProveError::Refuted(s) => f.write_str(s),
             ProveError::SelfCheckFailed(s) => write!(
                 f,
                 "internal error: the verifier rejected the prover's own certificate ({s}); please report this"
@@ -171,7 +175,7 @@ pub(crate) fn maximality(
             match factor::factor(&abs, opts.factor_budget) {
                 Some(f) => f,
                 None => {
-                    progress.say("|D| not factored within budget: maximality will not be claimed");
+                    progress.warn("|D| not factored within budget: maximality will not be claimed");
                     return Ok(None);
                 }
             }
@@ -336,7 +340,9 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
         let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
         (x, bound.max(x))
     };
-    progress.say(&format!("generation bound {bound}, analytic cut-off {x}"));
+    progress.phase(&format!(
+        "analytic bound (generation bound {bound}, cut-off {x})"
+    ));
     let primes = primes_up_to(trial);
     let (conductor, d_small) = small_conductor(d, &primes);
     let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
@@ -451,12 +457,14 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     }
     let abs_d = Integer::from(d.abs_ref());
     let mut setup = setup(d, opts)?;
-    let mut progress = std::mem::replace(&mut setup.progress, Progress::new(false));
+    let progress = std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();
     let ceiling = setup.ceiling.clone();
     let k = essential_count(fb, &abs_d);
-    progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
+    progress.phase(&format!(
+        "factor base of {n} prime ideals ({k} essential): eliminating the others"
+    ));
     let mut searcher = Searcher::new(d, fb, k, opts.seed);
 
     // Eliminations for every ideal beyond the essential block.
@@ -469,10 +477,9 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             ))
         })?;
         elim[i] = Some(rel);
-        if (i - k).is_multiple_of(500) {
-            progress.say(&format!("eliminations {}/{}", i - k, n - k));
-        }
+        progress.tick((i + 1 - k) as u64, Some((n - k) as u64));
     }
+    progress.phase("relations on the essential block");
 
     // Relations on the essential block, until the index is confirmed.
     let found = std::cell::Cell::new(0u64);
@@ -490,6 +497,7 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             ));
         };
         found.set(found.get() + 1);
+        progress.tick(found.get(), None);
         Ok(rel)
     };
     // The relation restricted to the essential block, by substituting the
@@ -633,13 +641,6 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             continue;
         };
         hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
-        if found.get().is_multiple_of(200) {
-            progress.say(&format!(
-                "{} relations ({} attempts)",
-                found.get(),
-                searcher.attempts
-            ));
-        }
     }
     let rows = hnf.finish().expect("full rank");
     // positions in the dense block with a pivot > 1 are the generators
