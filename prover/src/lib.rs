@@ -1,8 +1,9 @@
 //! # classcert-prover
 //!
-//! Computes the class group of a quadratic order (and the units when
-//! `D > 0`) and writes a certificate that `classcert-verify` re-checks on
-//! its own.
+//! Computes the class group of a quadratic order, imaginary or real (and,
+//! for a real one, its fundamental unit and regulator), and writes a
+//! certificate that `classcert-verify` re-checks on its own. Order
+//! witnesses certify a claimed class number of an imaginary order.
 //!
 //! ```text
 //! D ─▶ setup: maximality (factor |D|), factor base, Euler product (X)

@@ -26,7 +26,8 @@ pub struct Options {
     pub euler_x: Option<u64>,
     /// Pollard-rho budget for factoring `|D|` to support a maximality claim.
     pub factor_budget: u64,
-    pub progress: bool,
+    /// Where progress, counters and warnings go (nowhere by default).
+    pub progress: crate::progress::Hook,
     /// Certify without GRH (maximal orders with D < -4): generation by the
     /// prime ideals up to sqrt(|D|/3) and h from an exact series.
     pub unconditional: bool,
@@ -39,7 +40,7 @@ impl Default for Options {
             factors: None,
             euler_x: None,
             factor_budget: 3_000_000,
-            progress: false,
+            progress: crate::progress::Hook::none(),
             unconditional: false,
         }
     }
@@ -51,6 +52,8 @@ pub enum ProveError {
     Unsupported(String),
     /// The search gave up; nothing false was produced.
     SearchFailed(String),
+    /// The claim given (an order witness's `H`) was shown false.
+    Refuted(String),
     /// The verifier rejected what the prover built: a bug in the prover.
     SelfCheckFailed(String),
 }
@@ -58,9 +61,10 @@ pub enum ProveError {
 impl std::fmt::Display for ProveError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            ProveError::InvalidInput(s) | ProveError::Unsupported(s) | ProveError::SearchFailed(s) => {
-                f.write_str(s)
-            }
+            ProveError::InvalidInput(s)
+            | ProveError::Unsupported(s)
+            | ProveError::SearchFailed(s)
+            | ProveError::Refuted(s) => f.write_str(s),
             ProveError::SelfCheckFailed(s) => write!(
                 f,
                 "internal error: the verifier rejected the prover's own certificate ({s}); please report this"
@@ -157,7 +161,7 @@ pub(crate) fn collect_factors(
 pub(crate) fn maximality(
     d: &Integer,
     opts: &Options,
-    progress: &mut Progress,
+    progress: &Progress,
 ) -> Result<Option<Vec<PrimePower>>, ProveError> {
     let abs = Integer::from(d.abs_ref());
     let fac: Vec<(Integer, u32)> = match &opts.factors {
@@ -167,7 +171,7 @@ pub(crate) fn maximality(
             match factor::factor(&abs, opts.factor_budget) {
                 Some(f) => f,
                 None => {
-                    progress.say("|D| not factored within budget: maximality will not be claimed");
+                    progress.warn("|D| not factored within budget: maximality will not be claimed");
                     return Ok(None);
                 }
             }
@@ -299,9 +303,9 @@ pub(crate) struct Setup {
 }
 
 pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
-    let mut progress = Progress::new(opts.progress);
+    let progress = Progress::new(opts.progress);
     let abs_d = Integer::from(d.abs_ref());
-    let max_claim = maximality(d, opts, &mut progress)?;
+    let max_claim = maximality(d, opts, &progress)?;
     if opts.unconditional && abs_d > UNCONDITIONAL_MAX {
         return Err(ProveError::Unsupported(format!(
             "--unconditional is for |D| <= {UNCONDITIONAL_MAX}: its generation bound sqrt(|D|/3) and its series grow like sqrt|D|"
@@ -326,7 +330,9 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
         let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
         (x, bound.max(x))
     };
-    progress.say(&format!("generation bound {bound}, analytic cut-off {x}"));
+    progress.phase(&format!(
+        "analytic bound (generation bound {bound}, cut-off {x})"
+    ));
     let primes = primes_up_to(trial);
     let (conductor, d_small) = small_conductor(d, &primes);
     let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();

@@ -38,10 +38,21 @@ fn scratch(test: &str) -> PathBuf {
 }
 
 fn run(cmd: &Path, args: &[&str]) -> Output {
-    Command::new(cmd)
-        .args(args)
-        .output()
+    run_env(cmd, args, &[])
+}
+
+fn run_env(cmd: &Path, args: &[&str], env: &[(&str, &str)]) -> Output {
+    let mut c = Command::new(cmd);
+    c.args(args);
+    for (k, v) in env {
+        c.env(k, v);
+    }
+    c.output()
         .unwrap_or_else(|e| panic!("cannot run {}: {e}", cmd.display()))
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
 }
 
 fn stdout(o: &Output) -> String {
@@ -76,7 +87,7 @@ fn prove_show_verify_round_trip() {
     let show_json = run(&classcert, &["show", cert_s, "--json"]);
     assert!(show_json.status.success());
     assert!(stdout(&show_json).contains("\"class_number\": \"27\""));
-    assert!(stdout(&show_json).contains("\"checked\": false"));
+    assert!(stdout(&show_json).contains("\"kind\": \"claims\""));
 
     let v = run(&verify, &[cert_s]);
     assert_eq!(v.status.code(), Some(0), "{}", stdout(&v));
@@ -179,5 +190,431 @@ fn prover_refuses_bad_input() {
         &["prove", "-84", "-o", cert_s, "-q", "--factors", "2,2,3,5"],
     );
     assert!(!o.status.success(), "wrong --factors accepted");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+// ---- the command line as a new user meets it (issue 8, interface) ----
+
+/// Item 1 and 13: `show --json` gives JSON (schema "classcert/1") for
+/// order-witness certificates too, and errors as JSON.
+#[test]
+fn show_json_for_order_witness_and_errors() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("show-witness");
+    let cert = dir.join("w.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    // Cl(-3299) ≅ Z/3 × Z/9 (from memory; the oracle's brute force agrees)
+    assert_eq!(oracle::group_invariants_bruteforce(-3299), vec![3, 9]);
+    let o = run(
+        &classcert,
+        &[
+            "prove",
+            "-3299",
+            "--claim-class-number",
+            "27",
+            "--claim-invariants",
+            "3,9",
+            "-o",
+            cert_s,
+            "-q",
+        ],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let j = run(&classcert, &["show", cert_s, "--json"]);
+    assert_eq!(j.status.code(), Some(0));
+    let out = stdout(&j);
+    assert!(
+        out.starts_with("{\n  \"schema\": \"classcert/1\",\n  \"kind\": \"claims\","),
+        "{out}"
+    );
+    assert!(
+        out.contains("\"certificate_kind\": \"order-witness\""),
+        "{out}"
+    );
+    assert!(out.contains("\"invariants\": [\"3\", \"9\"]"), "{out}");
+    assert!(out.contains("\"form\": ["), "{out}");
+    assert!(!out.contains("generation_bound"), "{out}");
+    // a file that is not a certificate: JSON of kind "error", exit 2
+    let junk = dir.join("junk.txt");
+    std::fs::write(&junk, "hello\n").expect("write");
+    let j = run(
+        &classcert,
+        &["show", junk.to_str().expect("utf-8"), "--json"],
+    );
+    assert_eq!(j.status.code(), Some(2));
+    assert!(stdout(&j).contains("\"kind\": \"error\""), "{}", stdout(&j));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 2: options are range-checked before any work, with the range.
+#[test]
+fn euler_x_is_range_checked_first() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("euler-x");
+    let cert = dir.join("x.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    for x in ["10", "100000000"] {
+        let t = std::time::Instant::now();
+        let o = run(
+            &classcert,
+            &["prove", "-3299", "-o", cert_s, "--euler-x", x],
+        );
+        assert_eq!(o.status.code(), Some(2), "--euler-x {x}");
+        assert!(stderr(&o).contains("[69, 50000000]"), "{}", stderr(&o));
+        assert!(
+            t.elapsed().as_secs() < 5,
+            "--euler-x {x} was not refused at once"
+        );
+        assert!(!cert.exists());
+    }
+    // in range but too small for this D: refused with a cut-off that works
+    let o = run(
+        &classcert,
+        &["prove", "-3299", "-o", cert_s, "--euler-x", "70"],
+    );
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("or more will do"), "{}", stderr(&o));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 3: an unusable output path is refused before the computation.
+#[test]
+fn output_path_is_checked_first() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    // a 35-digit D takes seconds to prove: the refusal must come at once
+    let t = std::time::Instant::now();
+    let o = run(
+        &classcert,
+        &[
+            "prove",
+            "-40000000000000000000000000000000004",
+            "-o",
+            "/nonexistent/x.cert",
+        ],
+    );
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("does not exist"), "{}", stderr(&o));
+    let t2 = std::time::Instant::now();
+    let d = run(&classcert, &["demo", "--dir", "/nonexistent"]);
+    assert_eq!(d.status.code(), Some(2));
+    assert!(stderr(&d).contains("does not exist"), "{}", stderr(&d));
+    assert!(t.elapsed().as_secs() < 3 && t2.elapsed().as_secs() < 2);
+    // a directory is not a file name
+    let dir = scratch("out-dir");
+    let o = run(
+        &classcert,
+        &["prove", "-3299", "-o", dir.to_str().expect("utf-8")],
+    );
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("is a directory"), "{}", stderr(&o));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 4: a huge D is refused by its size, and messages show at most a
+/// few dozen of its digits.
+#[test]
+fn huge_input_is_not_echoed() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let big = "1".repeat(2000) + "2";
+    let o = run(&classcert, &["prove", &big, "-o", "/tmp/never.cert"]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = stderr(&o);
+    assert!(e.contains("2001 digits") && e.contains("200 bits"), "{e}");
+    assert!(e.len() < 300, "message too long: {} bytes", e.len());
+    let junk = "x".repeat(3000);
+    let o = run(&classcert, &["prove", &junk, "-o", "/tmp/never.cert"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).len() < 400, "{}", stderr(&o));
+}
+
+/// Item 5: one exit scheme, documented in --help.
+#[test]
+fn exit_codes_follow_the_documented_scheme() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("exit-scheme");
+    let cert = dir.join("x.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    let help = run(&classcert, &["prove", "--help"]);
+    let h = stdout(&help);
+    for line in [
+        "0  success",
+        "2  usage",
+        "3  the claim is refuted",
+        "4  the computation failed",
+        "5  internal error",
+    ] {
+        assert!(h.contains(line), "--help lacks {line:?}:\n{h}");
+    }
+    // usage: not an integer, not a discriminant (3 ≡ 3 mod 4), a square
+    for d in ["abc", "3", "16"] {
+        let o = run(&classcert, &["prove", d, "-o", cert_s, "-q"]);
+        assert_eq!(o.status.code(), Some(2), "prove {d}: {}", stderr(&o));
+    }
+    // refuted: #Cl(-3299) = 27 (see above), and a class has order 27, not dividing 26
+    let o = run(
+        &classcert,
+        &[
+            "prove",
+            "-3299",
+            "--claim-class-number",
+            "26",
+            "-o",
+            cert_s,
+            "-q",
+        ],
+    );
+    assert_eq!(o.status.code(), Some(3), "{}", stderr(&o));
+    // failed: H = 9 is below the true 27, but the Euler bound alone cannot
+    // exclude #Cl >= 2H, so the prover gives up without a refutation
+    let o = run(
+        &classcert,
+        &[
+            "prove",
+            "-3299",
+            "--claim-class-number",
+            "9",
+            "-o",
+            cert_s,
+            "-q",
+        ],
+    );
+    assert_eq!(o.status.code(), Some(4), "{}", stderr(&o));
+    assert!(!cert.exists());
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 6: discriminants are parsed strictly, and the rule is explained.
+#[test]
+fn discriminants_are_parsed_strictly() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    for d in [
+        "-3299 ", " -3299", "1_000", "12,345", "+316", "−3299", "-3-",
+    ] {
+        let o = run(&classcert, &["prove", d, "-o", "/tmp/never.cert"]);
+        assert_eq!(o.status.code(), Some(2), "prove '{d}'");
+        assert!(
+            stderr(&o).contains("decimal digits 0-9 only"),
+            "'{d}': {}",
+            stderr(&o)
+        );
+    }
+    let o = run(&classcert, &["prove", "-3", "-4", "-o", "/tmp/never.cert"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        stderr(&o).contains("prove takes one discriminant"),
+        "{}",
+        stderr(&o)
+    );
+    // a negative D works in any position
+    let dir = scratch("strict");
+    let cert = dir.join("x.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    for args in [
+        vec!["prove", "-3299", "-o", cert_s, "-q"],
+        vec!["prove", "-q", "-o", cert_s, "-3299"],
+    ] {
+        let o = run(&classcert, &args);
+        assert_eq!(o.status.code(), Some(0), "{args:?}: {}", stderr(&o));
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 7: the unit is written in the basis (a + b sqrt(D))/2, and D > 0
+/// generators are labelled as prime ideals. D = 316: Cl ≅ Z/3 and
+/// ε = 80 + 9 sqrt(79) = (160 + 9 sqrt(316))/2 (OEIS A349419, see
+/// tests/tests/snapshots.rs).
+#[test]
+fn unit_is_written_out() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("unit");
+    let cert = dir.join("r.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    let o = run(&classcert, &["prove", "316", "-o", cert_s, "-q"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let ascii = stdout(&run_env(&classcert, &["show", cert_s], &[("LC_ALL", "C")]));
+    assert!(
+        ascii.contains("eps = (160 + 9*sqrt(D))/2, of norm 1"),
+        "{ascii}"
+    );
+    assert!(ascii.contains("the prime ideal product ("), "{ascii}");
+    assert!(ascii.contains(" + sqrt(D))/2)"), "{ascii}");
+    assert!(ascii.is_ascii(), "{ascii}");
+    let utf8 = stdout(&run_env(
+        &classcert,
+        &["show", cert_s],
+        &[("LC_ALL", "C.UTF-8")],
+    ));
+    assert!(utf8.contains("ε = (160 + 9·sqrt(D))/2"), "{utf8}");
+    let j = stdout(&run(&classcert, &["show", cert_s, "--json"]));
+    assert!(
+        j.contains("\"a\": \"160\"") && j.contains("\"b\": \"9\""),
+        "{j}"
+    );
+    assert!(j.contains("\"prime_ideals\": ["), "{j}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 8: a non-maximal order shows its exact conductor and field
+/// discriminant: -300 = 10^2 · (-3) (common practice).
+#[test]
+fn conductor_is_exact_when_factored() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("conductor");
+    let cert = dir.join("c.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    let o = run(&classcert, &["prove", "-300", "-o", cert_s, "-q"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let t = stdout(&run(&classcert, &["show", cert_s]));
+    assert!(
+        t.contains("f = 10, field discriminant d_K = D/f^2 = -3"),
+        "{t}"
+    );
+    assert!(!t.contains("divisible by"), "{t}");
+    let j = stdout(&run(&classcert, &["show", cert_s, "--json"]));
+    assert!(
+        j.contains("\"field_discriminant\": \"-3\",\n  \"conductor\": \"10\""),
+        "{j}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 9: Rust debug formatting never reaches users. Every format string
+/// in the prover's sources outside tests, assertions and `expect`s is
+/// checked for `:?}`, and the messages of a few failures for its traces.
+#[test]
+fn no_debug_formatting_in_messages() {
+    let src = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../prover/src");
+    let mut files = vec![src.clone()];
+    let mut offenders = Vec::new();
+    while let Some(p) = files.pop() {
+        if p.is_dir() {
+            for e in std::fs::read_dir(&p).expect("read dir") {
+                files.push(e.expect("entry").path());
+            }
+            continue;
+        }
+        if p.extension().is_none_or(|e| e != "rs") {
+            continue;
+        }
+        let text = std::fs::read_to_string(&p).expect("read source");
+        let body = text.split("#[cfg(test)]").next().unwrap_or("");
+        for (i, line) in body.lines().enumerate() {
+            let internal = ["assert", "expect(", "panic!", "unreachable!", "#[derive"]
+                .iter()
+                .any(|k| line.contains(k));
+            if (line.contains(":?}") || line.contains(":#?}")) && !internal {
+                offenders.push(format!("{}:{}: {line}", p.display(), i + 1));
+            }
+        }
+    }
+    assert!(offenders.is_empty(), "{}", offenders.join("\n"));
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    for args in [
+        vec!["prove", "abc", "-o", "/tmp/never.cert"],
+        vec![
+            "prove",
+            "-84",
+            "-o",
+            "/tmp/never.cert",
+            "--factors",
+            "2,2,3,5",
+        ],
+        vec![
+            "prove",
+            "-84",
+            "-o",
+            "/tmp/never.cert",
+            "--factors",
+            "2,2,x",
+        ],
+    ] {
+        let e = stderr(&run(&classcert, &args));
+        assert!(
+            !e.is_empty() && !e.contains('"') && !e.contains("Some("),
+            "{e}"
+        );
+    }
+}
+
+/// Item 10: off a terminal, progress lines are at least 3 s and at most
+/// 10 s apart; with -q nothing but warnings. A 35-digit D takes a few
+/// seconds.
+#[test]
+fn progress_is_throttled_off_a_terminal() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("progress");
+    let cert = dir.join("p.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    let d = "-40000000000000000000000000000000004";
+    let o = run(&classcert, &["prove", d, "-o", cert_s]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let mut last = 0.0f64;
+    for line in stderr(&o).lines() {
+        let t: f64 = line
+            .strip_prefix('[')
+            .and_then(|l| l.split(" s]").next())
+            .and_then(|t| t.trim().parse().ok())
+            .unwrap_or_else(|| panic!("not a progress line: {line}"));
+        if !line.ends_with("] done") {
+            assert!(t - last >= 2.9, "lines closer than 3 s: {}", stderr(&o));
+        }
+        assert!(t - last <= 10.5, "silent for over 10 s: {}", stderr(&o));
+        last = t;
+    }
+    let q = run(&classcert, &["prove", d, "-o", cert_s, "-q"]);
+    assert_eq!(q.status.code(), Some(0));
+    assert!(q.stderr.is_empty(), "{}", stderr(&q));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Item 12: no stale words in the help.
+#[test]
+fn help_speaks_of_both_signs() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let top = stdout(&run(&classcert, &["--help"]));
+    assert!(top.contains("imaginary or real"), "{top}");
+    let prove = stdout(&run(&classcert, &["prove", "--help"]));
+    assert!(!prove.contains("cyclic groups only"), "{prove}");
+    assert!(prove.contains("--claim-invariants"), "{prove}");
+}
+
+/// Item 11: the demo writes into the directory it names, nowhere else
+/// (about a minute in release builds, so not run by default).
+#[test]
+#[ignore]
+fn demo_writes_into_its_directory() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("demo");
+    let o = run(
+        &classcert,
+        &["demo", "--dir", dir.to_str().expect("utf-8"), "-q"],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stdout(&o).contains(&format!("certificates to {}", dir.display())));
+    assert!(dir.join("qm-40.cert").is_file() && dir.join("qm-appendix.cert").is_file());
     let _ = std::fs::remove_dir_all(&dir);
 }

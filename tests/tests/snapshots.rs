@@ -6,7 +6,7 @@
 //!   `tests/tests/vectors.rs`);
 //! * D = -300 = 10^2 · (-3), a non-maximal order (conductor 10);
 //! * D = 316 = 4 · 79, a real quadratic field with Cl ≅ Z/3 and
-//!   fundamental unit 80 + 9 sqrt 79 of norm 1 (OEIS A349419, checked
+//!   fundamental unit 80 + 9 sqrt 79 = (160 + 9 sqrt 316)/2 of norm 1 (OEIS A349419, checked
 //!   against the stored entry; see `tests/tests/real.rs`).
 //!
 //! The snapshots come from the stored files, not fresh proofs, so prover
@@ -56,7 +56,7 @@ fn minus_300_non_maximal() {
 fn plus_316_real_with_unit() {
     let text = show::text(&decode_file(&golden("plus-316.cert")).expect("decodes"));
     assert!(
-        text.contains("80 + 9 w, w = sqrt 316/2, of norm 1"),
+        text.contains("ε = (160 + 9·sqrt(D))/2, of norm 1"),
         "{text}"
     );
     snapshot_all("plus_316", "plus-316.cert");

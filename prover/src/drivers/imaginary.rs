@@ -30,21 +30,24 @@ fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
 pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let abs_d = Integer::from(d.abs_ref());
     let mut setup = setup(d, opts)?;
-    let mut progress = std::mem::replace(&mut setup.progress, Progress::new(false));
+    let progress = std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();
     let ceiling = setup.ceiling.clone();
     let k = essential_count(fb, &abs_d);
-    progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
+    progress.phase(&format!(
+        "factor base of {n} prime ideals ({k} essential): eliminating the others"
+    ));
     // today's search; anything that implements RelationSource can stand here
     let mut search = FormSearch::new(d, fb, k, opts.seed);
     let source: &mut dyn RelationSource = &mut search;
 
     // Eliminations for every ideal beyond the essential block.
     let mut elim: Vec<Option<Sparse>> = vec![None; n];
-    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &mut progress)?) {
+    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &progress)?) {
         elim[i] = Some(rel.exponents);
     }
+    progress.phase("relations on the essential block");
 
     // Relations on the essential block, until the index is confirmed.
     let found = std::cell::Cell::new(0u64);
@@ -62,6 +65,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             ));
         };
         found.set(found.get() + 1);
+        progress.tick(found.get(), None);
         Ok(rel.exponents)
     };
     // The relation restricted to the essential block, by substituting the
@@ -206,13 +210,6 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             continue;
         };
         hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
-        if found.get().is_multiple_of(200) {
-            progress.say(&format!(
-                "{} relations ({} attempts)",
-                found.get(),
-                source.candidates()
-            ));
-        }
     }
     let rows = hnf.finish().expect("full rank");
     // positions in the dense block with a pivot > 1 are the generators

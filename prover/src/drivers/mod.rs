@@ -49,8 +49,8 @@ pub fn prove_to_bytes(d: &Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32])
 pub fn encode_and_check(doc: &Document, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
     let (bytes, id) = classcert_format::encode_document(doc)
         .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
-    let mut progress = Progress::new(opts.progress);
-    progress.say("self-check: verifying the encoded certificate");
+    let progress = Progress::new(opts.progress);
+    progress.phase("self-check: verifying the encoded certificate");
     let report = classcert_verifier::verify_bytes(&bytes);
     if let Err(rej) = report.outcome {
         return Err(ProveError::SelfCheckFailed(format!(
@@ -68,14 +68,14 @@ pub(crate) fn eliminations(
     source: &mut dyn RelationSource,
     fb: &FactorBase,
     k: usize,
-    progress: &mut Progress,
+    progress: &Progress,
 ) -> Result<Vec<FoundRelation>, ProveError> {
     let n = fb.len();
     let mut out = Vec::with_capacity(n.saturating_sub(k));
     let mut i = k;
     while i < n {
         let end = n.min(i + ELIMINATION_CHUNK);
-        progress.say(&format!("eliminations {}/{}", i - k, n - k));
+        progress.tick((i - k) as u64, Some((n - k) as u64));
         let batch = source.eliminations(i..end, ELIMINATION_ATTEMPTS);
         let got = batch.relations.len();
         out.extend(batch.relations);

@@ -120,20 +120,23 @@ fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
 
 pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let mut setup = setup(d, opts)?;
-    let mut progress = std::mem::replace(&mut setup.progress, Progress::new(false));
+    let progress = std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();
     let k = essential_count(fb, d);
-    progress.say(&format!("factor base: {n} prime ideals, {k} essential"));
+    progress.phase(&format!(
+        "factor base of {n} prime ideals ({k} essential): eliminating the others"
+    ));
     // today's search; anything that implements RelationSource can stand here
     let mut search = ElementSearch::new(d, fb, k, opts.seed);
     let source: &mut dyn RelationSource = &mut search;
     let mut raws: Vec<Raw> = Vec::new();
     let mut elim_of: Vec<Option<usize>> = vec![None; n];
-    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &mut progress)?) {
+    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &progress)?) {
         elim_of[i] = Some(raws.len());
         raws.push(Raw::from_found(rel)?);
     }
+    progress.phase("relations on the essential block, until h* R* is confirmed");
     // ramified primes: (p) = P^2, witness α = p
     for i in 0..k {
         let p = fb.primes[i];
@@ -196,7 +199,6 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let dense_budget = 6 * k + 100;
     let mut unit: Option<Vector> = None;
     let mut confirmed = false;
-    let mut log_r = f64::INFINITY;
     let mut batch = k.max(8);
     let alg = loop {
         let found = source.relations(batch, RELATION_ATTEMPTS).relations;
@@ -208,6 +210,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         for rel in found {
             raws.push(Raw::from_found(rel)?);
             rows.push(substitute(raws.len() - 1, &raws));
+            progress.tick(raws.len() as u64, None);
         }
         batch = (k / 4).max(4);
         if raws.len() > max_relations + n {
@@ -235,7 +238,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 unit = Some(g.into_iter().collect());
             }
             let Some(u) = &unit else { continue };
-            log_r = units::log_power_product(
+            let log_r = units::log_power_product(
                 d,
                 &fs,
                 &u.iter().map(|(i, e)| (*i, e.clone())).collect::<Vec<_>>(),
@@ -259,12 +262,6 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             .count();
         let dense_ok =
             alg.dense_cols.len() <= dense_gens + DENSE_SLACK || raws.len() > dense_budget + n;
-        progress.say(&format!(
-            "{} relations ({} candidates): h* = {h_star}, R* = {log_r:.6}, {} columns left to the echelon block",
-            raws.len(),
-            source.candidates(),
-            alg.dense_cols.len()
-        ));
         if confirmed && dense_ok {
             break alg;
         }

@@ -82,7 +82,8 @@ pub fn prove_witness(
             "the claimed class number {h} is not positive"
         )));
     }
-    let mut progress = Progress::new(opts.progress);
+    let progress = Progress::new(opts.progress);
+    progress.phase("order witness: factoring H, then the analytic bound");
     let abs_d = Integer::from(d.abs_ref());
     // H and its primes
     let fac: Vec<(Integer, u32)> = match h_factors {
@@ -102,20 +103,20 @@ pub fn prove_witness(
         });
     }
     // The analytic side: #Cl lies in [e^lo, e^hi]; H must be > e^hi / 2.
-    let max_claim = maximality(d, opts, &mut progress)?;
+    let max_claim = maximality(d, opts, &progress)?;
     let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
     let primes = primes_up_to(x);
     let (conductor, d_small) = small_conductor(d, &primes);
     let (res, log_h) = analytic(d, x, &primes, &conductor, &d_small)?;
     let log_big_h = Interval::int(h).ln().expect("H >= 1");
     if log_big_h.lo > log_h.hi {
-        return Err(ProveError::InvalidInput(format!(
+        return Err(ProveError::Refuted(format!(
             "H = {h} is larger than the analytic bound allows (#Cl <= {:.4e} under GRH): it is not the class number",
             log_h.hi.to_f64().exp()
         )));
     }
     if log_big_h.lo <= log_h.sub(&Interval::ln2()).hi {
-        return Err(ProveError::InvalidInput(format!(
+        return Err(ProveError::SearchFailed(format!(
             "H = {h} is too small for an order witness: under GRH #Cl lies in [{:.4e}, {:.4e}], so #Cl = 2H or more is not excluded",
             log_h.lo.to_f64().exp(),
             log_h.hi.to_f64().exp()
@@ -150,12 +151,15 @@ pub fn prove_witness(
     let mut rng = Rng::new(opts.seed);
     let mut chosen: Vec<(Integer, Form)> = Vec::new();
     let mut tries = 0usize;
+    progress.phase("searching for classes of the claimed orders");
     for di in invariants.iter().rev() {
         loop {
             tries += 1;
+            progress.tick(tries as u64, Some(MAX_CANDIDATES as u64));
             if tries > MAX_CANDIDATES || fb.is_empty() {
                 return Err(ProveError::SearchFailed(format!(
-                    "no independent classes of orders {invariants:?} among {MAX_CANDIDATES} tried: the group may have another structure; use the full certificate (prove without --claim-class-number)"
+                    "no independent classes of orders {} among {MAX_CANDIDATES} tried: the group may have another structure; use the full certificate (prove without --claim-class-number)",
+                    invariants.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", ")
                 )));
             }
             // prime forms first, then random products of a few of them
@@ -170,7 +174,7 @@ pub fn prove_witness(
                 c
             };
             if pow(&c, &exponent) != principal {
-                return Err(ProveError::InvalidInput(format!(
+                return Err(ProveError::Refuted(format!(
                     "the claim is wrong: the class of ({}, {}, {}) has order not dividing {exponent}",
                     c.a, c.b, c.c
                 )));

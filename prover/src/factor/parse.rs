@@ -35,28 +35,28 @@ pub fn parse_factor_list(s: &str) -> Result<Vec<Integer>, String> {
             None => (token, None),
         };
         let base = parse_decimal(base_str)
-            .map_err(|why| format!("factor list: token {position} ({token:?}): base {why}"))?;
+            .map_err(|why| format!("factor list: token {position} ('{token}'): base {why}"))?;
         if base < 2 {
             return Err(format!(
-                "factor list: token {position} ({token:?}): factor must be at least 2"
+                "factor list: token {position} ('{token}'): factor must be at least 2"
             ));
         }
         let exponent: usize = match exp_str {
             None => 1,
             Some(e) => {
                 let value = parse_decimal(e).map_err(|why| {
-                    format!("factor list: token {position} ({token:?}): exponent {why}")
+                    format!("factor list: token {position} ('{token}'): exponent {why}")
                 })?;
                 match value.to_usize() {
                     Some(0) => {
                         return Err(format!(
-                            "factor list: token {position} ({token:?}): exponent must be at least 1"
+                            "factor list: token {position} ('{token}'): exponent must be at least 1"
                         ))
                     }
                     Some(v) if v <= MAX_LISTED_FACTORS => v,
                     _ => {
                         return Err(format!(
-                            "factor list: token {position} ({token:?}): exponent too large \
+                            "factor list: token {position} ('{token}'): exponent too large \
                              (at most {MAX_LISTED_FACTORS})"
                         ))
                     }
@@ -80,10 +80,10 @@ fn parse_decimal(s: &str) -> Result<Integer, String> {
     }
     if let Some(bad) = s.chars().find(|ch| !ch.is_ascii_digit()) {
         return Err(format!(
-            "{s:?} is not a decimal number (unexpected character {bad:?})"
+            "'{s}' is not a decimal number (unexpected character '{bad}')"
         ));
     }
-    Integer::from_str_radix(s, 10).map_err(|e| format!("{s:?} could not be parsed: {e}"))
+    Integer::from_str_radix(s, 10).map_err(|e| format!("'{s}' could not be parsed: {e}"))
 }
 
 #[cfg(test)]

@@ -242,7 +242,7 @@ impl RelationBatch {
         let kind = match cbor::get_text(m.req("kind")?, "batch.kind")? {
             "eliminations" => BatchKind::Eliminations,
             "relations" => BatchKind::Relations,
-            other => return Err(bad(&format!("unknown kind {other:?}"))),
+            other => return Err(bad(&format!("unknown kind '{other}'"))),
         };
         let first = cbor::get_u64(m.req("first")?, "batch.first")?;
         let end = cbor::get_u64(m.req("end")?, "batch.end")?;

@@ -9,9 +9,11 @@
 //! act the group's appendix quotes the regulator of a real quadratic field
 //! of their choosing, and the reviewer certifies that too.
 
+use super::sink::CliSink;
+use super::Exit;
 use classcert_prover::{prove_to_bytes, Options};
 use rug::Integer;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::time::Instant;
 
@@ -24,22 +26,24 @@ pub const DEMO_Q: &str = "2500000000000000000093";
 
 /// Proves `d`, writes `<dir>/<name>`, verifies the bytes and prints the
 /// verdict; true if verified.
-fn act(d: &Integer, dir: &Path, name: &str) -> Result<bool, ExitCode> {
+fn act(d: &Integer, dir: &Path, name: &str, sink: &'static CliSink) -> Result<bool, ExitCode> {
     println!("1. prove: classcert computes the groups and writes a certificate");
     let t = Instant::now();
     let opts = Options {
-        progress: true,
+        progress: sink.hook(),
         ..Options::default()
     };
-    let (bytes, _id) = prove_to_bytes(d, &opts).map_err(|e| {
+    let proved = prove_to_bytes(d, &opts);
+    sink.finish();
+    let (bytes, _id) = proved.map_err(|e| {
         eprintln!("classcert: demo failed: {e}");
-        ExitCode::from(1)
+        ExitCode::from(Exit::of(&e))
     })?;
     let prove_s = t.elapsed().as_secs_f64();
     let path = dir.join(name);
     classcert_prover::write_certificate(&path, &bytes).map_err(|e| {
         eprintln!("classcert: cannot write {}: {e}", path.display());
-        ExitCode::from(2)
+        ExitCode::from(Exit::Failed)
     })?;
     println!(
         "   wrote {} ({} bytes) in {:.1} s (this includes the prover's own self-check)\n",
@@ -57,16 +61,42 @@ fn act(d: &Integer, dir: &Path, name: &str) -> Result<bool, ExitCode> {
     Ok(report.is_verified())
 }
 
-pub fn run(dir: &Path) -> ExitCode {
-    let (Ok(p), Ok(q)) = (DEMO_P.parse::<Integer>(), DEMO_Q.parse::<Integer>()) else {
-        return ExitCode::from(2);
+/// The demo's directory: the one given (it must exist), else
+/// `classcert-demo` in the system's temporary directory (created).
+fn demo_dir(dir: Option<PathBuf>) -> Result<PathBuf, String> {
+    let dir = match dir {
+        Some(d) => d,
+        None => {
+            let d = std::env::temp_dir().join("classcert-demo");
+            std::fs::create_dir_all(&d)
+                .map_err(|e| format!("cannot create {}: {e}", d.display()))?;
+            d
+        }
     };
+    super::config::writable_dir(&dir)?;
+    Ok(dir)
+}
+
+pub fn run(dir: Option<PathBuf>, quiet: bool) -> ExitCode {
+    let dir = match demo_dir(dir) {
+        Ok(d) => d,
+        Err(e) => return super::fail(Exit::Usage, &format!("demo: {e}")),
+    };
+    let dir = dir.as_path();
+    let (Ok(p), Ok(q)) = (DEMO_P.parse::<Integer>(), DEMO_Q.parse::<Integer>()) else {
+        return super::fail(Exit::Internal, "demo: the built-in numbers do not parse");
+    };
+    let sink = CliSink::install(quiet);
+    println!(
+        "The demo writes its two certificates to {}\n",
+        dir.display()
+    );
     let d = Integer::from(-4) * &p;
     println!("Scenario (invented for this demo): the Quillmoor Cryptography Group proposes");
     println!("the toy parameter set QM-40 on the class group of discriminant D = -4p with");
     println!("  p = {p}");
     println!("A reviewer asks for a certificate of Cl(O_D) before the set is considered.\n");
-    let first = match act(&d, dir, "qm-40.cert") {
+    let first = match act(&d, dir, "qm-40.cert", sink) {
         Ok(v) => v,
         Err(code) => return code,
     };
@@ -75,7 +105,7 @@ pub fn run(dir: &Path) -> ExitCode {
     println!("  q = {q}");
     println!("(its fundamental unit has billions of digits; the certificate keeps it in");
     println!("compact form). The reviewer certifies those numbers as well.\n");
-    let second = match act(&q, dir, "qm-appendix.cert") {
+    let second = match act(&q, dir, "qm-appendix.cert", sink) {
         Ok(v) => v,
         Err(code) => return code,
     };
@@ -83,8 +113,9 @@ pub fn run(dir: &Path) -> ExitCode {
     println!("the listed assumptions; it is not a security assessment of QM-40. That needs a");
     println!("proper review.");
     if first && second {
-        ExitCode::SUCCESS
+        Exit::Success.into()
     } else {
-        ExitCode::from(1)
+        // the prover's self-check passed, so a rejection here is a bug
+        super::fail(Exit::Internal, "demo: a certificate was not verified")
     }
 }

@@ -1,0 +1,312 @@
+//! `prove`'s arguments, checked before any work starts: everything that can
+//! be refused without computing is refused here, with the rule it breaks.
+
+use super::parse::{integer, integer_list, shown, shown_int};
+use classcert_prover::setup::{choose_x, UNCONDITIONAL_MAX};
+use classcert_prover::Options;
+use classcert_verifier::limits::MAX_EULER_X;
+use classcert_verifier::math::euler::{error_bound, MIN_X};
+use classcert_verifier::math::primality::{primality_evidence, Evidence};
+use classcert_verifier::math::Interval;
+use rug::Integer;
+use std::path::{Path, PathBuf};
+
+/// The prover's size limits (`prove::validate` enforces the same; a test
+/// below checks that the two agree).
+pub const MAX_BITS_NEGATIVE: u32 = 400;
+pub const MAX_BITS_POSITIVE: u32 = 200;
+/// Decimal digits of `2^400` (an upper bound on the digits of any `D`
+/// accepted), checked before the number is parsed.
+const MAX_DIGITS: usize = 121;
+/// Digits accepted for `H` and the entries of lists.
+const MAX_LIST_DIGITS: usize = 200;
+
+/// What the user asked for, every part of it checked.
+#[derive(Debug)]
+pub struct ProveConfig {
+    pub d: Integer,
+    pub output: PathBuf,
+    pub opts: Options,
+    pub claim: Option<Claim>,
+}
+
+#[derive(Debug)]
+pub struct Claim {
+    pub h: Integer,
+    pub h_factors: Option<Vec<Integer>>,
+    pub invariants: Option<Vec<Integer>>,
+}
+
+/// The raw arguments of `prove`, as clap gives them.
+pub struct ProveArgs {
+    pub discriminant: Vec<String>,
+    pub output: PathBuf,
+    pub seed: u64,
+    pub factors: Option<String>,
+    pub euler_x: Option<u64>,
+    pub claim_class_number: Option<String>,
+    pub factors_of_h: Option<String>,
+    pub claim_invariants: Option<String>,
+    pub unconditional: bool,
+}
+
+/// Checks that `D` is a discriminant the prover handles; the message names
+/// the rule and shows at most a few dozen digits of `D`.
+pub fn discriminant(s: &str) -> Result<Integer, String> {
+    let d = integer("the discriminant D", s, usize::MAX)
+        .map_err(|e| format!("{e}; a negative D is given as it is, e.g. -3299"));
+    let digits = s.trim_start_matches('-').len();
+    // the size first, so that a huge input costs nothing
+    if d.is_ok() && digits > MAX_DIGITS {
+        return Err(size_message(
+            s.starts_with('-'),
+            &format!("{digits} digits"),
+        ));
+    }
+    let d = d?;
+    let limit = if d > 0 {
+        MAX_BITS_POSITIVE
+    } else {
+        MAX_BITS_NEGATIVE
+    };
+    if d.significant_bits() > limit {
+        return Err(size_message(
+            d < 0,
+            &format!("{} bits", d.significant_bits()),
+        ));
+    }
+    let r = d.mod_u(4);
+    if r != 0 && r != 1 {
+        return Err(format!(
+            "D = {} is not a discriminant: D must be ≡ 0 or 1 (mod 4), and here D ≡ {r} (mod 4)",
+            shown_int(&d)
+        ));
+    }
+    if d.is_perfect_square() {
+        return Err(format!(
+            "D = {} is a square (0 included), so it is not the discriminant of a quadratic order",
+            shown_int(&d)
+        ));
+    }
+    Ok(d)
+}
+
+fn size_message(negative: bool, size: &str) -> String {
+    format!(
+        "D {} 0 has {size}, more than this prover handles: up to {MAX_BITS_NEGATIVE} bits (about 120 digits) for D < 0, {MAX_BITS_POSITIVE} bits (about 60 digits) for D > 0",
+        if negative { "<" } else { ">" }
+    )
+}
+
+/// The directory a file will be written to exists and takes a new file.
+pub fn writable_dir(dir: &Path) -> Result<(), String> {
+    match std::fs::metadata(dir) {
+        Err(_) => return Err(format!("directory {} does not exist", dir.display())),
+        Ok(m) if !m.is_dir() => return Err(format!("{} is not a directory", dir.display())),
+        Ok(_) => {}
+    }
+    let probe = dir.join(format!(".classcert-write-test-{}", std::process::id()));
+    match std::fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(&probe)
+    {
+        Ok(_) => {
+            let _ = std::fs::remove_file(&probe);
+            Ok(())
+        }
+        Err(e) => Err(format!("cannot write in {}: {e}", dir.display())),
+    }
+}
+
+/// The output file can be written: not a directory, in a writable one.
+pub fn output_file(path: &Path) -> Result<(), String> {
+    if path.as_os_str().is_empty() {
+        return Err("the output path is empty".into());
+    }
+    if path.is_dir() {
+        return Err(format!(
+            "{} is a directory; give a file name, e.g. {}",
+            path.display(),
+            path.join("d.cert").display()
+        ));
+    }
+    let dir = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p,
+        _ => Path::new("."),
+    };
+    writable_dir(dir).map_err(|e| format!("cannot write {}: {e}", path.display()))
+}
+
+/// The primes of a list, each checked not composite, multiplying to `target`.
+fn factor_list(flag: &str, s: &str, target: &Integer, what: &str) -> Result<Vec<Integer>, String> {
+    let list = integer_list(flag, s, true, MAX_LIST_DIGITS)?;
+    for p in &list {
+        if *p < 2 || primality_evidence(p) == Evidence::Composite {
+            return Err(format!("{flag}: {} is not prime", shown_int(p)));
+        }
+    }
+    let prod: Integer = list.iter().product();
+    if prod != *target {
+        return Err(format!(
+            "{flag}: the primes multiply to {}, not to {what} = {}",
+            shown_int(&prod),
+            shown_int(target)
+        ));
+    }
+    Ok(list)
+}
+
+impl ProveConfig {
+    pub fn new(a: ProveArgs) -> Result<ProveConfig, String> {
+        let d = match a.discriminant.as_slice() {
+            [one] => discriminant(one)?,
+            [] => return Err("no discriminant given".into()),
+            [first, second, ..] => {
+                return Err(format!(
+                    "prove takes one discriminant, but {} were given ('{}', '{}'{}); prove them one at a time",
+                    a.discriminant.len(),
+                    shown(first),
+                    shown(second),
+                    if a.discriminant.len() > 2 { ", ..." } else { "" }
+                ))
+            }
+        };
+        let abs_d = Integer::from(d.abs_ref());
+        if a.unconditional {
+            if d >= -4 {
+                return Err(format!(
+                    "--unconditional is for D < -4 (maximal imaginary orders); D = {} here",
+                    shown_int(&d)
+                ));
+            }
+            if abs_d > UNCONDITIONAL_MAX {
+                return Err(format!(
+                    "--unconditional is for |D| <= {UNCONDITIONAL_MAX}: its cost grows like sqrt|D|"
+                ));
+            }
+            if a.euler_x.is_some() {
+                return Err(
+                    "--euler-x does not apply with --unconditional (an exact series replaces the Euler product)"
+                        .into(),
+                );
+            }
+        }
+        if let Some(x) = a.euler_x {
+            if !(MIN_X..=MAX_EULER_X).contains(&x) {
+                return Err(format!(
+                    "--euler-x {x} is out of range: X must lie in [{MIN_X}, {MAX_EULER_X}] (the verifier's limits)"
+                ));
+            }
+            // twice the error term must stay below log 2 (the verifier's rule)
+            let enough = Interval::int(&abs_d)
+                .ln()
+                .and_then(|ld| error_bound(x, &ld))
+                .is_some_and(|e| e.hi.to_f64() * 2.0 < std::f64::consts::LN_2);
+            if !enough {
+                return Err(format!(
+                    "--euler-x {x} is too small for this D: the error term of the Euler product must stay below (log 2)/2; X = {} or more will do",
+                    choose_x(&abs_d, 0.3)
+                ));
+            }
+        }
+        let factors = a
+            .factors
+            .as_deref()
+            .map(|s| factor_list("--factors", s, &abs_d, "|D|"))
+            .transpose()?;
+        let claim = match a.claim_class_number.as_deref() {
+            None => None,
+            Some(s) => {
+                if d > 0 {
+                    return Err(
+                        "--claim-class-number is for D < 0 (for D > 0 the regulator is needed too); prove without it".into(),
+                    );
+                }
+                let h = integer("--claim-class-number", s, MAX_LIST_DIGITS)?;
+                if h < 1 {
+                    return Err(format!(
+                        "--claim-class-number {} must be positive",
+                        shown_int(&h)
+                    ));
+                }
+                let h_factors = a
+                    .factors_of_h
+                    .as_deref()
+                    .map(|s| factor_list("--factors-of-h", s, &h, "H"))
+                    .transpose()?;
+                let invariants = match a.claim_invariants.as_deref() {
+                    None => None,
+                    Some(s) => {
+                        let v = integer_list("--claim-invariants", s, false, MAX_LIST_DIGITS)?;
+                        let prod: Integer = v.iter().product();
+                        let chain = v.windows(2).all(|w| w[1].is_divisible(&w[0]));
+                        if prod != h || !chain || v.iter().any(|x| *x <= 1) {
+                            return Err(format!(
+                                "--claim-invariants: the invariants d1,d2,... must exceed 1, each divide the next, and multiply to H = {}",
+                                shown_int(&h)
+                            ));
+                        }
+                        Some(v)
+                    }
+                };
+                Some(Claim {
+                    h,
+                    h_factors,
+                    invariants,
+                })
+            }
+        };
+        output_file(&a.output)?;
+        Ok(ProveConfig {
+            d,
+            output: a.output,
+            opts: Options {
+                seed: a.seed,
+                factors,
+                euler_x: a.euler_x,
+                unconditional: a.unconditional,
+                ..Options::default()
+            },
+            claim,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use classcert_prover::setup::validate;
+    use rug::ops::Pow;
+
+    #[test]
+    fn size_limits_agree_with_the_library() {
+        // the largest D < 0 of 400 bits that is ≡ 0 (mod 4), and one bit more
+        let top = -((Integer::from(1) << MAX_BITS_NEGATIVE) - 4u32);
+        assert!(discriminant(&top.to_string()).is_ok());
+        assert!(validate(&top).is_ok());
+        let over = Integer::from(&top * 2u32);
+        assert!(discriminant(&over.to_string()).is_err());
+        assert!(validate(&over).is_err());
+        let top = (Integer::from(1) << MAX_BITS_POSITIVE) - 4u32;
+        assert!(discriminant(&top.to_string()).is_ok());
+        assert!(validate(&top).is_ok());
+        let over = Integer::from(&top * 2u32);
+        assert!(discriminant(&over.to_string()).is_err());
+        assert!(validate(&over).is_err());
+        assert!(
+            Integer::from(1u32) << MAX_BITS_NEGATIVE < Integer::from(10u32).pow(MAX_DIGITS as u32)
+        );
+    }
+
+    #[test]
+    fn discriminant_rules() {
+        assert!(discriminant("-3299").is_ok());
+        assert!(discriminant("316").is_ok());
+        let e = discriminant("3").unwrap_err();
+        assert!(e.contains("≡ 3 (mod 4)"), "{e}");
+        assert!(discriminant("16").unwrap_err().contains("square"));
+        let e = discriminant(&"1".repeat(2000)).unwrap_err();
+        assert!(e.starts_with("D > 0 has 2000 digits"), "{e}");
+    }
+}
