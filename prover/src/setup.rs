@@ -340,7 +340,7 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
 
     // Analytic side first: it tells the search when to stop.
     let (trace, log_h) = if opts.unconditional {
-        // h itself, without GRH (design note, section 7)
+        // h itself, without GRH (`docs/certificates.md`, section 7)
         let h = series::class_number(d, x)
             .ok_or_else(|| ProveError::SearchFailed("the series could not be evaluated".into()))?;
         let log_h = h

@@ -11,7 +11,8 @@
 //! Conventions: a binary quadratic form a x^2 + b xy + c y^2 is the triple
 //! `(a, b, c)`, and its discriminant is b^2 - 4ac.
 
-// `u64::is_multiple_of` needs Rust 1.87; the workspace MSRV is 1.80.
+// The oracles keep the textbook spelling `n % m == 0` on purpose: they are
+// written from the definitions, not from the main crates' idioms.
 #![allow(unknown_lints, clippy::manual_is_multiple_of)]
 
 /// A binary quadratic form `(a, b, c)`, meaning a x^2 + b xy + c y^2.

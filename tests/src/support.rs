@@ -6,7 +6,7 @@
 //! [`crate::oracle`], from published tables in `vectors/published/`, or
 //! from a theorem named beside the test.
 
-// `u64::is_multiple_of` needs Rust 1.87 (the same allowance as in oracle.rs).
+// The textbook spelling `n % m == 0`, as in the oracles (see oracle.rs).
 #![allow(unknown_lints, clippy::manual_is_multiple_of)]
 
 use classcert_format::Body;

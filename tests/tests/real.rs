@@ -194,7 +194,7 @@ fn random_fundamental_discriminants_against_independent_oracles() {
 #[test]
 fn non_maximal_real_orders() {
     // For D = f^2 d: h(D) R(D) = h(d) R(d) f ∏_{p | f} (1 - χ_d(p)/p)
-    // (design note, section 5; Cox, Thm 7.24), with R(D) / R(d) a positive
+    // (`docs/certificates.md`, section 5; Cox, Thm 7.24), with R(D) / R(d) a positive
     // integer; R(D) from the oracle's continued fraction of the order.
     for (d0, f) in [
         (5i64, 2i64),

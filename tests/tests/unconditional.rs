@@ -1,4 +1,4 @@
-//! Unconditional certificates (design note, section 7): generation by the
+//! Unconditional certificates (`docs/certificates.md`, section 7): generation by the
 //! prime ideals up to sqrt(|D|/3) and h from an exact series, so the
 //! verdict lists no hypothesis. They must agree with the GRH path and with
 //! the oracle's count of reduced forms; `--require unconditional` accepts

@@ -1,4 +1,4 @@
-//! Order-witness certificates (design note, section 6): a claimed class
+//! Order-witness certificates (`docs/certificates.md`, section 6): a claimed class
 //! number H, a class of exact order H and the analytic bound #Cl < 2H.
 //! Every H here is computed independently in the test (the oracle's count
 //! of reduced forms, or the relation prover for a large D), never taken

@@ -28,22 +28,13 @@ use crate::order::{check_conductor, check_discriminant, check_maximality, Maxima
 use crate::registry::{Hypothesis, Theorem};
 use crate::relations::{check_raw_relations, RawOk, Witnesses};
 use crate::report::reason::{reject, Check, Reason};
-use crate::report::{Assumption, GeneratorView, UnitSummary};
+use crate::report::view::{Assumption, CertificateKind, GeneratorView, UnitSummary};
 use crate::units::{check_units, UnitsOk};
 use crate::witness::{
     check_h, check_witness_bound, check_witnesses, FactorsOk, WitnessBoundOk, WitnessesOk,
 };
 use classcert_format::{Body, WitnessBody};
 use rug::Integer;
-
-/// Which kind of certificate a verified result came from.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum CertificateKind {
-    /// Relations, their lattice and the analytic bound.
-    Relations,
-    /// Classes of exact order and the analytic bound.
-    OrderWitness,
-}
 
 /// What is known once every check of one path has passed. Built only in
 /// this module, from the tokens; read through its accessors.

@@ -1,4 +1,4 @@
-//! Order witnesses (design note, section 6): classes `g_i` of exact orders
+//! Order witnesses (`docs/certificates.md`, section 6): classes `g_i` of exact orders
 //! `d_1 | d_2 | …` that are independent generate a subgroup
 //! `≅ ⊕ Z/d_i` of `Cl(O)`, so `H = ∏ d_i` divides `#Cl(O)` (Lagrange;
 //! registry entry `order-witness-lagrange`). The analytic bound then gives
@@ -18,7 +18,7 @@ use crate::order::{check_factorisation, Factorisation};
 use crate::registry::{self, Theorem};
 use crate::relations::forms::Budget;
 use crate::report::reason::{reject, Check, Reason};
-use crate::report::GeneratorView;
+use crate::report::view::GeneratorView;
 use classcert_format::{PrimePower, WitnessGenerator};
 use rug::Integer;
 
@@ -62,11 +62,22 @@ pub(crate) fn check_h<'a>(h: &'a Integer, factors: &'a [PrimePower]) -> Check<Fa
     })
 }
 
+/// Token: every `g_i` has exact order `d_i`.
+#[derive(Debug)]
+struct ExactOrdersOk(());
+
+/// Token: the `g_i` are independent on every `p`-socle.
+#[derive(Debug)]
+struct IndependentOk(());
+
 /// Token: reduced primitive forms `g_i` of exact orders `d_i`, `d_1 | d_2
-/// | …`, `∏ d_i = H`, independent on every `p`-socle.
+/// | …`, `∏ d_i = H`, independent on every `p`-socle; built only from the
+/// two tokens above.
 #[derive(Debug)]
 pub(crate) struct WitnessesOk {
     forms: Vec<(Integer, Form)>,
+    _exact: ExactOrdersOk,
+    _independent: IndependentOk,
 }
 
 impl WitnessesOk {
@@ -135,9 +146,13 @@ pub(crate) fn check_witnesses(
         );
     }
     let mut budget = Budget::new(MAX_COMPOSITIONS);
-    check_exact_orders(&forms, h.factors, d, &mut budget)?;
-    check_independent(&forms, h.factors, d, &mut budget)?;
-    Ok(WitnessesOk { forms })
+    let exact = check_exact_orders(&forms, h.factors, d, &mut budget)?;
+    let independent = check_independent(&forms, &exact, h.factors, d, &mut budget)?;
+    Ok(WitnessesOk {
+        forms,
+        _exact: exact,
+        _independent: independent,
+    })
 }
 
 fn power(g: &Form, e: &Integer, d: &Integer, budget: &mut Budget) -> Check<Form> {
@@ -154,7 +169,7 @@ fn check_exact_orders(
     factors: &[PrimePower],
     d: &Integer,
     budget: &mut Budget,
-) -> Check<()> {
+) -> Check<ExactOrdersOk> {
     let principal = Form::principal(d);
     for (i, (di, g)) in forms.iter().enumerate() {
         if power(g, di, d, budget)? != principal {
@@ -178,19 +193,21 @@ fn check_exact_orders(
             }
         }
     }
-    Ok(())
+    Ok(ExactOrdersOk(()))
 }
 
 /// Independence: the map `⊕ Z/d_i -> Cl` is injective iff it is on the
 /// `p`-socle for every prime `p | H` (a nonzero kernel has an element of
 /// prime order; common practice): no nonzero `c ∈ (Z/p)^r` with
 /// `∏ (g_i^(d_i/p))^(c_i) = 1`, checked by brute force under a cap.
+/// Needs exact orders: the socle elements `g_i^(d_i/p)` then have order `p`.
 fn check_independent(
     forms: &[(Integer, Form)],
+    _exact: &ExactOrdersOk,
     factors: &[PrimePower],
     d: &Integer,
     budget: &mut Budget,
-) -> Check<()> {
+) -> Check<IndependentOk> {
     let principal = Form::principal(d);
     let mut combos: u64 = 0;
     for pp in factors {
@@ -240,7 +257,7 @@ fn check_independent(
             }
         }
     }
-    Ok(())
+    Ok(IndependentOk(()))
 }
 
 /// Token: `H <= #Cl(O) < 2H`, so `#Cl(O) = H`.

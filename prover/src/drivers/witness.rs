@@ -1,5 +1,5 @@
 //! Order-witness certificates for a claimed class number `H` of an
-//! imaginary quadratic order (design note, section 6): factor `H`, prove
+//! imaginary quadratic order (`docs/certificates.md`, section 6): factor `H`, prove
 //! its primes, find a class of exact order `H` among products of prime
 //! forms, and check beforehand that the Euler product bounds `#Cl < 2H`.
 //!

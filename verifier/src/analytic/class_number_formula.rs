@@ -1,5 +1,5 @@
 //! The class number formula for quadratic orders and the conclusion step
-//! (design note, section 5).
+//! (`docs/certificates.md`, section 5).
 //!
 //! `h(D) = w sqrt|D| L(1, χ_D) / (2π)` for `D < 0` and
 //! `h(D) R(D) = sqrt(D) L(1, χ_D) / 2` for `D > 0`, with
@@ -131,4 +131,81 @@ pub(crate) fn check_conclusion(
         );
     }
     Ok(AnalyticOk { bound })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analytic::Method;
+
+    fn exact_log_l(h: u64, w: u64, abs_d: u64) -> Interval {
+        // L(1, χ_D) = 2π h / (w sqrt|D|) for D < 0 (the formula itself)
+        Interval::pi()
+            .mul(&Interval::u64(2 * h))
+            .div(&Interval::u64(w).mul(&Interval::u64(abs_d).sqrt().unwrap()))
+            .unwrap()
+            .ln()
+            .unwrap()
+    }
+
+    #[test]
+    fn enclosure_of_log_h_for_a_field_and_an_order() {
+        // h(-23) = 3 (OEIS A006203); h(-92) = 3: -92 = 2² · -23 with
+        // χ_{-23}(2) = 1, so h(-92) = 3 · 2 · (1 - 1/2) (Cox, Thm 7.24).
+        let log_l = exact_log_l(3, 2, 23);
+        let ln3 = Interval::u64(3).ln().unwrap();
+        let field = log_h_enclosure(
+            &Integer::from(-23),
+            2,
+            &log_l,
+            &[],
+            &Integer::from(-23),
+            1_000_000,
+        )
+        .unwrap();
+        assert!(field.lo <= ln3.lo && ln3.hi <= field.hi);
+        let order = log_h_enclosure(
+            &Integer::from(-92),
+            2,
+            &log_l,
+            &[(2, 1)],
+            &Integer::from(-23),
+            1_000_000,
+        )
+        .unwrap();
+        assert!(order.lo <= ln3.lo && ln3.hi <= order.hi);
+        assert!(order.hi.to_f64() - order.lo.to_f64() < 1e-20);
+    }
+
+    fn bound(center: u64, radius: (i64, u64)) -> BoundOk {
+        let c = Interval::u64(center).ln().unwrap();
+        let r = Interval::ratio(radius.0, radius.1).unwrap();
+        BoundOk {
+            log_h: c.widen(&r),
+            method: Method::EulerProduct { x: 1000 },
+            theorems: Vec::new(),
+        }
+    }
+
+    #[test]
+    fn conclusion_both_ways() {
+        // log h known to ±0.1 around log 27: h* = 27 is confirmed; h* = 54
+        // could be 2h; h* = 13 is below the bound (inconsistent).
+        let b = || bound(27, (1, 10));
+        assert!(check_conclusion(b(), &Integer::from(27), None).is_ok());
+        let e = check_conclusion(b(), &Integer::from(54), None).unwrap_err();
+        assert_eq!(e.reason, Reason::ClassNumberNotConfirmed);
+        let e = check_conclusion(b(), &Integer::from(13), None).unwrap_err();
+        assert_eq!(e.reason, Reason::AnalyticInconsistent);
+        // D > 0: h* R* against log h R; R* twice too large is not confirmed
+        let unit = |r: u64| UnitFacts {
+            regulator: Interval::u64(r),
+            norm: 1,
+            steps: 1,
+        };
+        assert!(check_conclusion(bound(54, (1, 10)), &Integer::from(27), Some(&unit(2))).is_ok());
+        let e =
+            check_conclusion(bound(54, (1, 10)), &Integer::from(27), Some(&unit(4))).unwrap_err();
+        assert_eq!(e.reason, Reason::ClassNumberRegulatorNotConfirmed);
+    }
 }

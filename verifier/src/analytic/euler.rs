@@ -14,8 +14,7 @@
 //! in for it. Everything is computed in outward-rounded intervals.
 
 use super::class_number_formula::log_h_enclosure;
-use super::interval::Interval;
-use super::stated_contains;
+use super::interval::{stated_contains, Interval};
 use crate::arith::kronecker_prime;
 use crate::limits::{MAX_CHECKPOINTS, MAX_EULER_X};
 use crate::order::{ConductorOk, OrderOk};
@@ -255,8 +254,10 @@ mod tests {
         compute(x, &primes, &|p| kronecker_prime(&dd, p), &[], &ld).unwrap()
     }
 
-    // Cross-check figures from the project's design note (computed there
-    // with plain doubles; not values from a published table).
+    // Cross-check figures computed with plain doubles when the Euler
+    // product was first written (not values from a published table); the
+    // true values are log(π/4) for d = -4 (Leibniz) and log(3π/sqrt 23)
+    // for d = -23 (h(-23) = 3, OEIS A006203, and the class number formula).
     #[test]
     fn minus_4_at_1000() {
         let r = run(-4, 1000);

@@ -1,4 +1,4 @@
-//! Step 5: the analytic bound (design note, sections 5 and 7).
+//! Step 5: the analytic bound (`docs/certificates.md`, sections 5 and 7).
 //!
 //! An enclosure of `log h` (`log h R` for `D > 0`) comes either from the
 //! Euler product of Belabas and Friedman under GRH ([`euler`]) or, without
@@ -99,29 +99,4 @@ pub(crate) fn check_bound(
         method,
         theorems: ids.iter().copied().filter_map(registry::lookup).collect(),
     })
-}
-
-/// A stated enclosure must contain the verifier's own (`reason` if not).
-pub(crate) fn stated_contains(
-    stated: &classcert_format::Bounds,
-    mine: &Interval,
-    reason: Reason,
-    what: &str,
-) -> Check<Interval> {
-    let Some(claimed) = Interval::from_bounds(stated) else {
-        return reject(reason, format!("the stated {what} is out of range"));
-    };
-    if !claimed.contains(mine) {
-        return reject(
-            reason,
-            format!(
-                "the stated {what} [{:.15}, {:.15}] does not contain the rigorous enclosure [{:.15}, {:.15}]",
-                claimed.lo.to_f64(),
-                claimed.hi.to_f64(),
-                mine.lo.to_f64(),
-                mine.hi.to_f64()
-            ),
-        );
-    }
-    Ok(claimed)
 }

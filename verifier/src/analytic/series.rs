@@ -16,8 +16,7 @@
 //! |Σ_{n > N}| <= 2 sqrt|D| / (π (N + 1)) · q^{N+1} / (1 - q),   q = e^{-π (N + 1) / |D|}
 //! ```
 
-use super::interval::Interval;
-use super::stated_contains;
+use super::interval::{stated_contains, Interval};
 use crate::arith::kronecker_prime;
 use crate::limits::MAX_SERIES_TERMS;
 use crate::order::OrderOk;

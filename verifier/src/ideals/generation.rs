@@ -1,4 +1,4 @@
-//! Step 1: the factor base generates the class group (design note,
+//! Step 1: the factor base generates the class group (`docs/certificates.md`,
 //! section 1).
 //!
 //! A generation statement from the registry says that the invertible prime

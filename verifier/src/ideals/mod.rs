@@ -1,5 +1,5 @@
 //! Prime ideals of the order, and the statement that they generate its
-//! class group (design note, sections 1 and 2).
+//! class group (`docs/certificates.md`, sections 1 and 2).
 //!
 //! [`OrderArithmetic`] is the seam between the checks and the arithmetic of
 //! one kind of order: what a factor-base entry means, which primes need an

@@ -78,7 +78,8 @@ impl OrderArithmetic for QuadraticOrder<'_> {
         index: usize,
         relation: &Relation,
     ) -> Check<bool> {
-        elements::check_raw(self.d, ideals, index, relation)
+        let ideal = |i: u32| ideals.get(i as usize).map(|q| (q.p, q.b));
+        elements::check_raw(self.d, &ideal, index, relation)
     }
 }
 

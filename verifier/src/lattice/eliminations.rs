@@ -1,4 +1,4 @@
-//! Eliminations (design note, section 3): each factor-base ideal outside
+//! Eliminations (`docs/certificates.md`, section 3): each factor-base ideal outside
 //! the generator block is `±1` times a product of ideals already accounted
 //! for, by a relation. So its class lies in the subgroup the generators
 //! span, and `Z^n / L` is the quotient of the generator block alone.

@@ -6,11 +6,11 @@
 //! `max(B_gen, X)`, so trial division to that bound finds every conductor
 //! prime they can meet; larger ones are folded into the analytic error
 //! (see `analytic/class_number_formula.rs`). No factorisation of `D` is
-//! needed (design note, section 0).
+//! needed (`docs/certificates.md`, section 0).
 
 use crate::arith::{primes_up_to, small_conductor};
-use crate::report::prime_powers_text;
 use crate::report::reason::{reject, Check, Reason};
+use crate::report::view::prime_powers_text;
 use rug::Integer;
 
 /// Token: the conductor primes up to the bound, as stated.

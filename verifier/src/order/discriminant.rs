@@ -4,7 +4,7 @@
 
 use crate::limits::MAX_DISCRIMINANT_BITS;
 use crate::report::reason::{reject, Check, Reason};
-use crate::report::short_number;
+use crate::report::view::short_number;
 use classcert_format::Order;
 use rug::Integer;
 

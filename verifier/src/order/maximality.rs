@@ -11,7 +11,7 @@ use crate::limits::{MAX_DISCRIMINANT_BITS, MAX_FACTORS, MAX_PROOF_POWERS};
 use crate::primality::{self, ProofError, Status, Used};
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, Check, Reason};
-use crate::report::short_number;
+use crate::report::view::short_number;
 use classcert_format::PrimePower;
 use rug::ops::Pow;
 use rug::Integer;

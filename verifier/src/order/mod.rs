@@ -1,4 +1,4 @@
-//! Step 0: the order itself (design note `docs/certificates.md`, section 0).
+//! Step 0: the order itself (`docs/certificates.md`, section 0).
 //!
 //! A valid discriminant ([`discriminant`]), the primes of the conductor up
 //! to the trial-division bound ([`conductor`]), and, when the certificate

@@ -10,8 +10,11 @@
 pub mod bpsw;
 mod morrison;
 mod pocklington;
+mod step;
 
-use crate::limits::*;
+pub use step::ProofError;
+
+use crate::limits::{MAX_DISCRIMINANT_BITS, MAX_PROOF_DEPTH};
 use bpsw::{primality_evidence, Evidence};
 use classcert_format::PrimalityEvidence;
 use rug::Integer;
@@ -25,61 +28,11 @@ pub enum Status {
     AssumedBpsw,
 }
 
-/// Why evidence was refused.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub enum ProofError {
-    /// The number fails the Baillie–PSW test: it is composite.
-    Composite(Integer),
-    /// The proof does not show what it claims.
-    Invalid(String),
-    /// The proof is deeper or longer than the verifier allows.
-    OverLimit,
-}
-
 /// What checking a proof used, for the verdict.
 #[derive(Debug, Default, Clone, Copy)]
 pub struct Used {
     pub pocklington: bool,
     pub morrison: bool,
-}
-
-/// The factored part `F` of `m = N ∓ 1`, one prime power at a time: `q`
-/// above the previous one, `e >= 1`, and the running product divides `m`
-/// (`q^e` is bounded by `m` before it is formed).
-pub(crate) struct Factored<'a> {
-    m: &'a Integer,
-    pub(crate) f: Integer,
-    prev: Integer,
-}
-
-impl<'a> Factored<'a> {
-    pub(crate) fn new(m: &'a Integer) -> Self {
-        Factored {
-            m,
-            f: Integer::from(1),
-            prev: Integer::new(),
-        }
-    }
-
-    pub(crate) fn push(&mut self, q: &Integer, e: u32) -> Result<(), String> {
-        if *q <= self.prev || e == 0 || e > MAX_DISCRIMINANT_BITS {
-            return Err("factors must be increasing, with positive exponents".into());
-        }
-        self.prev = q.clone();
-        if u64::from(e) * u64::from(q.significant_bits().saturating_sub(1))
-            > u64::from(self.m.significant_bits())
-        {
-            return Err(format!("{q}^{e} exceeds {}", self.m));
-        }
-        self.f *= Integer::from(rug::ops::Pow::pow(q, e));
-        if !self.m.is_divisible(&self.f) {
-            return Err(format!(
-                "the product of the factors up to {q} does not divide {}",
-                self.m
-            ));
-        }
-        Ok(())
-    }
 }
 
 /// Checks that `n` is prime by `ev`. `work` counts modular
@@ -100,13 +53,37 @@ pub fn check(
             Evidence::ProvenPrime => Ok(Status::Proven),
             Evidence::ProbablePrime => Ok(Status::AssumedBpsw),
         },
+        PrimalityEvidence::Pocklington { factors } => {
+            used.pocklington = true;
+            pocklington::check_step(n, factors, work)?;
+            let subs = factors.iter().map(|f| (&f.q, &*f.evidence));
+            check_factors(subs, depth, work, used)
+        }
         PrimalityEvidence::Morrison {
             lucas_p,
             lucas_q,
             factors,
-        } => morrison::check(n, lucas_p, lucas_q, factors, depth, work, used),
-        PrimalityEvidence::Pocklington { factors } => {
-            pocklington::check(n, factors, depth, work, used)
+        } => {
+            used.morrison = true;
+            morrison::check_step(n, lucas_p, lucas_q, factors, work)?;
+            let subs = factors.iter().map(|f| (&f.q, &*f.evidence));
+            check_factors(subs, depth, work, used)
         }
     }
+}
+
+/// The evidence of each prime factor of a step, one level down the tree.
+fn check_factors<'a>(
+    subs: impl Iterator<Item = (&'a Integer, &'a PrimalityEvidence)>,
+    depth: u32,
+    work: &mut u64,
+    used: &mut Used,
+) -> Result<Status, ProofError> {
+    let mut status = Status::Proven;
+    for (q, ev) in subs {
+        if check(q, ev, depth + 1, work, used)? == Status::AssumedBpsw {
+            status = Status::AssumedBpsw;
+        }
+    }
+    Ok(status)
 }

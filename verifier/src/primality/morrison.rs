@@ -17,9 +17,10 @@
 //! companion `V_k` by `Δ U_k = 2 V_{k+1} - P V_k`, and `gcd(Δ, N) = 1`,
 //! so the verifier tests `W_k = 2 V_{k+1} - P V_k` instead.
 
-use super::{check as check_prime, Factored, ProofError, Status, Used};
+use super::step::{invalid, Factored, ProofError};
 use crate::arith::jacobi_big;
-use crate::limits::*;
+use crate::limits::{MAX_LUCAS_PARAMETER_BITS, MAX_PROOF_FACTORS};
+use crate::report::view::short_number;
 use classcert_format::MorrisonFactor;
 use rug::Integer;
 
@@ -63,25 +64,27 @@ fn lucas_du(p: &Integer, q: &Integer, k: &Integer, n: &Integer) -> Integer {
     (Integer::from(&v1 << 1u32) - Integer::from(p * &v0)).modulo(n)
 }
 
-pub(super) fn check(
+/// Checks the step `N + 1 = F R` with the Lucas parameters `P`, `Q` and
+/// the stated factors of `F` (their own primality is checked one level
+/// down the tree, by the caller).
+pub(super) fn check_step(
     n: &Integer,
     p: &Integer,
     q: &Integer,
     factors: &[MorrisonFactor],
-    depth: u32,
     work: &mut u64,
-    used: &mut Used,
-) -> Result<Status, ProofError> {
-    used.morrison = true;
-    let invalid = |why: String| Err(ProofError::Invalid(format!("{n}: {why}")));
+) -> Result<(), ProofError> {
     if *n < 5 || n.is_even() {
-        return invalid("the theorem is used for odd N >= 5 only".into());
+        return Err(invalid(n, "the theorem is used for odd N >= 5 only"));
     }
     if factors.len() > MAX_PROOF_FACTORS {
         return Err(ProofError::OverLimit);
     }
     if Integer::from(q.gcd_ref(n)) != 1 {
-        return invalid(format!("gcd(Q = {q}, N) is not 1"));
+        return Err(invalid(
+            n,
+            format!("gcd(Q = {}, N) is not 1", short_number(q)),
+        ));
     }
     // |P|, |Q| < 2^MAX_LUCAS_PARAMETER_BITS keeps P^2 - 4Q in an i64.
     let (Some(p_small), Some(q_small)) = (small(p), small(q)) else {
@@ -89,7 +92,10 @@ pub(super) fn check(
     };
     let delta = p_small * p_small - 4 * q_small;
     if jacobi_big(delta, n) != -1 {
-        return invalid(format!("((P^2 - 4Q) / N) is not -1 for P = {p}, Q = {q}"));
+        return Err(invalid(
+            n,
+            format!("((P^2 - 4Q) / N) is not -1 for P = {p}, Q = {q}"),
+        ));
     }
     let n1 = Integer::from(n + 1u32);
     if *work < 1 {
@@ -97,38 +103,34 @@ pub(super) fn check(
     }
     *work -= 1;
     if lucas_du(p, q, &n1, n) != 0 {
-        return invalid("N does not divide U_(N+1)".into());
+        return Err(invalid(n, "N does not divide U_(N+1)"));
     }
     let mut fp = Factored::new(&n1);
-    let mut status = Status::Proven;
     for mf in factors {
-        if let Err(why) = fp.push(&mf.q, mf.e) {
-            return invalid(why);
-        }
+        fp.push(&mf.q, mf.e).map_err(|why| invalid(n, why))?;
         if *work < 1 {
             return Err(ProofError::OverLimit);
         }
         *work -= 1;
         let w = lucas_du(p, q, &Integer::from(&n1 / &mf.q), n);
         if w.gcd(n) != 1 {
-            return invalid(format!("gcd(U_((N+1)/{}), N) is not 1", mf.q));
-        }
-        match check_prime(&mf.q, &mf.evidence, depth + 1, work, used)? {
-            Status::Proven => {}
-            Status::AssumedBpsw => status = Status::AssumedBpsw,
+            return Err(invalid(n, format!("gcd(U_((N+1)/{}), N) is not 1", mf.q)));
         }
     }
     let f1 = Integer::from(&fp.f - 1u32);
     if Integer::from(f1.square_ref()) <= *n {
-        return invalid("the factored part F of N + 1 has (F - 1)^2 <= N".into());
+        return Err(invalid(
+            n,
+            "the factored part F of N + 1 has (F - 1)^2 <= N",
+        ));
     }
-    Ok(status)
+    Ok(())
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::primality::check as check_prime;
+    use crate::primality::{check as check_prime, Status, Used};
     use classcert_format::PrimalityEvidence;
 
     #[test]

@@ -17,62 +17,55 @@
 //! way, so a proof is a tree; below 2^64 a Baillie–PSW pass is a proof.
 //!
 
-use super::{check as check_prime, Factored, ProofError, Status, Used};
-use crate::limits::*;
+use super::step::{invalid, Factored, ProofError};
+use crate::limits::MAX_PROOF_FACTORS;
 use classcert_format::PocklingtonFactor;
 use rug::Integer;
 
-/// Checks the step `N - 1 = F R` with the stated factors of `F`.
-pub(super) fn check(
+/// Checks the step `N - 1 = F R` with the stated factors of `F` (their own
+/// primality is checked one level down the tree, by the caller).
+pub(super) fn check_step(
     n: &Integer,
     factors: &[PocklingtonFactor],
-    depth: u32,
     work: &mut u64,
-    used: &mut Used,
-) -> Result<Status, ProofError> {
-    used.pocklington = true;
-    let invalid = |why: String| Err(ProofError::Invalid(format!("{n}: {why}")));
+) -> Result<(), ProofError> {
     if *n < 5 || n.is_even() {
-        return invalid("the theorem is used for odd N >= 5 only".into());
+        return Err(invalid(n, "the theorem is used for odd N >= 5 only"));
     }
     if factors.len() > MAX_PROOF_FACTORS {
         return Err(ProofError::OverLimit);
     }
     let n1 = Integer::from(n - 1u32);
     let mut fp = Factored::new(&n1);
-    let mut status = Status::Proven;
     for pf in factors {
-        if let Err(why) = fp.push(&pf.q, pf.e) {
-            return invalid(why);
-        }
+        fp.push(&pf.q, pf.e).map_err(|why| invalid(n, why))?;
         if pf.base < 2 || pf.base >= n1 {
-            return invalid(format!("base {} is not in [2, N - 2]", pf.base));
+            return Err(invalid(n, format!("base {} is not in [2, N - 2]", pf.base)));
         }
         if *work < 2 {
             return Err(ProofError::OverLimit);
         }
         *work -= 2;
         let Ok(fermat) = pf.base.clone().pow_mod(&n1, n) else {
-            return invalid("modular power failed".into());
+            return Err(invalid(n, "modular power failed"));
         };
         if fermat != 1 {
-            return invalid(format!("{}^(N-1) is not 1 mod N", pf.base));
+            return Err(invalid(n, format!("{}^(N-1) is not 1 mod N", pf.base)));
         }
         let Ok(part) = pf.base.clone().pow_mod(&Integer::from(&n1 / &pf.q), n) else {
-            return invalid("modular power failed".into());
+            return Err(invalid(n, "modular power failed"));
         };
         if (part - 1u32).gcd(n) != 1 {
-            return invalid(format!("gcd({}^((N-1)/{}) - 1, N) is not 1", pf.base, pf.q));
-        }
-        match check_prime(&pf.q, &pf.evidence, depth + 1, work, used)? {
-            Status::Proven => {}
-            Status::AssumedBpsw => status = Status::AssumedBpsw,
+            return Err(invalid(
+                n,
+                format!("gcd({}^((N-1)/{}) - 1, N) is not 1", pf.base, pf.q),
+            ));
         }
     }
     if Integer::from(fp.f.square_ref()) < *n {
-        return invalid("the factored part F of N - 1 has F^2 < N".into());
+        return Err(invalid(n, "the factored part F of N - 1 has F^2 < N"));
     }
-    Ok(status)
+    Ok(())
 }
 
 #[cfg(test)]

@@ -1,4 +1,4 @@
-//! Derived relations as integer combinations of raw ones (design note,
+//! Derived relations as integer combinations of raw ones (`docs/certificates.md`,
 //! section 3): an integer combination of relations is a relation, so a
 //! row of `H` or an elimination is shown by its coefficients over the raw
 //! relations, summed exactly under a work budget.

@@ -27,7 +27,6 @@
 //! `α' = α / ∏_{e_i < 0} p_i^{-e_i}`, because `P conj(P) = (p)`.
 
 use crate::analytic::interval::Interval;
-use crate::ideals::quadratic::QuadraticIdeal;
 use crate::limits::*;
 use crate::report::reason::{reject, Check, Reason};
 use classcert_format::{Relation, Witness};
@@ -36,9 +35,10 @@ use rug::Integer;
 
 /// Checks the raw relation `rel` (index `k`) against (*); returns whether
 /// `N(α) < 0`.
+/// `ideal(i)` is `(p_i, b_i)` of factor-base entry `i`, if it exists.
 pub(crate) fn check_raw(
     d: &Integer,
-    ideals: &[QuadraticIdeal],
+    ideal: &dyn Fn(u32) -> Option<(u64, u64)>,
     k: usize,
     rel: &Relation,
 ) -> Check<bool> {
@@ -75,14 +75,14 @@ pub(crate) fn check_raw(
             return bad("entries must be nonzero and in increasing index order".into());
         }
         prev = Some(*i);
-        let Some(QuadraticIdeal { p, b, .. }) = ideals.get(*i as usize) else {
+        let Some((p, b)) = ideal(*i) else {
             return bad(format!("index {i} is outside the factor base"));
         };
         // |e| log p <= log |N| keeps p^|e| no larger than the norm.
         let Some(abs_e) = Integer::from(e.abs_ref()).to_u32() else {
             return bad(format!("exponent {e} at index {i} exceeds the norm"));
         };
-        let p_int = Integer::from(*p);
+        let p_int = Integer::from(p);
         let bits = u64::from(abs_e).saturating_mul(u64::from(p_int.significant_bits() - 1));
         if bits > u64::from(norm.significant_bits()) {
             return bad(format!("p = {p} to the power {e} exceeds the norm"));
@@ -94,7 +94,7 @@ pub(crate) fn check_raw(
         norm /= pe;
         if !d.is_divisible(&p_int) {
             // split p: α must not lie in the other prime above p
-            let yb = Integer::from(y * *b);
+            let yb = Integer::from(y * b);
             let t = if *e > 0 {
                 Integer::from(x + &yb)
             } else {
@@ -155,11 +155,7 @@ mod tests {
         // 1 ≡ 61 (mod 12). α = (7 + sqrt 61)/2 has norm (49 - 61)/4 = -3, and
         // (7 - 1)/2 = 3 ≡ 0 mod 3 so α ∈ P_3 (common practice).
         let d = Integer::from(61);
-        let fb = vec![QuadraticIdeal {
-            p: 3,
-            b: 1,
-            form: crate::ideals::form::Form::new(Integer::from(3), Integer::from(1), &d).unwrap(),
-        }];
+        let fb = |i: u32| (i == 0).then_some((3u64, 1u64));
         assert!(check_raw(&d, &fb, 0, &rel(vec![(0, 1)], 7, 1)).unwrap());
         // the same element is not in conj(P_3)
         let e = check_raw(&d, &fb, 0, &rel(vec![(0, -1)], 7, 1)).unwrap_err();

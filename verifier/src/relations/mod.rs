@@ -1,4 +1,4 @@
-//! Step 2: relations hold (design note, section 2).
+//! Step 2: relations hold (`docs/certificates.md`, section 2).
 //!
 //! A relation is a vector `e` over the factor base with `∏ P_i^{e_i}`
 //! principal. It is shown in one of two ways, each checked exactly:

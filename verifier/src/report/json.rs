@@ -3,9 +3,9 @@
 //! are decimal strings, counts and bounds are JSON numbers.
 
 use super::text::not_proven;
+use super::view::CertificateKind;
 use super::{GeneratorView, Report};
 use crate::analytic::Method;
-use crate::pipeline::CertificateKind;
 use classcert_format::json::Json;
 use rug::Integer;
 

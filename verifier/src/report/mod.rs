@@ -6,55 +6,16 @@
 pub mod json;
 pub mod reason;
 pub mod text;
+pub mod view;
 
-pub use crate::pipeline::{CertificateKind, Verified};
+pub use crate::pipeline::Verified;
 pub use reason::{Reason, Rejection};
+pub use view::{
+    decimal, generator_text, invariants_text, prime_powers_text, short_number, Assumption,
+    CertificateKind, GeneratorView, UnitSummary, MAX_SHOWN_DIGITS,
+};
 
-use crate::analytic::interval::Interval;
 use rug::Integer;
-
-/// An assumption a verified claim rests on, beyond the cited theorems.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub enum Assumption {
-    Grh,
-    BpswProbablePrime,
-}
-
-impl Assumption {
-    pub fn name(&self) -> &'static str {
-        match self {
-            Assumption::Grh => "GRH",
-            Assumption::BpswProbablePrime => "BPSW probable prime",
-        }
-    }
-}
-
-/// A generator of a cyclic factor, for the reader.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub enum GeneratorView {
-    /// `D < 0`: the reduced form `(a, b, c)` of its class.
-    Form(Integer, Integer, Integer),
-    /// `D > 0`: `∏ (p, (b + sqrt D)/2)^e` over `(p, b, e)`.
-    Ideals(Vec<(u64, u64, Integer)>),
-}
-
-/// The unit group of a real quadratic order, as verified.
-#[derive(Debug, Clone)]
-pub struct UnitSummary {
-    /// Rigorous enclosure of the regulator `R = |log|ε||`.
-    pub regulator: Interval,
-    /// The norm of `ε`, `1` or `-1`.
-    pub norm: i8,
-    /// Number of steps in the compact representation of `ε`.
-    pub compact_length: usize,
-}
-
-impl UnitSummary {
-    /// The regulator in decimal, with only digits the enclosure settles.
-    pub fn regulator_text(&self) -> String {
-        decimal(&self.regulator)
-    }
-}
 
 /// What could be read of a certificate, whatever the outcome.
 #[derive(Debug, Clone, Default)]
@@ -71,39 +32,6 @@ pub struct Summary {
 pub struct Report {
     pub summary: Summary,
     pub outcome: Result<Verified, Rejection>,
-}
-
-/// `Z/d_1 x Z/d_2 x …`, or `trivial`.
-pub fn invariants_text(inv: &[Integer]) -> String {
-    if inv.is_empty() {
-        "trivial".to_string()
-    } else {
-        inv.iter()
-            .map(|d| format!("Z/{d}"))
-            .collect::<Vec<_>>()
-            .join(" x ")
-    }
-}
-
-/// A generator for the text report: a reduced form `(a, b, c)`, or a
-/// product of prime ideals `(p, (b + sqrt(D))/2)^e`.
-pub fn generator_text(g: &GeneratorView) -> String {
-    match g {
-        GeneratorView::Form(a, b, c) => format!("({a}, {b}, {c})"),
-        GeneratorView::Ideals(f) if f.is_empty() => "(1)".into(),
-        GeneratorView::Ideals(f) => f
-            .iter()
-            .map(|(p, b, e)| {
-                let ideal = format!("({p}, ({b} + sqrt(D))/2)");
-                if *e == 1 {
-                    ideal
-                } else {
-                    format!("{ideal}^{e}")
-                }
-            })
-            .collect::<Vec<_>>()
-            .join(" · "),
-    }
 }
 
 /// What a caller may demand of a verified certificate beyond its checks
@@ -151,133 +79,5 @@ impl Report {
     /// Whether every check passed (and every requirement holds).
     pub fn is_verified(&self) -> bool {
         self.outcome.is_ok()
-    }
-}
-
-/// At most `MAX_SHOWN_DIGITS` digits of a number from the input, so a
-/// huge value cannot flood a message: `1234567890…(2000 digits)`.
-pub fn short_number(n: &Integer) -> String {
-    let s = n.to_string();
-    let digits = s.trim_start_matches('-').len();
-    if digits <= MAX_SHOWN_DIGITS {
-        return s;
-    }
-    let sign = if s.starts_with('-') { "-" } else { "" };
-    let head: String = s
-        .trim_start_matches('-')
-        .chars()
-        .take(MAX_SHOWN_DIGITS - 10)
-        .collect();
-    format!("{sign}{head}…({digits} digits)")
-}
-
-/// The most digits of an input number a message shows.
-pub const MAX_SHOWN_DIGITS: usize = 40;
-
-/// `2^2 · 5` for `[(2, 2), (5, 1)]`, `none` for `[]`.
-pub fn prime_powers_text(pp: &[(u64, u32)]) -> String {
-    if pp.is_empty() {
-        return "none".into();
-    }
-    pp.iter()
-        .map(|(p, e)| {
-            if *e == 1 {
-                p.to_string()
-            } else {
-                format!("{p}^{e}")
-            }
-        })
-        .collect::<Vec<_>>()
-        .join(" · ")
-}
-
-/// The digits of an enclosure that are certain: the midpoint rounded to as
-/// many significant digits as the width allows (at most 40), in plain
-/// decimal notation.
-pub fn decimal(i: &Interval) -> String {
-    use rug::ops::Pow;
-    let mid = rug::Float::with_val(i.prec(), &i.lo + &i.hi) / 2u32;
-    let width = rug::Float::with_val(i.prec(), &i.hi - &i.lo);
-    if mid.is_zero() || !mid.is_finite() {
-        return "0".into();
-    }
-    // significant digits: log10(|mid| / width) - 1, within [1, 40]
-    let ratio = if width.is_zero() {
-        1e300
-    } else {
-        (mid.clone().abs() / &width).to_f64()
-    };
-    let digits = (ratio.log10().floor() as i64 - 1).clamp(1, 40);
-    let neg = mid < 0;
-    let abs = mid.abs();
-    // e10 = floor(log10 |mid|), then the digits as an integer
-    let mut e10 = abs.to_f64().log10().floor() as i64;
-    let scaled = |e10: i64| -> Option<Integer> {
-        let shift = digits - 1 - e10;
-        let ten = rug::Float::with_val(abs.prec(), 10u32);
-        let factor = if shift >= 0 {
-            ten.pow(i32::try_from(shift).ok()?)
-        } else {
-            rug::Float::with_val(abs.prec(), 1u32) / ten.pow(i32::try_from(-shift).ok()?)
-        };
-        rug::Float::with_val(abs.prec(), &abs * &factor)
-            .round()
-            .to_integer()
-    };
-    let Some(mut m) = scaled(e10) else {
-        return "0".into();
-    };
-    let limit = Integer::from(10u32).pow(digits as u32);
-    if m >= limit {
-        e10 += 1;
-        m = scaled(e10).unwrap_or_default();
-    }
-    let ds = m.to_string();
-    // value = 0.ds × 10^(e10 + 1)
-    let point = e10 + 1;
-    let mut out = String::new();
-    if neg {
-        out.push('-');
-    }
-    if point <= 0 {
-        out.push_str("0.");
-        out.push_str(&"0".repeat(point.unsigned_abs() as usize));
-        out.push_str(&ds);
-    } else if (point as usize) >= ds.len() {
-        out.push_str(&ds);
-        out.push_str(&"0".repeat(point as usize - ds.len()));
-    } else {
-        let (a, b) = ds.split_at(point as usize);
-        out.push_str(a);
-        out.push('.');
-        out.push_str(b);
-    }
-    out
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use rug::ops::Pow;
-
-    #[test]
-    fn long_numbers_are_shortened() {
-        let n: Integer = Integer::from(10).pow(2000) + 7;
-        let s = short_number(&n);
-        assert!(s.ends_with("…(2001 digits)") && s.len() < 60, "{s}");
-        assert_eq!(short_number(&Integer::from(-3299)), "-3299");
-        assert_eq!(prime_powers_text(&[(2, 2), (5, 1)]), "2^2 · 5");
-        assert_eq!(prime_powers_text(&[]), "none");
-    }
-
-    #[test]
-    fn decimals_put_the_point_in_the_right_place() {
-        let r = |n: i64, d: u64| Interval::ratio(n, d).unwrap();
-        // 62150.6 and 0.0481 (common practice: plain decimal notation)
-        assert!(decimal(&r(621506, 10)).starts_with("62150.6"));
-        assert!(decimal(&r(481, 10000)).starts_with("0.0481"));
-        assert!(decimal(&r(-25, 10)).starts_with("-2.5"));
-        assert!(decimal(&r(1079, 100)).starts_with("10.79"));
-        assert!(decimal(&Interval::u64(1000)).starts_with("1000.000"));
     }
 }

@@ -1,9 +1,9 @@
 //! The verdict as text: `VERIFIED` or `REJECTED: <reason>` on the first
 //! line, then what was shown, what it rests on and what it does not prove.
 
+use super::view::CertificateKind;
 use super::{generator_text, invariants_text, Report, Verified};
 use crate::analytic::Method;
-use crate::pipeline::CertificateKind;
 use crate::registry::Hypothesis;
 
 /// What every verdict does not prove.

@@ -1,4 +1,4 @@
-//! Step 4 (`D > 0`): the unit group and the regulator (design note,
+//! Step 4 (`D > 0`): the unit group and the regulator (`docs/certificates.md`,
 //! section 4).
 //!
 //! The certificate states a unit `ε` in compact representation
@@ -12,7 +12,8 @@
 pub(crate) mod compact;
 mod regulator;
 
-use crate::analytic::interval::Interval;
+pub(crate) use regulator::UnitFacts;
+
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, Check, Reason};
 use classcert_format::Units;
@@ -23,17 +24,6 @@ use rug::Integer;
 #[derive(Debug)]
 pub(crate) struct UnitsOk {
     unit: Option<UnitFacts>,
-}
-
-/// What the chain showed.
-#[derive(Debug, Clone)]
-pub(crate) struct UnitFacts {
-    /// Rigorous enclosure of `R* = |log|ε||`.
-    pub(crate) regulator: Interval,
-    /// `N(ε)`, `1` or `-1`.
-    pub(crate) norm: i8,
-    /// Steps of the compact representation.
-    pub(crate) steps: usize,
 }
 
 impl UnitsOk {

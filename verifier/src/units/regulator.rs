@@ -5,9 +5,7 @@
 //! `N(ε)`.
 
 use super::compact::Chain;
-use super::UnitFacts;
-use crate::analytic::interval::Interval;
-use crate::analytic::stated_contains;
+use crate::analytic::interval::{stated_contains, Interval};
 use crate::report::reason::{reject, Check, Reason};
 use classcert_format::Units;
 use rug::ops::Pow;
@@ -16,7 +14,18 @@ use rug::Integer;
 /// Significant digits a stated regulator must settle.
 const MIN_DIGITS: u32 = 20;
 
-pub(super) fn check_stated(units: &Units, chain: &Chain) -> Check<UnitFacts> {
+/// What the chain showed, once the stated values agree with it.
+#[derive(Debug, Clone)]
+pub(crate) struct UnitFacts {
+    /// Rigorous enclosure of `R* = |log|ε||`.
+    pub(crate) regulator: Interval,
+    /// `N(ε)`, `1` or `-1`.
+    pub(crate) norm: i8,
+    /// Steps of the compact representation.
+    pub(crate) steps: usize,
+}
+
+pub(crate) fn check_stated(units: &Units, chain: &Chain) -> Check<UnitFacts> {
     let log_eps = &chain.log_eps;
     let regulator = if log_eps.lo > 0 {
         log_eps.clone()
