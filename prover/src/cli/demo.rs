@@ -9,8 +9,8 @@
 //! act the group's appendix quotes the regulator of a real quadratic field
 //! of their choosing, and the reviewer certifies that too.
 
-use super::sink::CliSink;
 use super::exit::{fail, Exit};
+use super::sink::CliSink;
 use classcert_prover::{prove_to_bytes, Options};
 use rug::Integer;
 use std::path::{Path, PathBuf};
