@@ -18,10 +18,10 @@
 //! by a caller-supplied budget, so a hard number makes [`factor`] give up with
 //! `None` instead of running indefinitely.
 //!
-//! The pieces: [`complete`] (the layered method above), [`primes`] (the
-//! small primes and the probable-prime test), [`rho`] (Pollard–Brent),
-//! [`proofs`] (primality proofs for the certificate) and [`parse`] (factor
-//! lists given on the command line).
+//! The pieces (private modules): `complete` (the layered method above),
+//! `primes` (the small primes and the probable-prime test), `rho`
+//! (Pollard–Brent), `proofs` (primality proofs for the certificate) and
+//! `parse` (factor lists given on the command line).
 
 mod complete;
 mod parse;
