@@ -7,7 +7,7 @@
 //!   for the columns left when `D > 0` (kernel vectors are units);
 //! - [`hnf`]: an incremental Hermite normal form over Z, kept modulo a
 //!   known multiple of the determinant (`D < 0`);
-//! - [`smith`]: the Smith normal form with both transforms and inverses;
+//! - [`smith`](mod@smith): the Smith normal form with both transforms and inverses;
 //! - [`modp`]: rank and determinants modulo word primes, to choose rows
 //!   and to bound the Hermite form's entries;
 //! - [`matrix`]: the dense matrix type the Hermite and Smith forms share.
