@@ -9,8 +9,8 @@
 //! act the group's appendix quotes the regulator of a real quadratic field
 //! of their choosing, and the reviewer certifies that too.
 
+use super::exit::{fail, Exit};
 use super::sink::CliSink;
-use super::Exit;
 use classcert_prover::{prove_to_bytes, Options};
 use rug::Integer;
 use std::path::{Path, PathBuf};
@@ -80,11 +80,11 @@ fn demo_dir(dir: Option<PathBuf>) -> Result<PathBuf, String> {
 pub fn run(dir: Option<PathBuf>, quiet: bool) -> ExitCode {
     let dir = match demo_dir(dir) {
         Ok(d) => d,
-        Err(e) => return super::fail(Exit::Usage, &format!("demo: {e}")),
+        Err(e) => return fail(Exit::Usage, &format!("demo: {e}")),
     };
     let dir = dir.as_path();
     let (Ok(p), Ok(q)) = (DEMO_P.parse::<Integer>(), DEMO_Q.parse::<Integer>()) else {
-        return super::fail(Exit::Internal, "demo: the built-in numbers do not parse");
+        return fail(Exit::Internal, "demo: the built-in numbers do not parse");
     };
     let sink = CliSink::install(quiet);
     println!(
@@ -116,6 +116,6 @@ pub fn run(dir: Option<PathBuf>, quiet: bool) -> ExitCode {
         Exit::Success.into()
     } else {
         // the prover's self-check passed, so a rejection here is a bug
-        super::fail(Exit::Internal, "demo: a certificate was not verified")
+        fail(Exit::Internal, "demo: a certificate was not verified")
     }
 }

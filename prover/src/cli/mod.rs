@@ -1,62 +1,22 @@
 //! The command line: arguments are parsed and checked into a configuration
 //! before any work (`config`), progress goes to a sink chosen for the
 //! terminal (`sink`), and every outcome maps to one exit status
-//! ([`Exit`], documented in `--help`).
+//! ([`Exit`] in `exit`, documented in `--help`).
 
 mod config;
 mod demo;
+mod exit;
 mod parse;
 mod sink;
 
 use clap::{Parser, Subcommand};
 use classcert_format::Document;
 use classcert_prover::show::{self, Style};
-use classcert_prover::ProveError;
 use config::{ProveArgs, ProveConfig};
+use exit::{fail, Exit, EXIT_HELP};
 use std::io::Write;
 use std::path::PathBuf;
 use std::process::ExitCode;
-
-/// Exit statuses of `classcert` (1 is deliberately unused, so that a
-/// generic failure of a wrapper or shell is never read as one of these).
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Exit {
-    Success = 0,
-    Usage = 2,
-    Refuted = 3,
-    Failed = 4,
-    Internal = 5,
-}
-
-impl From<Exit> for ExitCode {
-    fn from(e: Exit) -> ExitCode {
-        ExitCode::from(e as u8)
-    }
-}
-
-impl Exit {
-    pub fn of(e: &ProveError) -> Exit {
-        match e {
-            ProveError::InvalidInput(_) | ProveError::Unsupported(_) => Exit::Usage,
-            ProveError::Refuted(_) => Exit::Refuted,
-            ProveError::SearchFailed(_) => Exit::Failed,
-            ProveError::SelfCheckFailed(_) => Exit::Internal,
-        }
-    }
-}
-
-const EXIT_HELP: &str = "\
-Exit status:
-  0  success
-  2  usage: bad arguments, an invalid discriminant, an option out of range,
-     an output path that cannot be written, a file that is not a
-     certificate (show) -- all checked before any work starts -- or a
-     request this prover cannot serve for this D
-  3  the claim is refuted: --claim-class-number was shown false
-  4  the computation failed: the search gave up, or writing the file failed
-  5  internal error: the verifier rejected the prover's own certificate
-     (a bug; please report it)
-  1 is not used.";
 
 #[derive(Parser)]
 #[command(
@@ -152,11 +112,6 @@ pub fn style() -> Style {
     } else {
         Style::Ascii
     }
-}
-
-fn fail(code: Exit, msg: &str) -> ExitCode {
-    eprintln!("classcert: {msg}");
-    code.into()
 }
 
 pub fn main() -> ExitCode {

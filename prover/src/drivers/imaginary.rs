@@ -4,7 +4,7 @@
 //! the Smith form, and the certificate body. The analytic side tells it
 //! when the lattice is the whole relation lattice.
 
-use super::{eliminations, RELATION_ATTEMPTS};
+use super::common::{eliminations, RELATION_ATTEMPTS};
 use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
 use crate::progress::Progress;

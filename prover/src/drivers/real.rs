@@ -10,7 +10,7 @@
 //! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
 //! of their logarithms ([`crate::units::unit_gcd`]).
 
-use super::{eliminations, RELATION_ATTEMPTS};
+use super::common::{eliminations, RELATION_ATTEMPTS};
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
 use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, smith};

@@ -235,5 +235,5 @@ pub fn prove_witness_to_bytes(
     opts: &Options,
 ) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
     let w = prove_witness(d, h, h_factors, invariants, opts)?;
-    super::encode_and_check(&Document::OrderWitness(Box::new(w)), opts)
+    super::common::encode_and_check(&Document::OrderWitness(Box::new(w)), opts)
 }

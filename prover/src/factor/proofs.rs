@@ -2,7 +2,8 @@
 //! `N - 1` and Morrison's `N + 1` theorems, with the BPSW test as the
 //! fallback the verdict names.
 
-use super::{factor, is_prime, small_primes};
+use super::complete::factor;
+use super::primes::{is_prime, small_primes};
 use classcert_format::{MorrisonFactor, PocklingtonFactor, PrimalityEvidence};
 use rug::ops::Pow;
 use rug::Integer;

@@ -2,7 +2,7 @@
 //! reduced modulo its determinant once it has full rank (Cohen, GTM 138,
 //! §2.4.3, after Domich–Kannan–Trotter).
 
-use super::Matrix;
+use super::matrix::Matrix;
 use rug::ops::{DivRounding, RemRounding};
 use rug::Integer;
 

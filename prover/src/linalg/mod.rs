@@ -7,43 +7,19 @@
 //!   for the columns left when `D > 0` (kernel vectors are units);
 //! - [`hnf`]: an incremental Hermite normal form over Z, kept modulo a
 //!   known multiple of the determinant (`D < 0`);
-//! - [`smith`]: the Smith normal form with both transforms and inverses;
+//! - [`smith`](mod@smith): the Smith normal form with both transforms and inverses;
 //! - [`modp`]: rank and determinants modulo word primes, to choose rows
-//!   and to bound the Hermite form's entries.
+//!   and to bound the Hermite form's entries;
+//! - [`matrix`]: the dense matrix type the Hermite and Smith forms share.
 
 pub mod echelon;
 pub mod hnf;
+pub mod matrix;
 pub mod modp;
 pub mod sge;
 pub mod smith;
 
 pub use hnf::Hnf;
+pub use matrix::{identity, mat_mul, Matrix};
 pub use modp::{det_crt, RankModP};
 pub use smith::{cyclic_generators, smith, Smith};
-
-use rug::Integer;
-
-pub type Matrix = Vec<Vec<Integer>>;
-
-pub fn identity(n: usize) -> Matrix {
-    (0..n)
-        .map(|i| (0..n).map(|j| Integer::from(i == j)).collect())
-        .collect()
-}
-
-pub fn mat_mul(a: &Matrix, b: &Matrix) -> Matrix {
-    let n = a.len();
-    let m = b.first().map_or(0, |r| r.len());
-    let mut out = vec![vec![Integer::new(); m]; n];
-    for i in 0..n {
-        for (k, aik) in a[i].iter().enumerate() {
-            if aik.is_zero() {
-                continue;
-            }
-            for j in 0..m {
-                out[i][j] += Integer::from(aik * &b[k][j]);
-            }
-        }
-    }
-    out
-}

@@ -1,7 +1,7 @@
 //! The Smith normal form with both transforms and their inverses (Cohen,
 //! GTM 138, §2.4.4).
 
-use super::{identity, Matrix};
+use super::matrix::{identity, Matrix};
 use rug::ops::DivRounding;
 use rug::Integer;
 
@@ -185,7 +185,7 @@ pub fn cyclic_generators(sm: &Smith, h_g: &[Vec<Integer>]) -> Vec<(Integer, Vec<
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::linalg::mat_mul;
+    use crate::linalg::matrix::mat_mul;
 
     fn m(rows: &[&[i64]]) -> Matrix {
         rows.iter()
