@@ -398,6 +398,16 @@ impl Document {
     }
 }
 
+/// A name read from a file, for an error message: quoted, with control
+/// characters escaped, and at most 40 characters of it.
+fn shown(s: &str) -> String {
+    let mut out: String = s.chars().take(40).flat_map(char::escape_default).collect();
+    if s.chars().nth(40).is_some() {
+        out.push('…');
+    }
+    format!("'{out}'")
+}
+
 // ---------------------------------------------------------------- encode
 
 fn ints(v: &[Integer]) -> Value {
@@ -778,7 +788,8 @@ fn get_witness(v: &Value, what: &str) -> Result<Witness, DecodeError> {
         },
         _ => {
             return Err(DecodeError::Schema(format!(
-                "{what}: unknown witness kind {kind:?}"
+                "{what}: unknown witness kind {}",
+                shown(&kind)
             )))
         }
     };
@@ -828,7 +839,12 @@ fn get_evidence(v: &Value) -> Result<PrimalityEvidence, DecodeError> {
                 })
                 .collect::<Result<Vec<_>, DecodeError>>()?,
         },
-        _ => return Err(DecodeError::Schema(format!("unknown evidence {kind:?}"))),
+        _ => {
+            return Err(DecodeError::Schema(format!(
+                "unknown evidence {}",
+                shown(&kind)
+            )))
+        }
     };
     m.finish()?;
     Ok(e)
@@ -862,7 +878,12 @@ fn get_order(v: &Value) -> Result<Order, DecodeError> {
         "quadratic" => Order::Quadratic {
             discriminant: cbor::get_int(o.req("discriminant")?, "order.discriminant")?,
         },
-        _ => return Err(DecodeError::Schema(format!("unknown order kind {kind:?}"))),
+        _ => {
+            return Err(DecodeError::Schema(format!(
+                "unknown order kind {}",
+                shown(&kind)
+            )))
+        }
     };
     o.finish()?;
     Ok(order)
@@ -967,7 +988,8 @@ impl Body {
         let (fb_kind, mut fbm) = get_kind(top.req("factor-base")?, "body.factor-base")?;
         if fb_kind != "quadratic-forms" {
             return Err(DecodeError::Schema(format!(
-                "unknown factor-base kind {fb_kind:?}"
+                "unknown factor-base kind {}",
+                shown(&fb_kind)
             )));
         }
         let factor_base = cbor::get_array(fbm.req("ideals")?, "factor-base.ideals")?
@@ -1028,7 +1050,10 @@ impl Body {
             Some(v) => {
                 let (kind, mut u) = get_kind(v, "body.units")?;
                 if kind != "compact" {
-                    return Err(DecodeError::Schema(format!("unknown units kind {kind:?}")));
+                    return Err(DecodeError::Schema(format!(
+                        "unknown units kind {}",
+                        shown(&kind)
+                    )));
                 }
                 let units = Units {
                     steps: cbor::get_array(u.req("steps")?, "units.steps")?

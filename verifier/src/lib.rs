@@ -147,10 +147,7 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
                 w.class_number.clone(),
                 w.generators.iter().map(|g| g.order.clone()).collect(),
             ),
-            {
-                progress("order");
-                pipeline::verify_order_witness(w)
-            },
+            pipeline::verify_order_witness(w, progress),
         ),
     };
     let Order::Quadratic { discriminant } = order;

@@ -109,7 +109,9 @@ impl Verified {
     }
 }
 
-/// The stage names passed to a progress observer, in order.
+/// The stage names passed to a progress observer, in order (an order
+/// witness passes "order", "lattice" for its classes, "analytic bound";
+/// a long stage repeats its name now and then).
 pub const STAGES: &[&str] = &[
     "order",
     "factor base",
@@ -148,6 +150,7 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
         gen.ideals(),
         &body.lattice.raw_relations,
         order.is_real(),
+        &mut || progress("relations"),
     )?;
     progress("lattice");
     let forms = gen.ideals().iter().map(|i| &i.form).collect();
@@ -164,7 +167,9 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
     progress("units");
     let units = check_units(&body.units, order.d(), order.is_real())?;
     progress("analytic bound");
-    let bound = analytic::check_bound(&body.euler, &order, &cond, &maximality)?;
+    let bound = analytic::check_bound(&body.euler, &order, &cond, &maximality, &mut || {
+        progress("analytic bound")
+    })?;
     let analytic = check_conclusion(bound, lat.h_star(), units.unit())?;
     Ok(from_relations(
         order, maximality, gen, raw, lat, claim, units, analytic,
@@ -172,7 +177,10 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
 }
 
 /// Checks an order-witness certificate (`D < 0` only).
-pub(crate) fn verify_order_witness(w: &WitnessBody) -> Check<Verified> {
+pub(crate) fn verify_order_witness(
+    w: &WitnessBody,
+    progress: &mut dyn FnMut(&str),
+) -> Check<Verified> {
     let order = check_discriminant(&w.order)?;
     if order.is_real() {
         return reject(
@@ -187,11 +195,16 @@ pub(crate) fn verify_order_witness(w: &WitnessBody) -> Check<Verified> {
             format!("X = {trial_bound} exceeds {MAX_SIEVE}"),
         );
     }
+    progress("order");
     let cond = check_conductor(&w.conductor_small, order.d(), trial_bound)?;
     let maximality = check_maximality(&w.maximality, order.d())?;
     let h = check_h(&w.class_number, &w.h_factors)?;
+    progress("lattice");
     let witnesses = check_witnesses(&w.generators, &h, order.d())?;
-    let bound = analytic::check_bound(&w.euler, &order, &cond, &maximality)?;
+    progress("analytic bound");
+    let bound = analytic::check_bound(&w.euler, &order, &cond, &maximality, &mut || {
+        progress("analytic bound")
+    })?;
     let bound = check_witness_bound(bound, &w.class_number)?;
     Ok(from_order_witness(order, maximality, h, witnesses, bound))
 }

@@ -18,6 +18,7 @@ use crate::order::{check_factorisation, Factorisation};
 use crate::registry::{self, Theorem};
 use crate::relations::forms::Budget;
 use crate::report::reason::{reject, Check, Reason};
+use crate::report::view::short_number;
 use crate::report::view::GeneratorView;
 use classcert_format::{PrimePower, WitnessGenerator};
 use rug::Integer;
@@ -142,7 +143,11 @@ pub(crate) fn check_witnesses(
     if prod != *h.h {
         return reject(
             Reason::OrderWitnessFactorisation,
-            format!("the witnesses' orders multiply to {prod}, not H = {}", h.h),
+            format!(
+                "the witnesses' orders multiply to {}, not H = {}",
+                short_number(&prod),
+                short_number(h.h)
+            ),
         );
     }
     let mut budget = Budget::new(MAX_COMPOSITIONS);
@@ -283,7 +288,8 @@ pub(crate) fn check_witness_bound(bound: BoundOk, h: &Integer) -> Check<WitnessB
         return reject(
             Reason::AnalyticInconsistent,
             format!(
-                "H = {h} exceeds the analytic upper bound exp({:.6}): the witness and the analytic bound cannot both hold",
+                "H = {} exceeds the analytic upper bound exp({:.6}): the witness and the analytic bound cannot both hold",
+                short_number(h),
                 log_h.hi.to_f64()
             ),
         );
@@ -292,7 +298,8 @@ pub(crate) fn check_witness_bound(bound: BoundOk, h: &Integer) -> Check<WitnessB
         return reject(
             Reason::ClassNumberNotConfirmed,
             format!(
-                "H = {h} is too small: log H = {:.6}, but #Cl may be as large as exp({:.6}), so #Cl = k H with k >= 2 is not excluded",
+                "H = {} is too small: log H = {:.6}, but #Cl may be as large as exp({:.6}), so #Cl = k H with k >= 2 is not excluded",
+                short_number(h),
                 log_big_h.lo.to_f64(),
                 log_h.hi.to_f64()
             ),

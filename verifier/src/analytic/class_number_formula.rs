@@ -15,6 +15,7 @@ use super::interval::Interval;
 use super::BoundOk;
 use crate::arith::kronecker_prime;
 use crate::report::reason::{reject, Check, Reason};
+use crate::report::view::short_number;
 use crate::units::UnitFacts;
 use rug::Integer;
 
@@ -118,7 +119,7 @@ pub(crate) fn check_conclusion(
             Reason::ClassNumberNotConfirmed,
             format!(
                 "h* = {} is too large: log h* = {:.6} but log h <= {:.6} + log 2 is all the analytic bound allows for k = 1",
-                h_star,
+                short_number(h_star),
                 log_hs.hi.to_f64(),
                 log_h.lo.to_f64()
             ),
@@ -127,7 +128,7 @@ pub(crate) fn check_conclusion(
     if log_hs.hi < log_h.lo {
         return reject(
             Reason::AnalyticInconsistent,
-            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", h_star, unit.map_or(1.0, |u| u.regulator.mid_f64()), log_h.lo.to_f64()),
+            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", short_number(h_star), unit.map_or(1.0, |u| u.regulator.mid_f64()), log_h.lo.to_f64()),
         );
     }
     Ok(AnalyticOk { bound })

@@ -78,6 +78,21 @@ pub fn compute(
     limits: &[u64],
     log_delta: &Interval,
 ) -> Option<EulerResult> {
+    compute_with(x, primes, chi, limits, log_delta, &mut || {})
+}
+
+/// Primes summed between two calls of a progress heartbeat.
+const BEAT: usize = 1 << 14;
+
+/// [`compute`], calling `beat` every [`BEAT`] primes (progress only).
+pub(crate) fn compute_with(
+    x: u64,
+    primes: &[u64],
+    chi: &dyn Fn(u64) -> i8,
+    limits: &[u64],
+    log_delta: &Interval,
+    beat: &mut dyn FnMut(),
+) -> Option<EulerResult> {
     let error = error_bound(x, log_delta)?;
     // n < X/9  <=>  9n < X  <=>  n < (X - 1)/9 + 1
     let l2 = (x - 1) / 9 + 1;
@@ -92,7 +107,10 @@ pub fn compute(
     let zero = Interval::zero();
     let mut bucket_a = vec![zero.clone(); bounds.len()];
     let mut bucket_c = vec![zero.clone(); bounds.len()];
-    for &p in primes {
+    for (k, &p) in primes.iter().enumerate() {
+        if k % BEAT == 0 {
+            beat();
+        }
         if p >= x {
             break;
         }
@@ -171,7 +189,12 @@ pub fn compute(
 /// enclosure of `log L(1, χ_d)` must contain the verifier's own, and the
 /// class number formula turns it into an enclosure of `log h` (`log h R`
 /// for `D > 0`). The checkpoints only say where a disagreement starts.
-pub(crate) fn check_trace(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -> Check<Interval> {
+pub(crate) fn check_trace(
+    e: &EulerTrace,
+    order: &OrderOk,
+    cond: &ConductorOk,
+    beat: &mut dyn FnMut(),
+) -> Check<Interval> {
     let x = e.x;
     if !(MIN_X..=MAX_EULER_X).contains(&x) {
         return reject(
@@ -208,7 +231,7 @@ pub(crate) fn check_trace(e: &EulerTrace, order: &OrderOk, cond: &ConductorOk) -
     }
     let ds = cond.d_small();
     let chi = |p: u64| kronecker_prime(ds, p);
-    let Some(res) = compute(x, cond.trial_primes(), &chi, &limits, &log_delta) else {
+    let Some(res) = compute_with(x, cond.trial_primes(), &chi, &limits, &log_delta, beat) else {
         return bad();
     };
     for (claimed, mine) in e.checkpoints.iter().zip(res.checkpoints.iter()) {

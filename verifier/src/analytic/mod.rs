@@ -60,12 +60,14 @@ pub(crate) fn primes_needed(e: &EulerTrace) -> u64 {
     }
 }
 
-/// Recomputes the enclosure the trace `e` states, by the theorem it names.
+/// Recomputes the enclosure the trace `e` states, by the theorem it names;
+/// `beat` is called now and then while it runs (progress only).
 pub(crate) fn check_bound(
     e: &EulerTrace,
     order: &OrderOk,
     cond: &ConductorOk,
     maximality: &MaximalityOk,
+    beat: &mut dyn FnMut(),
 ) -> Check<BoundOk> {
     let (method, ids): (Method, &[&str]) = match registry::lookup(&e.theorem).map(|t| t.id) {
         Some(registry::ERFC_SERIES) => (Method::Series { terms: e.x }, &[registry::ERFC_SERIES]),
@@ -91,8 +93,8 @@ pub(crate) fn check_bound(
         }
     };
     let log_h = match method {
-        Method::Series { .. } => series::check_series(e, order, maximality.is_maximal())?,
-        Method::EulerProduct { .. } => euler::check_trace(e, order, cond)?,
+        Method::Series { .. } => series::check_series(e, order, maximality.is_maximal(), beat)?,
+        Method::EulerProduct { .. } => euler::check_trace(e, order, cond, beat)?,
     };
     Ok(BoundOk {
         log_h,

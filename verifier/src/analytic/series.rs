@@ -63,6 +63,11 @@ fn smallest_prime_factors(limit: usize) -> Vec<u32> {
 /// An enclosure of `h(D)` from `n_terms` terms and the tail bound. The
 /// caller checks `D < -4` fundamental and bounds `n_terms`.
 pub fn class_number(d: &Integer, n_terms: u64) -> Option<Interval> {
+    class_number_with(d, n_terms, &mut || {})
+}
+
+/// [`class_number`], calling `beat` every 2^14 terms (progress only).
+fn class_number_with(d: &Integer, n_terms: u64, beat: &mut dyn FnMut()) -> Option<Interval> {
     let abs_d = Interval::int(&Integer::from(d.abs_ref()));
     let pi = Interval::pi();
     let sqrt_d = abs_d.sqrt()?;
@@ -70,6 +75,9 @@ pub fn class_number(d: &Integer, n_terms: u64) -> Option<Interval> {
     let spf = smallest_prime_factors(usize::try_from(n_terms).ok()?);
     let mut sum = Interval::zero();
     for n in 1..=n_terms {
+        if n % (1 << 14) == 0 {
+            beat();
+        }
         let chi = kronecker(d, n, &spf);
         if chi == 0 {
             continue;
@@ -117,7 +125,12 @@ pub fn terms_for(abs_d: &Integer) -> u64 {
 /// Section 7: `h` itself from the series above, without
 /// GRH, for a maximal order of discriminant `D < -4`. The stated
 /// `log-l` must contain `log L(1, χ) = log(2 π h / (w sqrt|D|))`.
-pub(crate) fn check_series(e: &EulerTrace, order: &OrderOk, maximal: bool) -> Check<Interval> {
+pub(crate) fn check_series(
+    e: &EulerTrace,
+    order: &OrderOk,
+    maximal: bool,
+    beat: &mut dyn FnMut(),
+) -> Check<Interval> {
     if order.is_real() || *order.d() > -5 || !maximal {
         return reject(
             Reason::GenerationTheoremNotApplicable,
@@ -132,7 +145,7 @@ pub(crate) fn check_series(e: &EulerTrace, order: &OrderOk, maximal: bool) -> Ch
         );
     }
     let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
-    let Some(h) = class_number(order.d(), n) else {
+    let Some(h) = class_number_with(order.d(), n, beat) else {
         return bad();
     };
     if h.lo <= 0 {

@@ -8,7 +8,7 @@ use crate::ideals::quadratic::QuadraticIdeal;
 use crate::limits::MAX_COMPOSITIONS;
 use crate::relations::forms::{product, Budget};
 use crate::report::reason::{reject, Check, Reason};
-use crate::report::view::GeneratorView;
+use crate::report::view::{short_number, GeneratorView};
 use classcert_format::{Claim, Lattice};
 use rug::Integer;
 
@@ -45,8 +45,8 @@ pub(crate) fn check_claim(
             Reason::ClassNumberMismatch,
             format!(
                 "claimed class number {} but the Smith diagonal multiplies to {}",
-                c.class_number,
-                lat.h_star()
+                short_number(&c.class_number),
+                short_number(lat.h_star())
             ),
         );
     }

@@ -4,6 +4,7 @@
 
 use crate::limits::MAX_ENTRY_BITS;
 use crate::report::reason::{reject, Check, Reason};
+use crate::report::view::short_number;
 use classcert_format::Smith;
 use rug::Integer;
 
@@ -71,7 +72,11 @@ pub(crate) fn check_smith(h: &[Vec<Integer>], s: &Smith, r: usize) -> Check<Inte
             if *x != want {
                 return reject(
                     Reason::SmithMismatch,
-                    format!("(U H V)[{i}][{j}] = {x}, not the stated {want}"),
+                    format!(
+                        "(U H V)[{i}][{j}] = {}, not the stated {}",
+                        short_number(x),
+                        short_number(&want)
+                    ),
                 );
             }
         }
@@ -88,7 +93,12 @@ pub(crate) fn check_smith(h: &[Vec<Integer>], s: &Smith, r: usize) -> Check<Inte
             if !next.is_divisible(di) {
                 return reject(
                     Reason::SmithDivisibility,
-                    format!("d_{i} = {di} does not divide d_{} = {next}", i + 1),
+                    format!(
+                        "d_{i} = {} does not divide d_{} = {}",
+                        short_number(di),
+                        i + 1,
+                        short_number(next)
+                    ),
                 );
             }
         }

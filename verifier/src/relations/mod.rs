@@ -49,6 +49,7 @@ pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
     ideals: &[A::Ideal],
     raw: &'a Option<Vec<Relation>>,
     needs_elements: bool,
+    beat: &mut dyn FnMut(),
 ) -> Check<RawOk<'a>> {
     let raw = match (raw, needs_elements) {
         (None, false) => return Ok(RawOk { relations: None }),
@@ -70,6 +71,9 @@ pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
         return reject(Reason::OverLimit, "too many raw relations");
     }
     for (k, rel) in raw.iter().enumerate() {
+        if k % 4096 == 0 {
+            beat();
+        }
         arith.check_element_relation(ideals, k, rel)?;
     }
     Ok(RawOk {
