@@ -5,7 +5,7 @@ use classcert_format::json::Json;
 use classcert_format::{Body, CyclicGenerator, Decoded, Order, PrimeIdeal};
 use classcert_verifier::math::Interval;
 use classcert_verifier::registry;
-use classcert_verifier::report::json as report_json;
+use classcert_verifier::report::{self, json as report_json};
 use classcert_verifier::report::{decimal, invariants_text, GeneratorView};
 use classcert_verifier::Method;
 use rug::Integer;
@@ -198,24 +198,13 @@ fn order_json(out: &mut Vec<(&'static str, Json)>, facts: &OrderFacts) {
 
 /// `(p, (b + sqrt(D))/2)^e · …` for a generator given by prime ideals.
 fn ideals_text(f: &[(u64, u64, Integer)], style: Style) -> String {
-    let dot = match style {
-        Style::Unicode => " · ",
-        Style::Ascii => " * ",
-    };
-    if f.is_empty() {
-        return "(1)".into();
-    }
-    f.iter()
-        .map(|(p, b, e)| {
-            let ideal = format!("({p}, ({b} + sqrt(D))/2)");
-            if *e == 1 {
-                ideal
-            } else {
-                format!("{ideal}^{e}")
-            }
-        })
-        .collect::<Vec<_>>()
-        .join(dot)
+    report::ideals_text(
+        f,
+        match style {
+            Style::Unicode => " · ",
+            Style::Ascii => " * ",
+        },
+    )
 }
 
 fn generator_line(view: &GeneratorView, order: &Integer, style: Style) -> String {
@@ -299,22 +288,13 @@ pub fn text_styled(c: &Decoded, style: Style) -> String {
     let Order::Quadratic { discriminant } = &b.order;
     let mut s = String::new();
     s.push_str("classcert certificate (contents as stated; not checked: run classcert-verify)\n");
-    s.push_str(&format!("  id             {}\n", c.id_hex()));
-    s.push_str(&format!(
-        "  produced by    {} {} (seed {})\n",
-        b.producer.tool, b.producer.version, b.producer.seed
-    ));
-    s.push_str(&format!("  order          quadratic, D = {discriminant}\n"));
-    match &b.maximality {
-        Some(f) => s.push_str(&format!(
-            "  maximality     claimed: |D| = {}\n",
-            factorisation_text(f)
-        )),
-        None => s.push_str("  maximality     not claimed\n"),
-    }
-    order_lines(
+    header_lines(
         &mut s,
-        &order_facts(discriminant, b.maximality.as_deref(), &b.conductor_small),
+        &c.id_hex(),
+        &b.producer,
+        discriminant,
+        &b.maximality,
+        &b.conductor_small,
     );
     s.push_str(&format!(
         "  class group    {}  (class number {})\n",
@@ -411,6 +391,35 @@ pub fn json(c: &Decoded) -> Json {
     Json::obj(out)
 }
 
+/// The lines both kinds of certificate start with: id, producer, order,
+/// maximality claim, conductor.
+fn header_lines(
+    s: &mut String,
+    id_hex: &str,
+    producer: &classcert_format::Producer,
+    discriminant: &Integer,
+    maximality: &Option<Vec<classcert_format::PrimePower>>,
+    conductor_small: &[(u64, u32)],
+) {
+    s.push_str(&format!("  id             {id_hex}\n"));
+    s.push_str(&format!(
+        "  produced by    {} {} (seed {})\n",
+        producer.tool, producer.version, producer.seed
+    ));
+    s.push_str(&format!("  order          quadratic, D = {discriminant}\n"));
+    match maximality {
+        Some(f) => s.push_str(&format!(
+            "  maximality     claimed: |D| = {}\n",
+            factorisation_text(f)
+        )),
+        None => s.push_str("  maximality     not claimed\n"),
+    }
+    order_lines(
+        s,
+        &order_facts(discriminant, maximality.as_deref(), conductor_small),
+    );
+}
+
 /// `p1^e1 * p2 * …`, or `1`.
 fn factorisation_text(f: &[classcert_format::PrimePower]) -> String {
     if f.is_empty() {
@@ -433,22 +442,13 @@ pub fn witness_text(w: &classcert_format::WitnessBody, id_hex: &str) -> String {
     let Order::Quadratic { discriminant } = &w.order;
     let mut s = String::new();
     s.push_str("classcert order-witness certificate (contents as stated; not checked: run classcert-verify)\n");
-    s.push_str(&format!("  id             {id_hex}\n"));
-    s.push_str(&format!(
-        "  produced by    {} {} (seed {})\n",
-        w.producer.tool, w.producer.version, w.producer.seed
-    ));
-    s.push_str(&format!("  order          quadratic, D = {discriminant}\n"));
-    match &w.maximality {
-        Some(f) => s.push_str(&format!(
-            "  maximality     claimed: |D| = {}\n",
-            factorisation_text(f)
-        )),
-        None => s.push_str("  maximality     not claimed\n"),
-    }
-    order_lines(
+    header_lines(
         &mut s,
-        &order_facts(discriminant, w.maximality.as_deref(), &w.conductor_small),
+        id_hex,
+        &w.producer,
+        discriminant,
+        &w.maximality,
+        &w.conductor_small,
     );
     s.push_str(&format!(
         "  claim          #Cl = H = {} = {}\n",
@@ -505,12 +505,7 @@ pub fn witness_json(w: &classcert_format::WitnessBody, id_hex: &str) -> Json {
 
 /// An error in the shared vocabulary (kind "error"), for `--json` callers.
 pub fn error_json(reason: &str, detail: &str) -> Json {
-    Json::obj(vec![
-        ("schema", Json::str(SCHEMA)),
-        ("kind", Json::str("error")),
-        ("reason", Json::str(reason)),
-        ("detail", Json::str(detail)),
-    ])
+    report_json::error(reason, detail)
 }
 
 #[cfg(test)]

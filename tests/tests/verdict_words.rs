@@ -153,3 +153,84 @@ fn the_registry_as_a_reviewer_reads_it() {
     }
     insta::assert_snapshot!("registry", s);
 }
+
+/// The value of `key` in a JSON object.
+fn field<'a>(
+    j: &'a classcert_format::json::Json,
+    key: &str,
+) -> Option<&'a classcert_format::json::Json> {
+    match j {
+        classcert_format::json::Json::Obj(entries) => {
+            entries.iter().find(|(k, _)| k == key).map(|(_, v)| v)
+        }
+        _ => None,
+    }
+}
+
+#[test]
+fn show_and_verify_share_one_vocabulary() {
+    // One fact, one key (docs/json.md): every key both documents carry has
+    // the same value, except `kind` (claims against verdict) and `unit`,
+    // where `show` adds the coordinates a, b.
+    use classcert_prover::show;
+    let mut checked = 0;
+    for name in [
+        "minus-3299.cert",
+        "minus-300.cert",
+        "plus-316.cert",
+        "minus-18544966547.cert",
+    ] {
+        let path = vectors_dir().join("golden").join(name);
+        let bytes = std::fs::read(&path).expect("golden file");
+        let decoded = decode_file(&bytes).expect("decodes");
+        let claims = show::json(&decoded);
+        let verdict = verify_bytes(&bytes).to_json();
+        let classcert_format::json::Json::Obj(entries) = &claims else {
+            panic!("show --json is an object");
+        };
+        for (key, value) in entries {
+            if key == "kind" {
+                continue;
+            }
+            let Some(other) = field(&verdict, key) else {
+                continue;
+            };
+            if key == "unit" {
+                for sub in ["norm", "regulator", "compact_steps"] {
+                    assert_eq!(field(value, sub), field(other, sub), "{name}: unit.{sub}");
+                }
+            } else {
+                assert_eq!(value, other, "{name}: key {key}");
+            }
+            checked += 1;
+        }
+        assert_eq!(field(&claims, "schema"), field(&verdict, "schema"));
+    }
+    // the witness kind too
+    let w = witness_document(-3299, 27, &[3, 9], None);
+    let doc = classcert_format::decode_document(&w).expect("decodes");
+    let Document::OrderWitness(body) = &doc.document else {
+        panic!("an order witness");
+    };
+    let claims = show::witness_json(body, &doc.id_hex());
+    let verdict = verify_bytes(&w).to_json();
+    for key in [
+        "schema",
+        "certificate_sha256",
+        "certificate_kind",
+        "discriminant",
+        "class_number",
+        "invariants",
+        "generators",
+        "analytic",
+        "w",
+    ] {
+        assert_eq!(
+            field(&claims, key),
+            field(&verdict, key),
+            "witness: key {key}"
+        );
+        checked += 1;
+    }
+    assert!(checked > 40, "{checked} keys compared");
+}

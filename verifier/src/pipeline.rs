@@ -260,9 +260,9 @@ fn from_relations(
         invariants: claim.invariants().to_vec(),
         generators: claim.into_generators(),
         unit: units.into_unit().map(|u| UnitSummary {
-            regulator: u.regulator,
-            norm: u.norm,
-            compact_length: u.steps,
+            regulator: u.regulator().clone(),
+            norm: u.norm(),
+            compact_length: u.steps(),
         }),
         maximal: maximality.is_maximal(),
         assumptions: assumptions(&theorems, bpsw),

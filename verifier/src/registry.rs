@@ -128,7 +128,7 @@ pub static REGISTRY: &[Theorem] = &[
         citation: "M. A. Morrison, \"A note on primality testing using Lucas sequences\", Math. Comp. 29 (1975); J. Brillhart, D. H. Lehmer and J. L. Selfridge, Math. Comp. 29 (1975)",
         hypothesis: Hypothesis::None,
         statement: "let N be odd, U_k = U_k(P, Q) the Lucas sequence of P, Q with gcd(N, Q) = 1 and ((P^2 - 4Q)/N) = -1; if N + 1 = F R with F = prod q^e, q prime, N | U_(N+1) and gcd(U_((N+1)/q), N) = 1 for each q, then every prime factor of N is +-1 mod F; if (F - 1)^2 > N, N is prime",
-        note: "restated in version 0.2 to the general-Q form the check has always used (the first text gave only Q = 1); certificates never name this entry, verdicts do; the theorem number in Brillhart-Lehmer-Selfridge is from memory; |P|, |Q| < 2^31",
+        note: "restated to the general-Q form the check has always used (the first text gave only Q = 1); certificates never name this entry, verdicts do; the theorem number in Brillhart-Lehmer-Selfridge is from memory; |P|, |Q| < 2^31",
     },
     Theorem {
         id: ORDER_WITNESS,

@@ -97,7 +97,7 @@ pub(crate) fn check_conclusion(
         return bad();
     };
     if let Some(u) = unit {
-        let Some(log_r) = u.regulator.ln() else {
+        let Some(log_r) = u.regulator().ln() else {
             return bad();
         };
         log_hs = log_hs.add(&log_r);
@@ -128,7 +128,7 @@ pub(crate) fn check_conclusion(
     if log_hs.hi < log_h.lo {
         return reject(
             Reason::AnalyticInconsistent,
-            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", short_number(h_star), unit.map_or(1.0, |u| u.regulator.mid_f64()), log_h.lo.to_f64()),
+            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", short_number(h_star), unit.map_or(1.0, |u| u.regulator().mid_f64()), log_h.lo.to_f64()),
         );
     }
     Ok(AnalyticOk { bound })
@@ -199,11 +199,7 @@ mod tests {
         let e = check_conclusion(b(), &Integer::from(13), None).unwrap_err();
         assert_eq!(e.reason, Reason::AnalyticInconsistent);
         // D > 0: h* R* against log h R; R* twice too large is not confirmed
-        let unit = |r: u64| UnitFacts {
-            regulator: Interval::u64(r),
-            norm: 1,
-            steps: 1,
-        };
+        let unit = |r: u64| UnitFacts::for_tests(Interval::u64(r));
         assert!(check_conclusion(bound(54, (1, 10)), &Integer::from(27), Some(&unit(2))).is_ok());
         let e =
             check_conclusion(bound(54, (1, 10)), &Integer::from(27), Some(&unit(4))).unwrap_err();

@@ -17,9 +17,9 @@
 //! companion `V_k` by `Δ U_k = 2 V_{k+1} - P V_k`, and `gcd(Δ, N) = 1`,
 //! so the verifier tests `W_k = 2 V_{k+1} - P V_k` instead.
 
-use super::step::{invalid, Factored, ProofError};
+use super::step::{check_size, invalid, Factored, ProofError};
 use crate::arith::jacobi_big;
-use crate::limits::{MAX_LUCAS_PARAMETER_BITS, MAX_PROOF_FACTORS};
+use crate::limits::MAX_LUCAS_PARAMETER_BITS;
 use crate::report::view::short_number;
 use classcert_format::MorrisonFactor;
 use rug::Integer;
@@ -74,12 +74,7 @@ pub(super) fn check_step(
     factors: &[MorrisonFactor],
     work: &mut u64,
 ) -> Result<(), ProofError> {
-    if *n < 5 || n.is_even() {
-        return Err(invalid(n, "the theorem is used for odd N >= 5 only"));
-    }
-    if factors.len() > MAX_PROOF_FACTORS {
-        return Err(ProofError::OverLimit);
-    }
+    check_size(n, factors.len())?;
     if Integer::from(q.gcd_ref(n)) != 1 {
         return Err(invalid(
             n,

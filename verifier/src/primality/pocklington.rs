@@ -17,8 +17,7 @@
 //! way, so a proof is a tree; below 2^64 a Baillie–PSW pass is a proof.
 //!
 
-use super::step::{invalid, Factored, ProofError};
-use crate::limits::MAX_PROOF_FACTORS;
+use super::step::{check_size, invalid, Factored, ProofError};
 use classcert_format::PocklingtonFactor;
 use rug::Integer;
 
@@ -29,12 +28,7 @@ pub(super) fn check_step(
     factors: &[PocklingtonFactor],
     work: &mut u64,
 ) -> Result<(), ProofError> {
-    if *n < 5 || n.is_even() {
-        return Err(invalid(n, "the theorem is used for odd N >= 5 only"));
-    }
-    if factors.len() > MAX_PROOF_FACTORS {
-        return Err(ProofError::OverLimit);
-    }
+    check_size(n, factors.len())?;
     let n1 = Integer::from(n - 1u32);
     let mut fp = Factored::new(&n1);
     for pf in factors {

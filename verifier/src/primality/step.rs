@@ -59,3 +59,15 @@ impl<'a> Factored<'a> {
         Ok(())
     }
 }
+
+/// What both theorems ask of `N` and of the length of the factor list
+/// before any arithmetic: `N` odd and at least 5, the list within the cap.
+pub(super) fn check_size(n: &Integer, factors: usize) -> Result<(), ProofError> {
+    if *n < 5 || n.is_even() {
+        return Err(invalid(n, "the theorem is used for odd N >= 5 only"));
+    }
+    if factors > crate::limits::MAX_PROOF_FACTORS {
+        return Err(ProofError::OverLimit);
+    }
+    Ok(())
+}

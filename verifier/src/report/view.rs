@@ -73,20 +73,27 @@ pub fn invariants_text(inv: &[Integer]) -> String {
 pub fn generator_text(g: &GeneratorView) -> String {
     match g {
         GeneratorView::Form(a, b, c) => format!("({a}, {b}, {c})"),
-        GeneratorView::Ideals(f) if f.is_empty() => "(1)".into(),
-        GeneratorView::Ideals(f) => f
-            .iter()
-            .map(|(p, b, e)| {
-                let ideal = format!("({p}, ({b} + sqrt(D))/2)");
-                if *e == 1 {
-                    ideal
-                } else {
-                    format!("{ideal}^{e}")
-                }
-            })
-            .collect::<Vec<_>>()
-            .join(" · "),
+        GeneratorView::Ideals(f) => ideals_text(f, " · "),
     }
+}
+
+/// `∏ (p, (b + sqrt(D))/2)^e` over `(p, b, e)`, joined by `sep`; `(1)`
+/// for the empty product.
+pub fn ideals_text(f: &[(u64, u64, Integer)], sep: &str) -> String {
+    if f.is_empty() {
+        return "(1)".into();
+    }
+    f.iter()
+        .map(|(p, b, e)| {
+            let ideal = format!("({p}, ({b} + sqrt(D))/2)");
+            if *e == 1 {
+                ideal
+            } else {
+                format!("{ideal}^{e}")
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(sep)
 }
 
 /// At most `MAX_SHOWN_DIGITS` digits of a number from the input, so a

@@ -17,12 +17,36 @@ const MIN_DIGITS: u32 = 20;
 /// What the chain showed, once the stated values agree with it.
 #[derive(Debug, Clone)]
 pub(crate) struct UnitFacts {
+    regulator: Interval,
+    norm: i8,
+    steps: usize,
+}
+
+impl UnitFacts {
     /// Rigorous enclosure of `R* = |log|ε||`.
-    pub(crate) regulator: Interval,
+    pub(crate) fn regulator(&self) -> &Interval {
+        &self.regulator
+    }
+
     /// `N(ε)`, `1` or `-1`.
-    pub(crate) norm: i8,
+    pub(crate) fn norm(&self) -> i8 {
+        self.norm
+    }
+
     /// Steps of the compact representation.
-    pub(crate) steps: usize,
+    pub(crate) fn steps(&self) -> usize {
+        self.steps
+    }
+
+    /// For unit tests of the conclusion step.
+    #[cfg(test)]
+    pub(crate) fn for_tests(regulator: Interval) -> UnitFacts {
+        UnitFacts {
+            regulator,
+            norm: 1,
+            steps: 1,
+        }
+    }
 }
 
 pub(crate) fn check_stated(units: &Units, chain: &Chain) -> Check<UnitFacts> {
