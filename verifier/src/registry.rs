@@ -72,7 +72,7 @@ pub static REGISTRY: &[Theorem] = &[
         citation: "K. Belabas and E. Friedman, \"Computing the residue of the Dedekind zeta function\", Math. Comp. 84 (2015) 357-369, arXiv:1305.0035, Theorem 1",
         hypothesis: Hypothesis::Grh,
         statement: "for X >= 69, |log kappa_K - f(X)| <= E(X), with f and E as in docs/certificates.md, section 5 (code: verifier/src/analytic/euler.rs)",
-        note: "GRH for zeta_K, which for quadratic K includes RH; the constants 2.324, 3.88 and 4.26 are (3/2)(1 + (log 9)/4), 6/(1 + (log 9)/4) and 3 log 9/(1 + (log 9)/4) rounded up (arXiv:1305.0035, p. 2; the verifier's unit tests recompute them); the statement and constants agree with two transcriptions, not yet with the paper's own text, so the error term is multiplied by a safety factor of 2: it costs a 4 times larger X (a fraction of a second) and guards against a slip in the shape of the formula as well as in its constants",
+        note: "GRH for zeta_K, which for quadratic K includes RH; the constants 2.324, 3.88 and 4.26 are (3/2)(1 + (log 9)/4), 6/(1 + (log 9)/4) and 3 log 9/(1 + (log 9)/4) rounded up (arXiv:1305.0035, p. 2; the verifier's unit tests recompute them); the statement and constants agree with two secondary statements of the theorem, not yet with the paper's own text, so the error term is multiplied by a safety factor of 2: it costs a 4 times larger X (a fraction of a second) and guards against a slip in the shape of the formula as well as in its constants",
     },
     Theorem {
         id: CLASS_NUMBER_FORMULA,
