@@ -226,10 +226,6 @@ impl Interval {
         self.lo <= o.lo && o.hi <= self.hi
     }
 
-    pub fn is_finite(&self) -> bool {
-        self.lo.is_finite() && self.hi.is_finite()
-    }
-
     pub fn mid_f64(&self) -> f64 {
         (self.lo.to_f64() + self.hi.to_f64()) / 2.0
     }

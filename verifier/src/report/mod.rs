@@ -42,15 +42,6 @@ pub enum Requirement {
     Unconditional,
 }
 
-impl Requirement {
-    pub fn parse(s: &str) -> Option<Requirement> {
-        match s {
-            "unconditional" => Some(Requirement::Unconditional),
-            _ => None,
-        }
-    }
-}
-
 impl Report {
     /// Refuses a verified report that does not meet `r`, with reason
     /// `policy`; the checks themselves are unchanged.
