@@ -8,6 +8,7 @@ use crate::factor;
 use crate::fb::FactorBase;
 use crate::progress::Progress;
 use classcert_format::*;
+use classcert_verifier::limits::MAX_DISCRIMINANT_BITS;
 use classcert_verifier::math::euler;
 use classcert_verifier::math::log_h_enclosure;
 use classcert_verifier::math::primality::{primality_evidence, Evidence};
@@ -28,6 +29,8 @@ pub struct Options {
     pub factor_budget: u64,
     /// Where progress, counters and warnings go (nowhere by default).
     pub progress: crate::progress::Hook,
+    /// Run a full proof even when its estimated cost exceeds a day.
+    pub force: bool,
     /// Certify without GRH (maximal orders with D < -4): generation by the
     /// prime ideals up to sqrt(|D|/3) and h from an exact series.
     pub unconditional: bool,
@@ -42,6 +45,7 @@ impl Default for Options {
             factor_budget: 3_000_000,
             progress: crate::progress::Hook::none(),
             unconditional: false,
+            force: false,
         }
     }
 }
@@ -54,6 +58,8 @@ pub enum ProveError {
     SearchFailed(String),
     /// The claim given (an order witness's `H`) was shown false.
     Refuted(String),
+    /// A full proof would cost more than allowed without `force`.
+    TooCostly(String),
     /// The verifier rejected what the prover built: a bug in the prover.
     SelfCheckFailed(String),
 }
@@ -64,7 +70,8 @@ impl std::fmt::Display for ProveError {
             ProveError::InvalidInput(s)
             | ProveError::Unsupported(s)
             | ProveError::SearchFailed(s)
-            | ProveError::Refuted(s) => f.write_str(s),
+            | ProveError::Refuted(s)
+            | ProveError::TooCostly(s) => f.write_str(s),
             ProveError::SelfCheckFailed(s) => write!(
                 f,
                 "internal error: the verifier rejected the prover's own certificate ({s}); please report this"
@@ -95,15 +102,99 @@ pub fn validate(d: &Integer) -> Result<(), ProveError> {
             "D = {d} is a square, so it is not the discriminant of a quadratic order"
         )));
     }
-    let limit = if *d > 0 { 200 } else { 400 };
-    if d.significant_bits() > limit {
+    if d.significant_bits() > MAX_DISCRIMINANT_BITS {
         return Err(ProveError::Unsupported(format!(
-            "|D| has {} bits; this prover handles up to {limit} bits for D {} 0",
-            d.significant_bits(),
-            if *d > 0 { ">" } else { "<" }
+            "|D| has {} bits; the verifier checks |D| up to {MAX_DISCRIMINANT_BITS} bits",
+            d.significant_bits()
         )));
     }
     Ok(())
+}
+
+/// What a full proof of `D` would cost, estimated before any work.
+#[derive(Debug, Clone, Copy)]
+pub struct Estimate {
+    pub seconds: f64,
+    pub mib: f64,
+}
+
+/// Without `--force`, a full proof whose estimate exceeds an hour is
+/// refused (the estimate is an extrapolation, and past the measured range
+/// it errs on the low side: a 45-digit D < 0 estimated at 100 s ran for over
+/// 20 minutes).
+pub const MAX_UNFORCED_SECONDS: f64 = 3600.0;
+
+/// `exp(a + c · sqrt(ln|D| ln ln|D|))`, the shape `L(1/2, c)` of
+/// subexponential relation search, fitted by least squares to this
+/// prover's measured medians (BENCHMARKS.md: D < 0 at 20–40 digits, D > 0
+/// at 15–25 digits), time and peak memory separately. An estimate, not a
+/// promise: it knows only the measured range and the shape of the curve.
+pub fn estimate(d: &Integer) -> Estimate {
+    let ln = (d.significant_bits().max(8) as f64) * std::f64::consts::LN_2;
+    let s = (ln * ln.ln()).sqrt();
+    // (a, c) for seconds, then for MiB
+    let ((at, ct), (am, cm)) = if *d < 0 {
+        ((-13.605, 0.830), (-0.599, 0.199))
+    } else {
+        ((-16.524, 1.257), (-1.860, 0.348))
+    };
+    Estimate {
+        seconds: (at + ct * s).exp(),
+        mib: (am + cm * s).exp(),
+    }
+}
+
+/// Refuses, before any work, a full proof whose estimated cost exceeds
+/// [`MAX_UNFORCED_SECONDS`] unless `force`; the message gives the estimate.
+pub fn check_cost(d: &Integer, force: bool) -> Result<(), ProveError> {
+    let e = estimate(d);
+    if force || e.seconds <= MAX_UNFORCED_SECONDS {
+        return Ok(());
+    }
+    Err(ProveError::TooCostly(format!(
+        "a full proof of this {}-digit D would take about {} and {} of memory on a machine like the benchmark's (an L(1/2, c) fit to this prover's measured times, BENCHMARKS.md; past the measured sizes it errs low), more than the hour allowed without --force; add --force to run it anyway, or certify a known class number with --claim-class-number, which costs seconds at any size the verifier accepts",
+        Integer::from(d.abs_ref()).to_string().len(),
+        duration_text(e.seconds),
+        memory_text(e.mib)
+    )))
+}
+
+fn duration_text(s: f64) -> String {
+    let (v, unit) = if s < 120.0 {
+        (s, "seconds")
+    } else if s < 7200.0 {
+        (s / 60.0, "minutes")
+    } else if s < 2.0 * 86_400.0 {
+        (s / 3600.0, "hours")
+    } else if s < 2.0 * 365.0 * 86_400.0 {
+        (s / 86_400.0, "days")
+    } else {
+        (s / (365.0 * 86_400.0), "years")
+    };
+    format!("{} {unit}", significant(v))
+}
+
+fn memory_text(mib: f64) -> String {
+    if mib < 2048.0 {
+        format!("{} MiB", significant(mib))
+    } else {
+        format!("{} GiB", significant(mib / 1024.0))
+    }
+}
+
+/// Two significant digits, in plain notation up to 10^6.
+fn significant(v: f64) -> String {
+    if v >= 1.0e6 {
+        return format!("{v:.1e}");
+    }
+    let digits = if v >= 10.0 { 0 } else { 1 };
+    let rounded = if v >= 100.0 {
+        let m = 10f64.powi(v.log10().floor() as i32 - 1);
+        (v / m).round() * m
+    } else {
+        v
+    };
+    format!("{rounded:.digits$}")
 }
 
 /// Whether the factorisation `(p, e)` of `|D|` shows `D` fundamental.

@@ -335,7 +335,7 @@ fn huge_input_is_not_echoed() {
     let o = run(&classcert, &["prove", &big, "-o", "/tmp/never.cert"]);
     assert_eq!(o.status.code(), Some(2));
     let e = stderr(&o);
-    assert!(e.contains("2001 digits") && e.contains("200 bits"), "{e}");
+    assert!(e.contains("2001 digits") && e.contains("4096 bits"), "{e}");
     assert!(e.len() < 300, "message too long: {} bytes", e.len());
     let junk = "x".repeat(3000);
     let o = run(&classcert, &["prove", &junk, "-o", "/tmp/never.cert"]);
@@ -592,6 +592,36 @@ fn progress_is_throttled_off_a_terminal() {
     let q = run(&classcert, &["prove", d, "-o", cert_s, "-q"]);
     assert_eq!(q.status.code(), Some(0));
     assert!(q.stderr.is_empty(), "{}", stderr(&q));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Issue 9: no fixed size cap for full proofs below the verifier's 4096
+/// bits; a proof whose estimated cost exceeds an hour is refused before any
+/// work, with the estimate, unless `--force`.
+#[test]
+fn full_proof_refused_with_an_estimate() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("estimate");
+    let cert = dir.join("e.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    let d = format!("-{}6", "1".repeat(80)); // 81 digits, D ≡ 0 (mod 4)
+    let started = std::time::Instant::now();
+    let o = run(&classcert, &["prove", &d, "-o", cert_s]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    let err = stderr(&o);
+    assert!(
+        err.contains("would take about") && err.contains("--force"),
+        "{err}"
+    );
+    assert!(started.elapsed().as_secs() < 5, "refused before any work");
+    assert!(!cert.exists());
+    // the verifier's own limit is the only hard one
+    let huge = format!("-{}", "4".repeat(1300));
+    let o = run(&classcert, &["prove", &huge, "-o", cert_s]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("4096 bits"), "{}", stderr(&o));
     let _ = std::fs::remove_dir_all(&dir);
 }
 

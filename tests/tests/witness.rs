@@ -246,3 +246,73 @@ fn a_30_digit_class_number_from_the_relation_prover() {
     let doubled = Integer::from(&h * 2);
     assert!(prove_witness(&d, &doubled, None, None, &Options::default()).is_err());
 }
+
+/// No size cap below the verifier's (issue 9, acceptance 4): `D = -4f²`
+/// with `f ≡ 3 (mod 4)` a prime of about 252 bits, so `|D|` has 505 bits.
+/// The class number formula for orders (D. A. Cox, *Primes of the form
+/// x² + ny²*, Theorem 7.24) gives `h(-4f²) = h(-4) f (1 - (-4/f)/f) /
+/// [O_K^* : O^*] = f (1 + 1/f) / 2 = (f + 1)/2`, since `h(-4) = 1`,
+/// `(-4/f) = -1` and `O_K^*` has 4 elements against 2. `f` is chosen so
+/// that `(f + 1)/2 = 2 · t · ∏ p` (odd primes p up to a bound) factors;
+/// primality of `f` is GMP's test (the reference library), and the class
+/// number comes from the formula, never from the prover.
+#[test]
+fn order_witness_beyond_the_old_400_bit_cap() {
+    let mut m = Integer::from(1);
+    let mut factors: Vec<Integer> = Vec::new();
+    let mut p = Integer::from(3);
+    while Integer::from(&m * &p).significant_bits() <= 250 {
+        m *= &p;
+        factors.push(p.clone());
+        p.next_prime_mut();
+    }
+    let (f, t) = (1u32..1000)
+        .map(|t| (Integer::from(&m * t) * 4u32 - 1u32, t))
+        .find(|(f, _)| f.is_probably_prime(40) != rug::integer::IsPrime::No)
+        .expect("a prime f = 4 t m - 1 with t < 1000");
+    assert_eq!(f.mod_u(4), 3);
+    let d = -(Integer::from(f.square_ref()) * 4u32);
+    assert!(d.significant_bits() > 500, "{} bits", d.significant_bits());
+    let h = Integer::from(&f + 1u32) / 2u32;
+    // H = 2 · t · ∏ p, with the factors of t found by trial division
+    factors.push(Integer::from(2));
+    factors.extend(factors_of(&Integer::from(t)));
+    factors.sort();
+    assert_eq!(factors.iter().product::<Integer>(), h);
+    let (bytes, _) = prove_witness_to_bytes(&d, &h, Some(factors), None, &Options::default())
+        .unwrap_or_else(|e| panic!("witness for h(-4f^2) = (f+1)/2: {e}"));
+    let report = verify_bytes(&bytes);
+    let v = report.outcome.as_ref().expect("verifies");
+    assert_eq!(*v.class_number(), h);
+    assert_eq!(
+        v.invariants(),
+        std::slice::from_ref(&h),
+        "the group is cyclic"
+    );
+    assert!(!v.maximal());
+    // twice the class number is refuted (no class has order 2H)
+    let mut twice = factors_of(&h);
+    twice.push(Integer::from(2));
+    twice.sort();
+    let err = prove_witness_to_bytes(&d, &(h * 2u32), Some(twice), None, &Options::default())
+        .expect_err("2H is not the class number");
+    assert!(
+        matches!(err, classcert_prover::ProveError::Refuted(_)),
+        "{err}"
+    );
+}
+
+/// The prime factors of a product of small primes, by trial division.
+fn factors_of(n: &Integer) -> Vec<Integer> {
+    let mut out = Vec::new();
+    let mut rest = n.clone();
+    let mut q = Integer::from(2);
+    while rest > 1 {
+        while rest.is_divisible(&q) {
+            rest /= &q;
+            out.push(q.clone());
+        }
+        q.next_prime_mut();
+    }
+    out
+}

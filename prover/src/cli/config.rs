@@ -11,13 +11,14 @@ use classcert_verifier::math::Interval;
 use rug::Integer;
 use std::path::{Path, PathBuf};
 
-/// The prover's size limits (`prove::validate` enforces the same; a test
-/// below checks that the two agree).
-pub const MAX_BITS_NEGATIVE: u32 = 400;
-pub const MAX_BITS_POSITIVE: u32 = 200;
-/// Decimal digits of `2^400` (an upper bound on the digits of any `D`
+/// The size limit is the verifier's (`setup::validate` enforces the same; a
+/// test below checks that the two agree). Above it nothing could be
+/// verified; below it a full proof is refused only by its estimated cost
+/// (`setup::check_cost`, overridden by `--force`).
+pub use classcert_verifier::limits::MAX_DISCRIMINANT_BITS;
+/// Decimal digits of `2^4096` (an upper bound on the digits of any `D`
 /// accepted), checked before the number is parsed.
-const MAX_DIGITS: usize = 121;
+const MAX_DIGITS: usize = 1234;
 /// Digits accepted for `H` and the entries of lists.
 const MAX_LIST_DIGITS: usize = 200;
 
@@ -48,6 +49,7 @@ pub struct ProveArgs {
     pub factors_of_h: Option<String>,
     pub claim_invariants: Option<String>,
     pub unconditional: bool,
+    pub force: bool,
 }
 
 /// Checks that `D` is a discriminant the prover handles; the message names
@@ -64,12 +66,7 @@ pub fn discriminant(s: &str) -> Result<Integer, String> {
         ));
     }
     let d = d?;
-    let limit = if d > 0 {
-        MAX_BITS_POSITIVE
-    } else {
-        MAX_BITS_NEGATIVE
-    };
-    if d.significant_bits() > limit {
+    if d.significant_bits() > MAX_DISCRIMINANT_BITS {
         return Err(size_message(
             d < 0,
             &format!("{} bits", d.significant_bits()),
@@ -93,7 +90,7 @@ pub fn discriminant(s: &str) -> Result<Integer, String> {
 
 fn size_message(negative: bool, size: &str) -> String {
     format!(
-        "D {} 0 has {size}, more than this prover handles: up to {MAX_BITS_NEGATIVE} bits (about 120 digits) for D < 0, {MAX_BITS_POSITIVE} bits (about 60 digits) for D > 0",
+        "D {} 0 has {size}, more than the verifier checks: |D| up to {MAX_DISCRIMINANT_BITS} bits (about 1233 digits)",
         if negative { "<" } else { ">" }
     )
 }
@@ -266,6 +263,7 @@ impl ProveConfig {
                 factors,
                 euler_x: a.euler_x,
                 unconditional: a.unconditional,
+                force: a.force,
                 ..Options::default()
             },
             claim,
@@ -281,21 +279,18 @@ mod tests {
 
     #[test]
     fn size_limits_agree_with_the_library() {
-        // the largest D < 0 of 400 bits that is ≡ 0 (mod 4), and one bit more
-        let top = -((Integer::from(1) << MAX_BITS_NEGATIVE) - 4u32);
-        assert!(discriminant(&top.to_string()).is_ok());
-        assert!(validate(&top).is_ok());
-        let over = Integer::from(&top * 2u32);
-        assert!(discriminant(&over.to_string()).is_err());
-        assert!(validate(&over).is_err());
-        let top = (Integer::from(1) << MAX_BITS_POSITIVE) - 4u32;
-        assert!(discriminant(&top.to_string()).is_ok());
-        assert!(validate(&top).is_ok());
-        let over = Integer::from(&top * 2u32);
-        assert!(discriminant(&over.to_string()).is_err());
-        assert!(validate(&over).is_err());
+        // the largest |D| of 4096 bits that is ≡ 0 (mod 4), and one bit more
+        for sign in [-1i32, 1] {
+            let top = ((Integer::from(1) << MAX_DISCRIMINANT_BITS) - 4u32) * sign;
+            assert!(discriminant(&top.to_string()).is_ok());
+            assert!(validate(&top).is_ok());
+            let over = Integer::from(&top * 2u32);
+            assert!(discriminant(&over.to_string()).is_err());
+            assert!(validate(&over).is_err());
+        }
         assert!(
-            Integer::from(1u32) << MAX_BITS_NEGATIVE < Integer::from(10u32).pow(MAX_DIGITS as u32)
+            Integer::from(1u32) << MAX_DISCRIMINANT_BITS
+                < Integer::from(10u32).pow(MAX_DIGITS as u32)
         );
     }
 

@@ -24,7 +24,9 @@ impl From<Exit> for ExitCode {
 impl Exit {
     pub fn of(e: &ProveError) -> Exit {
         match e {
-            ProveError::InvalidInput(_) | ProveError::Unsupported(_) => Exit::Usage,
+            ProveError::InvalidInput(_) | ProveError::Unsupported(_) | ProveError::TooCostly(_) => {
+                Exit::Usage
+            }
             ProveError::Refuted(_) => Exit::Refuted,
             ProveError::SearchFailed(_) => Exit::Failed,
             ProveError::SelfCheckFailed(_) => Exit::Internal,

@@ -72,6 +72,10 @@ enum Cmd {
         /// the cost grows like sqrt|D|).
         #[arg(long, conflicts_with = "claim_class_number")]
         unconditional: bool,
+        /// Run a full proof even when its estimated cost exceeds an hour (the
+        /// estimate is printed when the proof is refused).
+        #[arg(long, conflicts_with = "claim_class_number")]
+        force: bool,
         /// No progress on stderr (warnings are still printed).
         #[arg(short, long)]
         quiet: bool,
@@ -128,6 +132,7 @@ pub fn main() -> ExitCode {
             factors_of_h,
             claim_invariants,
             unconditional,
+            force,
             quiet,
         } => {
             let args = ProveArgs {
@@ -140,6 +145,7 @@ pub fn main() -> ExitCode {
                 factors_of_h,
                 claim_invariants,
                 unconditional,
+                force,
             };
             match ProveConfig::new(args) {
                 Ok(config) => prove(config, quiet),

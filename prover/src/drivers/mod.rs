@@ -15,7 +15,7 @@ pub mod witness;
 
 pub use common::encode_and_check;
 
-use crate::setup::{validate, Options, ProveError};
+use crate::setup::{check_cost, validate, Options, ProveError};
 use classcert_format::{Body, Document};
 use rug::Integer;
 
@@ -23,6 +23,7 @@ use rug::Integer;
 /// `D > 0`.
 pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     validate(d)?;
+    check_cost(d, opts.force)?;
     if *d > 0 {
         real::prove_real(d, opts)
     } else {
