@@ -12,8 +12,9 @@ digits=${*:-20 30}
 cargo build --release -q -p classcert-prover -p classcert-verifier --examples
 tmp=$(mktemp -d)
 median() { sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'; }
-echo "| digits | D | prove s (median of $runs) | verify s | verify/prove | certificate bytes | prove peak MiB | verify peak MiB |"
-echo "|---|---|---|---|---|---|---|---|"
+echo "| digits | D | prove s (median of $runs) | verify s | verify/prove | certificate bytes | factor base | eliminations | raw relations | dense block | prove peak MiB | verify peak MiB | threads |"
+echo "|---|---|---|---|---|---|---|---|---|---|---|---|---|"
+fits=""
 for n in $digits; do
   d=$(./target/release/examples/bench_d "$n" $kind)
   : > "$tmp/p"; : > "$tmp/v"
@@ -27,6 +28,19 @@ for n in $digits; do
   vs=$(cut -d' ' -f1 "$tmp/v" | median); vm=$(cut -d' ' -f2 "$tmp/v" | median)
   size=$(stat -c %s "$tmp/c.cert")
   ratio=$(awk -v a="$vs" -v b="$ps" 'BEGIN {printf "%.3f", (b > 0 ? a / b : 0)}')
-  echo "| $n | $d | $ps | $vs | $ratio | $size | $((pm / 1024)) | $((vm / 1024)) |"
+  read -r fb el raw block < <(./target/release/examples/cert_stats "$tmp/c.cert")
+  echo "| $n | $d | $ps | $vs | $ratio | $size | $fb | $el | $raw | $block | $((pm / 1024)) | $((vm / 1024)) | 1 |"
+  fits="$fits $d:$ps"
 done
 rm -rf "$tmp"
+# Least-squares fit of ln T = a + c sqrt(ln|D| ln ln|D|), the shape L(1/2, c)
+# of subexponential relation search, over the rows above.
+echo "$fits" | tr ' ' '\n' | awk -F: 'NF == 2 && $2 > 0 {
+  d = $1; sub(/^-/, "", d); l = length(d) * log(10); s = sqrt(l * log(l));
+  n++; sx += s; sy += log($2); sxx += s * s; sxy += s * log($2)
+} END {
+  if (n >= 2 && n * sxx - sx * sx > 0) {
+    c = (n * sxy - sx * sy) / (n * sxx - sx * sx); a = (sy - c * sx) / n
+    printf "\nfit over %d sizes: prove time = exp(%.3f + %.3f sqrt(ln|D| ln ln|D|)) s, i.e. L(1/2, c) with c = %.3f\n", n, a, c, c
+  }
+}'
