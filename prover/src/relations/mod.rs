@@ -26,6 +26,7 @@
 
 pub mod elements;
 pub mod forms;
+pub mod sieve;
 
 use ciborium::Value;
 use classcert_format::cbor::{self, DecodeError, MapReader, WalkLimits};
