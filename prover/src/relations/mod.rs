@@ -9,6 +9,8 @@
 //! a cluster can take the place of today's searches:
 //!
 //! - [`forms`]: random products of prime forms, reduced (`D < 0`);
+//! - [`sieve`]: smooth values of quadratic polynomials found by sieving,
+//!   with special-q eliminations (`D < 0`, large `|D|`);
 //! - [`elements`]: elements of small norm in products of prime ideals,
 //!   kept when trial division factors the norm (`D > 0`).
 //!
