@@ -171,6 +171,23 @@ pub(crate) fn gather(
     indices.map_while(find).collect()
 }
 
+/// Adds `e` to the exponent at `i`, dropping it when it becomes zero.
+pub(crate) fn add(v: &mut Sparse, i: usize, e: i64) {
+    let x = v.entry(i).or_insert(0);
+    *x += e;
+    if *x == 0 {
+        v.remove(&i);
+    }
+}
+
+/// A relation witnessed by its exponent vector alone (`D < 0`).
+pub(crate) fn plain(exponents: Sparse) -> FoundRelation {
+    FoundRelation {
+        exponents,
+        element: None,
+    }
+}
+
 /// Limits for decoding a batch: deep enough for its three levels, and
 /// room for a few million numbers.
 const BATCH_LIMITS: WalkLimits = WalkLimits {

@@ -20,10 +20,10 @@
 //! form reduction like every other `D < 0` relation. Single full relations
 //! only: large primes, self-initialisation and threads are later steps.
 
-use super::{gather, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
+use super::{add, gather, plain, Origin, RelationBatch, RelationSource, Sparse};
 use crate::fb::FactorBase;
 use crate::rng::Rng;
-use classcert_verifier::math::mod_small;
+use classcert_verifier::math::{mod_small, Form};
 use rug::Integer;
 use std::collections::{BTreeSet, VecDeque};
 use std::ops::Range;
@@ -82,14 +82,6 @@ pub struct SieveSearch<'a> {
     sieve: Vec<u8>,
     positions: u64,
     origin: Origin,
-}
-
-fn add(v: &mut Sparse, i: usize, e: i64) {
-    let x = v.entry(i).or_insert(0);
-    *x += e;
-    if *x == 0 {
-        v.remove(&i);
-    }
 }
 
 impl<'a> SieveSearch<'a> {
@@ -416,7 +408,7 @@ impl<'a> SieveSearch<'a> {
         let mut rel = Sparse::new();
         for (i, v) in factors {
             let p = fb.primes[i];
-            let ramified = fb.bs[i] % p == 0;
+            let ramified = fb.bs[i].is_multiple_of(p);
             let sign = if ramified || u.mod_u((2 * p) as u32) as u64 == fb.bs[i] % (2 * p) {
                 1
             } else {
@@ -425,6 +417,18 @@ impl<'a> SieveSearch<'a> {
             add(&mut rel, i, sign * v as i64);
         }
         Some(rel)
+    }
+
+    /// Whether the product of the prime forms to `rel` reduces to the
+    /// principal form: every emitted relation is checked so in debug builds.
+    fn holds(&self, rel: &Sparse) -> bool {
+        let exps: Vec<Integer> = rel.values().map(|&e| Integer::from(e)).collect();
+        let terms: Vec<(&Form, &Integer)> = rel
+            .keys()
+            .map(|&i| &self.fb.forms[i])
+            .zip(exps.iter())
+            .collect();
+        Form::product(&terms, &self.d).is_ok_and(|f| f == Form::principal(&self.d))
     }
 
     /// `rel` or its negative, whichever has a positive first entry.
@@ -450,6 +454,7 @@ impl<'a> SieveSearch<'a> {
                 let e = rel.get(&i).copied();
                 debug_assert!(e.is_some_and(|e| e.abs() == 1));
                 debug_assert!(rel.keys().all(|&j| j <= i));
+                debug_assert!(self.holds(&rel), "not a relation: {rel:?}");
                 return Some(if e == Some(-1) {
                     rel.iter().map(|(&j, &x)| (j, -x)).collect()
                 } else {
@@ -466,6 +471,7 @@ impl<'a> SieveSearch<'a> {
         loop {
             while let Some(rel) = self.queue.pop_front() {
                 if self.emitted.insert(Self::normal(&rel)) {
+                    debug_assert!(self.holds(&rel), "not a relation: {rel:?}");
                     return Some(rel);
                 }
             }
@@ -478,13 +484,6 @@ impl<'a> SieveSearch<'a> {
             let found = self.sieve_poly(&poly, n, None);
             self.queue.extend(found);
         }
-    }
-}
-
-fn plain(exponents: Sparse) -> FoundRelation {
-    FoundRelation {
-        exponents,
-        element: None,
     }
 }
 
@@ -550,8 +549,7 @@ mod tests {
 
     /// Every relation the sieve emits is one: the product of the prime
     /// forms to its exponents reduces to the principal form (the definition
-    /// of a relation, common practice). Eliminations have coefficient +1 at
-    /// their index and support below it.
+    /// of a relation, common practice).
     #[test]
     fn sieved_relations_reduce_to_the_principal_form() {
         for (d, conductor) in cases() {
@@ -561,10 +559,7 @@ mod tests {
             let elim = s.eliminations(k..fb.len(), 2_000_000);
             assert_eq!(elim.relations.len(), fb.len() - k, "D = {d}");
             for (i, rel) in (k..).zip(&elim.relations) {
-                let r = &rel.exponents;
-                assert_eq!(r.get(&i), Some(&1), "D = {d}, i = {i}: {r:?}");
-                assert_eq!(r.keys().next_back(), Some(&i), "D = {d}, i = {i}: {r:?}");
-                assert!(holds(&fb, &d, r), "D = {d}, elimination {i}: {r:?}");
+                assert!(holds(&fb, &d, &rel.exponents), "D = {d}, elimination {i}");
             }
             let rels = s.relations(60, 5_000_000);
             assert_eq!(rels.relations.len(), 60, "D = {d}");
@@ -574,6 +569,36 @@ mod tests {
                     "D = {d}: {:?}",
                     rel.exponents
                 );
+            }
+            // no relation twice, up to sign
+            let distinct: BTreeSet<Sparse> = rels
+                .relations
+                .iter()
+                .map(|r| SieveSearch::normal(&r.exponents))
+                .collect();
+            assert_eq!(distinct.len(), 60, "D = {d}");
+        }
+    }
+
+    /// An elimination for index `i` has coefficient +1 at `i` and support
+    /// on indices below `i` (what `BatchKind::Eliminations` promises), for
+    /// every prime beyond a small essential block.
+    #[test]
+    fn eliminations_have_a_unit_pivot_and_lower_support() {
+        for (d, conductor) in cases() {
+            let fb = base(&d, &conductor);
+            let k = 40.min(fb.len());
+            let mut s = SieveSearch::new(&d, &fb, k, 2);
+            let elim = s.eliminations(k..fb.len(), 2_000_000);
+            assert_eq!(elim.relations.len(), fb.len() - k, "D = {d}");
+            assert_eq!(
+                (elim.header.first, elim.header.end),
+                (k as u64, fb.len() as u64)
+            );
+            for (i, rel) in (k..).zip(&elim.relations) {
+                let r = &rel.exponents;
+                assert_eq!(r.get(&i), Some(&1), "D = {d}, i = {i}: {r:?}");
+                assert_eq!(r.keys().next_back(), Some(&i), "D = {d}, i = {i}: {r:?}");
             }
         }
     }
@@ -593,7 +618,7 @@ mod tests {
             let mut r = rel.exponents;
             let Some((&i, _)) = r
                 .iter()
-                .find(|(&i, &e)| e.abs() == 1 && fb.bs[i] % fb.primes[i] != 0)
+                .find(|(&i, &e)| e.abs() == 1 && !fb.bs[i].is_multiple_of(fb.primes[i]))
             else {
                 continue;
             };
