@@ -186,7 +186,10 @@ impl<'a> SieveSearch<'a> {
         for attempt in 0..64usize {
             let mut primes = chosen.clone();
             let mut left = want;
-            if left >= 4.0 {
+            // a special prime near the target alone gives one polynomial;
+            // after that it takes a small companion
+            if left >= 4.0 || (attempt > 0 && !primes.is_empty()) {
+                left = left.max(2.0);
                 // factors of about 2^11, at least two when a allows it (so
                 // that there are many a to choose from), one more after
                 // every 16 repeats
