@@ -5,7 +5,7 @@
 //! `a = ∏ p^e`, then `(a, b, c) ~ ∏ P_p^{±e}` with the sign `+` exactly
 //! when `b ≡ b_p (mod 2p)` (composition of united forms).
 
-use super::{gather, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
+use super::{add, gather, plain, Origin, RelationBatch, RelationSource, Sparse};
 use crate::fb::FactorBase;
 use crate::rng::Rng;
 use classcert_verifier::math::Form;
@@ -24,14 +24,6 @@ pub struct FormSearch<'a> {
     pool: Vec<(Form, Vec<(usize, i64)>)>,
     attempts: u64,
     origin: Origin,
-}
-
-fn add(v: &mut Sparse, i: usize, e: i64) {
-    let x = v.entry(i).or_insert(0);
-    *x += e;
-    if *x == 0 {
-        v.remove(&i);
-    }
 }
 
 impl<'a> FormSearch<'a> {
@@ -223,13 +215,6 @@ impl<'a> FormSearch<'a> {
             }
         }
         None
-    }
-}
-
-fn plain(exponents: Sparse) -> FoundRelation {
-    FoundRelation {
-        exponents,
-        element: None,
     }
 }
 

@@ -9,6 +9,8 @@
 //! a cluster can take the place of today's searches:
 //!
 //! - [`forms`]: random products of prime forms, reduced (`D < 0`);
+//! - [`sieve`]: smooth values of quadratic polynomials found by sieving,
+//!   with special-q eliminations (`D < 0`, large `|D|`);
 //! - [`elements`]: elements of small norm in products of prime ideals,
 //!   kept when trial division factors the norm (`D > 0`).
 //!
@@ -26,6 +28,7 @@
 
 pub mod elements;
 pub mod forms;
+pub mod sieve;
 
 use ciborium::Value;
 use classcert_format::cbor::{self, DecodeError, MapReader, WalkLimits};
@@ -166,6 +169,23 @@ pub(crate) fn gather(
     find: impl FnMut(usize) -> Option<FoundRelation>,
 ) -> Vec<FoundRelation> {
     indices.map_while(find).collect()
+}
+
+/// Adds `e` to the exponent at `i`, dropping it when it becomes zero.
+pub(crate) fn add(v: &mut Sparse, i: usize, e: i64) {
+    let x = v.entry(i).or_insert(0);
+    *x += e;
+    if *x == 0 {
+        v.remove(&i);
+    }
+}
+
+/// A relation witnessed by its exponent vector alone (`D < 0`).
+pub(crate) fn plain(exponents: Sparse) -> FoundRelation {
+    FoundRelation {
+        exponents,
+        element: None,
+    }
 }
 
 /// Limits for decoding a batch: deep enough for its three levels, and
