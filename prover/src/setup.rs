@@ -119,22 +119,20 @@ pub struct Estimate {
 }
 
 /// Without `--force`, a full proof whose estimate exceeds an hour is
-/// refused (the estimate is an extrapolation, and past the measured range
-/// it errs on the low side: a 45-digit D < 0 estimated at 100 s ran for over
-/// 20 minutes).
+/// refused (the estimate is an extrapolation past the measured range).
 pub const MAX_UNFORCED_SECONDS: f64 = 3600.0;
 
 /// `exp(a + c · sqrt(ln|D| ln ln|D|))`, the shape `L(1/2, c)` of
 /// subexponential relation search, fitted by least squares to this
-/// prover's measured medians (BENCHMARKS.md: D < 0 at 20–40 digits, D > 0
-/// at 15–25 digits), time and peak memory separately. An estimate, not a
+/// prover's measured medians (BENCHMARKS.md: D < 0 at 30–45 digits with
+/// the sieve, D > 0 at 15–25 digits), time and peak memory separately. An estimate, not a
 /// promise: it knows only the measured range and the shape of the curve.
 pub fn estimate(d: &Integer) -> Estimate {
     let ln = (d.significant_bits().max(8) as f64) * std::f64::consts::LN_2;
     let s = (ln * ln.ln()).sqrt();
     // (a, c) for seconds, then for MiB
     let ((at, ct), (am, cm)) = if *d < 0 {
-        ((-13.605, 0.830), (-0.599, 0.199))
+        ((-12.936, 0.749), (-0.837, 0.210))
     } else {
         ((-16.524, 1.257), (-1.860, 0.348))
     };
@@ -152,7 +150,7 @@ pub fn check_cost(d: &Integer, force: bool) -> Result<(), ProveError> {
         return Ok(());
     }
     Err(ProveError::TooCostly(format!(
-        "a full proof of this {}-digit D would take about {} and {} of memory on a machine like the benchmark's (an L(1/2, c) fit to this prover's measured times, BENCHMARKS.md; past the measured sizes it errs low), more than the hour allowed without --force; add --force to run it anyway, or certify a known class number with --claim-class-number, which costs seconds at any size the verifier accepts",
+        "a full proof of this {}-digit D would take about {} and {} of memory on a machine like the benchmark's (an L(1/2, c) fit to this prover's measured times, BENCHMARKS.md; an extrapolation past the measured sizes), more than the hour allowed without --force; add --force to run it anyway, or certify a known class number with --claim-class-number, which costs seconds at any size the verifier accepts",
         Integer::from(d.abs_ref()).to_string().len(),
         duration_text(e.seconds),
         memory_text(e.mib)
