@@ -625,6 +625,44 @@ fn full_proof_refused_with_an_estimate() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// Issue 9, acceptance 3: the certificate does not depend on the number of
+/// threads. One core (`taskset -c 0`, so the prover sees one) against all
+/// of them, at 36 digits, where the sieve and the threaded determinants
+/// are used (D = -4p, p the first prime ≡ 1 mod 4 above 2.5·10^34, our
+/// benchmark choice).
+#[test]
+fn one_and_all_cores_give_identical_bytes() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("threads");
+    let one = dir.join("one.cert");
+    let all = dir.join("all.cert");
+    let d = "-100000000000000000000000000000000388";
+    let o = Command::new("taskset")
+        .args(["-c", "0"])
+        .arg(&classcert)
+        .args(["prove", d, "-q", "-o"])
+        .arg(&one)
+        .output()
+        .expect("taskset (util-linux) runs");
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let o = run(
+        &classcert,
+        &["prove", d, "-q", "-o", all.to_str().expect("utf-8")],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let (a, b) = (
+        std::fs::read(&one).expect("one"),
+        std::fs::read(&all).expect("all"),
+    );
+    assert!(
+        a == b,
+        "the certificates differ between one core and all cores"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
 /// `-q` hides progress, never a warning: an `|D|` whose two prime factors
 /// (our own choice, the primes after 2^50 and 2^51 with a product ≡ 3 mod
 /// 4) are out of reach of the factoring budget, so maximality is not

@@ -159,7 +159,9 @@ fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
 
 /// The determinant of a square integer matrix, by Gaussian elimination
 /// modulo word primes and the Chinese remainder theorem, up to twice
-/// Hadamard's bound.
+/// Hadamard's bound. The primes are fixed before any work and the residues
+/// combined in their order, so the result does not depend on the number of
+/// threads that compute the residues (all cores, at most 8).
 pub fn det_crt(m: &[Vec<i64>]) -> Integer {
     let mut bound = Integer::from(1);
     for r in m {
@@ -169,16 +171,24 @@ pub fn det_crt(m: &[Vec<i64>]) -> Integer {
         bound *= root;
     }
     bound <<= 1u32;
+    let mut primes = Vec::new();
     let mut modulus = Integer::from(1);
-    let mut value = Integer::new();
     let mut cand: u64 = (1u64 << 62) - 1;
     while modulus <= bound {
         while Integer::from(cand).is_probably_prime(30) == rug::integer::IsPrime::No {
             cand -= 2;
         }
-        let p = cand;
+        primes.push(cand);
+        modulus *= cand;
         cand -= 2;
-        let r = det_mod_p(m, p);
+    }
+    let threads = std::thread::available_parallelism()
+        .map_or(1, |n| n.get())
+        .clamp(1, 8);
+    let residues = residues(m, &primes, threads);
+    let mut modulus = Integer::from(1);
+    let mut value = Integer::new();
+    for (&p, r) in primes.iter().zip(residues) {
         // x ≡ value (mod modulus), x ≡ r (mod p)
         let pm = Integer::from(p);
         let diff = (Integer::from(r) - &value).rem_euc(&pm);
@@ -194,9 +204,44 @@ pub fn det_crt(m: &[Vec<i64>]) -> Integer {
     value
 }
 
+/// `det(m) mod p` for each of `primes`, in their order, on up to `threads`
+/// threads (each takes a contiguous share of the primes).
+fn residues(m: &[Vec<i64>], primes: &[u64], threads: usize) -> Vec<u64> {
+    if threads <= 1 || primes.len() < 2 {
+        return primes.iter().map(|&p| det_mod_p(m, p)).collect();
+    }
+    let share = primes.len().div_ceil(threads);
+    std::thread::scope(|scope| {
+        let handles: Vec<_> = primes
+            .chunks(share)
+            .map(|ps| scope.spawn(move || ps.iter().map(|&p| det_mod_p(m, p)).collect::<Vec<_>>()))
+            .collect();
+        handles
+            .into_iter()
+            .flat_map(|h| h.join().expect("a determinant thread panicked"))
+            .collect()
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn residues_do_not_depend_on_the_thread_count() {
+        let m: Vec<Vec<i64>> = (0..12)
+            .map(|i| {
+                (0..12)
+                    .map(|j| ((i * 7 + j * 13) % 11) as i64 - 5 + i64::from(i == j) * 9)
+                    .collect()
+            })
+            .collect();
+        let primes = [1_000_003u64, 1_000_033, 1_000_037, 1_000_039, 1_000_081];
+        let one = residues(&m, &primes, 1);
+        for t in 2..=4 {
+            assert_eq!(residues(&m, &primes, t), one, "{t} threads");
+        }
+    }
 
     #[test]
     fn det_small() {
