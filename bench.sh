@@ -29,7 +29,7 @@ for n in $digits; do
   size=$(stat -c %s "$tmp/c.cert")
   ratio=$(awk -v a="$vs" -v b="$ps" 'BEGIN {printf "%.3f", (b > 0 ? a / b : 0)}')
   read -r fb el raw block < <(./target/release/examples/cert_stats "$tmp/c.cert")
-  echo "| $n | $d | $ps | $vs | $ratio | $size | $fb | $el | $raw | $block | $((pm / 1024)) | $((vm / 1024)) | 1 |"
+  echo "| $n | $d | $ps | $vs | $ratio | $size | $fb | $el | $raw | $block | $((pm / 1024)) | $((vm / 1024)) | $(nproc) |"
   fits="$fits $d:$ps"
 done
 rm -rf "$tmp"
