@@ -5,12 +5,11 @@
 //! `a = ∏ p^e`, then `(a, b, c) ~ ∏ P_p^{±e}` with the sign `+` exactly
 //! when `b ≡ b_p (mod 2p)` (composition of united forms).
 
-use super::{add, gather, plain, Origin, RelationBatch, RelationSource, Sparse};
+use super::{add, OneAtATime, Origin, Sparse};
 use crate::fb::FactorBase;
 use crate::rng::Rng;
 use classcert_verifier::math::Form;
 use rug::Integer;
-use std::ops::Range;
 
 /// Factor-base index after which the early-abort test is made.
 const EARLY_ABORT_INDEX: usize = 150;
@@ -218,19 +217,20 @@ impl<'a> FormSearch<'a> {
     }
 }
 
-impl RelationSource for FormSearch<'_> {
-    fn eliminations(&mut self, ideals: Range<usize>, attempts: u64) -> RelationBatch {
-        let first = ideals.start;
-        let found = gather(ideals, |i| self.elimination(i, attempts).map(plain));
-        self.origin.eliminations(first, found)
+impl OneAtATime for FormSearch<'_> {
+    fn elimination(&mut self, i: usize, attempts: u64) -> Option<Sparse> {
+        FormSearch::elimination(self, i, attempts)
     }
 
-    fn relations(&mut self, count: usize, attempts: u64) -> RelationBatch {
-        let found = gather(0..count, |_| self.relation(attempts).map(plain));
-        self.origin.relations(found)
+    fn relation(&mut self, attempts: u64) -> Option<Sparse> {
+        FormSearch::relation(self, attempts)
     }
 
-    fn candidates(&self) -> u64 {
+    fn origin(&mut self) -> &mut Origin {
+        &mut self.origin
+    }
+
+    fn looked_at(&self) -> u64 {
         self.attempts
     }
 }

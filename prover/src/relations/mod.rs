@@ -164,6 +164,36 @@ impl Origin {
 
 /// What `find` gives for each of `indices` in turn, up to the first index
 /// it finds nothing for.
+/// A `D < 0` search that finds one plain relation (an exponent vector,
+/// checked by form reduction) at a time; the batch plumbing of
+/// [`RelationSource`] is shared by every such search.
+pub(crate) trait OneAtATime {
+    /// An elimination for factor-base index `i`: `+1` at `i`, support below.
+    fn elimination(&mut self, i: usize, attempts: u64) -> Option<Sparse>;
+    /// A relation over the whole factor base.
+    fn relation(&mut self, attempts: u64) -> Option<Sparse>;
+    fn origin(&mut self) -> &mut Origin;
+    /// Candidates looked at so far.
+    fn looked_at(&self) -> u64;
+}
+
+impl<T: OneAtATime> RelationSource for T {
+    fn eliminations(&mut self, ideals: Range<usize>, attempts: u64) -> RelationBatch {
+        let first = ideals.start;
+        let found = gather(ideals, |i| self.elimination(i, attempts).map(plain));
+        self.origin().eliminations(first, found)
+    }
+
+    fn relations(&mut self, count: usize, attempts: u64) -> RelationBatch {
+        let found = gather(0..count, |_| self.relation(attempts).map(plain));
+        self.origin().relations(found)
+    }
+
+    fn candidates(&self) -> u64 {
+        self.looked_at()
+    }
+}
+
 pub(crate) fn gather(
     indices: Range<usize>,
     find: impl FnMut(usize) -> Option<FoundRelation>,

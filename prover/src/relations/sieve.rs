@@ -20,13 +20,12 @@
 //! form reduction like every other `D < 0` relation. Single full relations
 //! only: large primes, self-initialisation and threads are later steps.
 
-use super::{add, gather, plain, Origin, RelationBatch, RelationSource, Sparse};
+use super::{add, OneAtATime, Origin, Sparse};
 use crate::fb::FactorBase;
 use crate::rng::Rng;
 use classcert_verifier::math::{mod_small, Form};
 use rug::Integer;
 use std::collections::{BTreeSet, VecDeque};
-use std::ops::Range;
 
 /// Primes below this are not sieved (their roots are dense and their
 /// logarithms small); they are divided out of every candidate instead.
@@ -490,19 +489,20 @@ impl<'a> SieveSearch<'a> {
     }
 }
 
-impl RelationSource for SieveSearch<'_> {
-    fn eliminations(&mut self, ideals: Range<usize>, attempts: u64) -> RelationBatch {
-        let first = ideals.start;
-        let found = gather(ideals, |i| self.elimination(i, attempts).map(plain));
-        self.origin.eliminations(first, found)
+impl OneAtATime for SieveSearch<'_> {
+    fn elimination(&mut self, i: usize, attempts: u64) -> Option<Sparse> {
+        SieveSearch::elimination(self, i, attempts)
     }
 
-    fn relations(&mut self, count: usize, attempts: u64) -> RelationBatch {
-        let found = gather(0..count, |_| self.relation(attempts).map(plain));
-        self.origin.relations(found)
+    fn relation(&mut self, attempts: u64) -> Option<Sparse> {
+        SieveSearch::relation(self, attempts)
     }
 
-    fn candidates(&self) -> u64 {
+    fn origin(&mut self) -> &mut Origin {
+        &mut self.origin
+    }
+
+    fn looked_at(&self) -> u64 {
         self.positions / POSITIONS_PER_CANDIDATE
     }
 }
@@ -510,6 +510,7 @@ impl RelationSource for SieveSearch<'_> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::relations::RelationSource;
     use classcert_verifier::math::{primes_up_to, Form};
 
     fn holds(fb: &FactorBase, d: &Integer, rel: &Sparse) -> bool {
