@@ -26,7 +26,7 @@
 //! or let the input drive unbounded work (every cap is in [`limits`]).
 
 #![forbid(unsafe_code)]
-// The panic-free set (`unwrap`, `expect`, indexing, `panic!`) is denied by
+// The panic-free set (`unwrap`, `expect`, indexing, the panic macro) is denied by
 // the workspace lints (Cargo.toml). Only the unit tests may panic: a failed
 // assertion is how a test reports.
 #![cfg_attr(

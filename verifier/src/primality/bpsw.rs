@@ -25,7 +25,7 @@
 //! # Robustness
 //!
 //! This module is part of the trusted base. It contains no `unsafe`, no
-//! panicking constructs (no `unwrap`, `expect`, `panic!`, `unreachable!`, slice
+//! panicking constructs (no `unwrap`, `expect`, panic or unreachable macros, slice
 //! indexing), no unchecked machine-integer arithmetic, and the work per call is
 //! bounded: inputs with more than [`MAX_BITS`] bits are rejected outright, and
 //! the search for `D` is capped at [`MAX_D_CANDIDATES`] candidates.
