@@ -3,7 +3,7 @@
 //! §2.4.3, after Domich–Kannan–Trotter).
 
 use super::matrix::Matrix;
-use rug::ops::{DivRounding, RemRounding};
+use rug::ops::DivRounding;
 use rug::Integer;
 
 /// Upper-triangular basis of a lattice in `Z^k`, built one vector at a time.
@@ -49,7 +49,7 @@ impl Hnf {
         if let Some(d) = self.reducer() {
             for x in v.iter_mut() {
                 if x.significant_bits() >= d.significant_bits() {
-                    *x = Integer::from((&*x).rem_euc(d));
+                    x.modulo_mut(d); // d > 0, so this is the Euclidean remainder
                 }
             }
         }
@@ -75,10 +75,15 @@ impl Hnf {
                     return;
                 }
                 Some(mut b) => {
+                    // in-place multiply-adds (GMP's addmul/submul), no
+                    // temporary per entry: this loop is the Hermite form's
+                    // inner loop
                     if v[j].is_divisible(&b[j]) {
                         let q = Integer::from(&v[j] / &b[j]);
                         for (x, y) in v.iter_mut().zip(b.iter()).skip(j) {
-                            *x -= Integer::from(&q * y);
+                            if !y.is_zero() {
+                                *x -= &q * y;
+                            }
                         }
                     } else {
                         let (g, s, t) =
@@ -87,8 +92,11 @@ impl Hnf {
                         let vj = Integer::from(&v[j] / &g);
                         let mut nb = Vec::with_capacity(self.k);
                         for (x, y) in v.iter_mut().zip(b.iter()) {
-                            nb.push(Integer::from(&s * y) + Integer::from(&t * &*x));
-                            *x = Integer::from(&bj * &*x) - Integer::from(&vj * y);
+                            let mut n = Integer::from(&s * y);
+                            n += &t * &*x;
+                            nb.push(n);
+                            *x *= &bj;
+                            *x -= &vj * y;
                         }
                         if nb[j] < 0 {
                             for x in nb.iter_mut() {
@@ -124,7 +132,7 @@ impl Hnf {
             for row in self.rows.iter_mut().flatten() {
                 for x in row.iter_mut() {
                     if x.significant_bits() > d.significant_bits() {
-                        *x = Integer::from((&*x).rem_euc(&d));
+                        x.modulo_mut(&d);
                     }
                 }
             }
@@ -155,8 +163,7 @@ impl Hnf {
                 let (ri, rj) = (&mut top[i], &bottom[0]);
                 for c in j..k {
                     if !rj[c].is_zero() {
-                        let t = Integer::from(&q * &rj[c]);
-                        ri[c] -= t;
+                        ri[c] -= &q * &rj[c];
                     }
                 }
             }
