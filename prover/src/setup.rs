@@ -132,7 +132,7 @@ pub fn estimate(d: &Integer) -> Estimate {
     let s = (ln * ln.ln()).sqrt();
     // (a, c) for seconds, then for MiB
     let ((at, ct), (am, cm)) = if *d < 0 {
-        ((-12.044, 0.695), (-0.837, 0.210))
+        ((-11.272, 0.651), (-0.837, 0.210))
     } else {
         ((-16.524, 1.257), (-1.860, 0.348))
     };
