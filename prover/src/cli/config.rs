@@ -38,17 +38,49 @@ pub struct Claim {
     pub invariants: Option<Vec<Integer>>,
 }
 
-/// The raw arguments of `prove`, as clap gives them.
+/// The raw arguments of `prove`, as clap gives them (`-q` aside).
+#[derive(clap::Args)]
 pub struct ProveArgs {
-    pub discriminant: Vec<String>,
+    /// The discriminant D: an optional '-' and decimal digits only, ≡ 0 or
+    /// 1 mod 4, not a square; e.g. -3299 or 316.
+    #[arg(allow_hyphen_values = true)]
+    pub discriminant: String,
+    /// A second discriminant (refused with a clear message).
+    #[arg(hide = true, allow_negative_numbers = true)]
+    pub more: Vec<String>,
+    /// Where to write the certificate (its directory must exist).
+    #[arg(short, long)]
     pub output: PathBuf,
+    /// Seed of the deterministic search (the same seed gives the same file).
+    #[arg(long, default_value_t = 1)]
     pub seed: u64,
+    /// Prime factors of |D|, comma-separated ("2,2,5" or "2^2,5"), to claim maximality without factoring.
+    #[arg(long, value_name = "LIST")]
     pub factors: Option<String>,
+    /// Euler-product cut-off X, in [69, 50000000] (default: chosen so the error term is at most 0.2).
+    #[arg(long, value_name = "X")]
     pub euler_x: Option<u64>,
+    /// Certify this class number with order witnesses (classes of exact
+    /// orders d_i, independent, and the analytic bound #Cl < 2H) instead
+    /// of computing the class group; D < 0. The group is taken cyclic
+    /// unless --claim-invariants gives its structure.
+    #[arg(long, value_name = "H")]
     pub claim_class_number: Option<String>,
+    /// Prime factors of H, comma-separated, instead of factoring H.
+    #[arg(long, value_name = "LIST", requires = "claim_class_number")]
     pub factors_of_h: Option<String>,
+    /// The claimed invariants d1,d2,... (d1 | d2 | ..., product H) for a
+    /// group that is not cyclic; one witness per invariant.
+    #[arg(long, value_name = "LIST", requires = "claim_class_number")]
     pub claim_invariants: Option<String>,
+    /// Certify without GRH: the prime ideals up to sqrt(|D|/3) generate,
+    /// and h comes from an exact series (maximal orders, -10^12 <= D < -4;
+    /// the cost grows like sqrt|D|).
+    #[arg(long, conflicts_with = "claim_class_number")]
     pub unconditional: bool,
+    /// Run a full proof even when its estimated cost exceeds an hour (the
+    /// estimate is printed when the proof is refused).
+    #[arg(long, conflicts_with = "claim_class_number")]
     pub force: bool,
 }
 
@@ -156,16 +188,15 @@ fn factor_list(flag: &str, s: &str, target: &Integer, what: &str) -> Result<Vec<
 
 impl ProveConfig {
     pub fn new(a: ProveArgs) -> Result<ProveConfig, String> {
-        let d = match a.discriminant.as_slice() {
-            [one] => discriminant(one)?,
-            [] => return Err("no discriminant given".into()),
-            [first, second, ..] => {
+        let d = match a.more.as_slice() {
+            [] => discriminant(&a.discriminant)?,
+            [second, ..] => {
                 return Err(format!(
                     "prove takes one discriminant, but {} were given ('{}', '{}'{}); prove them one at a time",
-                    a.discriminant.len(),
-                    shown(first),
+                    a.more.len() + 1,
+                    shown(&a.discriminant),
                     shown(second),
-                    if a.discriminant.len() > 2 { ", ..." } else { "" }
+                    if a.more.len() > 1 { ", ..." } else { "" }
                 ))
             }
         };

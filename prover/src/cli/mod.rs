@@ -35,47 +35,8 @@ enum Cmd {
     /// Compute Cl(O_D) (and the unit group when D > 0) and write a certificate.
     #[command(after_help = EXIT_HELP)]
     Prove {
-        /// The discriminant D: an optional '-' and decimal digits only, ≡ 0 or
-        /// 1 mod 4, not a square; e.g. -3299 or 316.
-        #[arg(allow_hyphen_values = true)]
-        discriminant: String,
-        /// A second discriminant (refused with a clear message).
-        #[arg(hide = true, allow_negative_numbers = true)]
-        more: Vec<String>,
-        /// Where to write the certificate (its directory must exist).
-        #[arg(short, long)]
-        output: PathBuf,
-        /// Seed of the deterministic search (the same seed gives the same file).
-        #[arg(long, default_value_t = 1)]
-        seed: u64,
-        /// Prime factors of |D|, comma-separated ("2,2,5" or "2^2,5"), to claim maximality without factoring.
-        #[arg(long, value_name = "LIST")]
-        factors: Option<String>,
-        /// Euler-product cut-off X, in [69, 50000000] (default: chosen so the error term is at most 0.2).
-        #[arg(long, value_name = "X")]
-        euler_x: Option<u64>,
-        /// Certify this class number with order witnesses (classes of exact
-        /// orders d_i, independent, and the analytic bound #Cl < 2H) instead
-        /// of computing the class group; D < 0. The group is taken cyclic
-        /// unless --claim-invariants gives its structure.
-        #[arg(long, value_name = "H")]
-        claim_class_number: Option<String>,
-        /// Prime factors of H, comma-separated, instead of factoring H.
-        #[arg(long, value_name = "LIST", requires = "claim_class_number")]
-        factors_of_h: Option<String>,
-        /// The claimed invariants d1,d2,... (d1 | d2 | ..., product H) for a
-        /// group that is not cyclic; one witness per invariant.
-        #[arg(long, value_name = "LIST", requires = "claim_class_number")]
-        claim_invariants: Option<String>,
-        /// Certify without GRH: the prime ideals up to sqrt(|D|/3) generate,
-        /// and h comes from an exact series (maximal orders, -10^12 <= D < -4;
-        /// the cost grows like sqrt|D|).
-        #[arg(long, conflicts_with = "claim_class_number")]
-        unconditional: bool,
-        /// Run a full proof even when its estimated cost exceeds an hour (the
-        /// estimate is printed when the proof is refused).
-        #[arg(long, conflicts_with = "claim_class_number")]
-        force: bool,
+        #[command(flatten)]
+        args: ProveArgs,
         /// No progress on stderr (warnings are still printed).
         #[arg(short, long)]
         quiet: bool,
@@ -121,37 +82,10 @@ pub fn style() -> Style {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.cmd {
-        Cmd::Prove {
-            discriminant,
-            more,
-            output,
-            seed,
-            factors,
-            euler_x,
-            claim_class_number,
-            factors_of_h,
-            claim_invariants,
-            unconditional,
-            force,
-            quiet,
-        } => {
-            let args = ProveArgs {
-                discriminant: std::iter::once(discriminant).chain(more).collect(),
-                output,
-                seed,
-                factors,
-                euler_x,
-                claim_class_number,
-                factors_of_h,
-                claim_invariants,
-                unconditional,
-                force,
-            };
-            match ProveConfig::new(args) {
-                Ok(config) => prove(config, quiet),
-                Err(e) => fail(Exit::Usage, &e),
-            }
-        }
+        Cmd::Prove { args, quiet } => match ProveConfig::new(args) {
+            Ok(config) => prove(config, quiet),
+            Err(e) => fail(Exit::Usage, &e),
+        },
         Cmd::Show { file, json } => show_file(&file, json),
         Cmd::Demo { dir, quiet } => demo::run(dir, quiet),
     }
