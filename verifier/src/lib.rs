@@ -75,7 +75,7 @@ pub mod math {
     /// The Euler product of the analytic bound (registry entry
     /// `belabas-friedman-2015-thm1`).
     pub mod euler {
-        pub use crate::analytic::euler::{compute, error_bound, EulerResult, Partial, MIN_X};
+        pub use crate::analytic::euler::{compute, error_bound, EulerResult, MIN_X};
     }
     /// The unconditional class number series (`erfc-series-class-number`).
     pub mod series {
@@ -89,7 +89,7 @@ pub mod math {
     /// Units in compact representation: the chain check, which the prover
     /// also uses to confirm the chain it built.
     pub mod units {
-        pub use crate::units::compact::{check_chain, Chain};
+        pub use crate::units::compact::check_chain;
     }
 }
 

@@ -25,9 +25,10 @@ pub fn shown(s: &str) -> String {
     format!("{head}...({unit})")
 }
 
-/// An integer as it may appear in a message.
+/// An integer as it may appear in a message (the verifier's rule, so both
+/// programs shorten numbers alike).
 pub fn shown_int(x: &Integer) -> String {
-    shown(&x.to_string())
+    classcert_verifier::report::short_number(x)
 }
 
 /// The rule [`integer`] enforces, for messages.

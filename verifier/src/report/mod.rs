@@ -12,7 +12,7 @@ pub use crate::pipeline::Verified;
 pub use reason::{Reason, Rejection};
 pub use view::{
     decimal, generator_text, ideals_text, invariants_text, prime_powers_text, short_number,
-    Assumption, CertificateKind, GeneratorView, UnitSummary, MAX_SHOWN_DIGITS,
+    Assumption, CertificateKind, GeneratorView, UnitSummary,
 };
 
 use rug::Integer;
