@@ -15,8 +15,9 @@
 //! Layout, along the mathematics: [`setup`] (what every driver shares),
 //! [`drivers`] (one per kind of certificate), [`relations`] (the
 //! `RelationSource` trait, the `RelationBatch` type and today's two
-//! searches), [`linalg`], [`units`], [`factor`], [`fb`] (the factor base)
-//! and [`rng`].
+//! searches), [`linalg`], [`units`], [`factor`], [`fb`] (the factor base),
+//! [`rng`] and [`checkpoint`] (the directory of `--resume`, which keeps
+//! relation rounds on disk).
 
 // Matrix code here reads more plainly with explicit indices.
 #![allow(clippy::needless_range_loop)]
@@ -31,6 +32,7 @@
     clippy::panic
 )]
 
+pub mod checkpoint;
 pub mod drivers;
 pub mod factor;
 pub mod fb;
