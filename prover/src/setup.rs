@@ -4,6 +4,7 @@
 //! of `log h`, or `log hR` when `D > 0`) computed exactly as the verifier
 //! will.
 
+use crate::checkpoint::CheckpointError;
 use crate::factor;
 use crate::fb::FactorBase;
 use crate::progress::Progress;
@@ -34,6 +35,10 @@ pub struct Options {
     /// Certify without GRH (maximal orders with D < -4): generation by the
     /// prime ideals up to sqrt(|D|/3) and h from an exact series.
     pub unconditional: bool,
+    /// The checkpoint directory of `--resume` ([`crate::checkpoint`]),
+    /// checked by the command line before any work. No driver reads it
+    /// yet: relation rounds are not stored there so far.
+    pub resume: Option<std::path::PathBuf>,
 }
 
 impl Default for Options {
@@ -46,6 +51,7 @@ impl Default for Options {
             progress: crate::progress::Hook::none(),
             unconditional: false,
             force: false,
+            resume: None,
         }
     }
 }
@@ -62,6 +68,16 @@ pub enum ProveError {
     TooCostly(String),
     /// The verifier rejected what the prover built: a bug in the prover.
     SelfCheckFailed(String),
+    /// The checkpoint directory of `--resume` cannot be used: it holds
+    /// another computation's rounds or a damaged file (the user's choice
+    /// of directory), or it cannot be read or written.
+    Checkpoint(CheckpointError),
+}
+
+impl From<CheckpointError> for ProveError {
+    fn from(e: CheckpointError) -> ProveError {
+        ProveError::Checkpoint(e)
+    }
 }
 
 impl std::fmt::Display for ProveError {
@@ -76,6 +92,7 @@ impl std::fmt::Display for ProveError {
                 f,
                 "internal error: the verifier rejected the prover's own certificate ({s}); please report this"
             ),
+            ProveError::Checkpoint(e) => write!(f, "{e}"),
         }
     }
 }

@@ -718,3 +718,49 @@ fn demo_writes_into_its_directory() {
     assert!(dir.join("qm-40.cert").is_file() && dir.join("qm-appendix.cert").is_file());
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// `--resume DIR` is checked before any work: a path that exists and is
+/// not a directory is a usage error naming it; the option is in the help.
+#[test]
+fn resume_must_be_a_directory() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("resume-file");
+    let file = dir.join("not-a-dir");
+    std::fs::write(&file, "a regular file\n").expect("write");
+    let file_s = file.to_str().expect("utf-8 path");
+    let cert = dir.join("x.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    let o = run(
+        &classcert,
+        &["prove", "-23", "-o", cert_s, "--resume", file_s, "-q"],
+    );
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains(file_s), "{}", stderr(&o));
+    assert!(stderr(&o).contains("not a directory"), "{}", stderr(&o));
+    assert!(!cert.exists(), "a certificate was written");
+    assert_eq!(
+        std::fs::read_to_string(&file).expect("read"),
+        "a regular file\n"
+    );
+    // a missing directory is created (the run then proves as usual)
+    let fresh = dir.join("rounds");
+    let o = run(
+        &classcert,
+        &[
+            "prove",
+            "-23",
+            "-o",
+            cert_s,
+            "--resume",
+            fresh.to_str().expect("utf-8 path"),
+            "-q",
+        ],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(fresh.is_dir() && cert.is_file());
+    let help = stdout(&run(&classcert, &["prove", "--help"]));
+    assert!(help.contains("--resume <DIR>"), "{help}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -82,6 +82,9 @@ pub struct ProveArgs {
     /// estimate is printed when the proof is refused).
     #[arg(long, conflicts_with = "claim_class_number")]
     pub force: bool,
+    /// Keep relation rounds in DIR and continue from those already there (created if missing); a run interrupted in any way resumes from its last complete round
+    #[arg(long, value_name = "DIR", conflicts_with = "claim_class_number")]
+    pub resume: Option<PathBuf>,
 }
 
 /// Checks that `D` is a discriminant the prover handles; the message names
@@ -165,6 +168,31 @@ pub fn output_file(path: &Path) -> Result<(), String> {
         _ => Path::new("."),
     };
     writable_dir(dir).map_err(|e| format!("cannot write {}: {e}", path.display()))
+}
+
+/// `--resume DIR`: a directory (created, parents included, when missing)
+/// that takes new files. Whether it holds this run's rounds is checked
+/// when the run opens it (`classcert_prover::checkpoint`).
+pub fn resume_dir(dir: &Path) -> Result<(), String> {
+    if dir.as_os_str().is_empty() {
+        return Err("--resume: the directory path is empty".into());
+    }
+    match std::fs::metadata(dir) {
+        Ok(m) if !m.is_dir() => {
+            return Err(format!(
+                "--resume {0}: {0} exists and is not a directory; give a directory for the relation rounds (it is created if missing)",
+                dir.display()
+            ))
+        }
+        Ok(_) => {}
+        Err(_) => std::fs::create_dir_all(dir).map_err(|e| {
+            format!(
+                "--resume {}: the directory cannot be created: {e}",
+                dir.display()
+            )
+        })?,
+    }
+    writable_dir(dir).map_err(|e| format!("--resume {}: {e}", dir.display()))
 }
 
 /// The primes of a list, each checked not composite, multiplying to `target`.
@@ -286,6 +314,10 @@ impl ProveConfig {
             }
         };
         output_file(&a.output)?;
+        // last, so that a refusal above leaves no directory behind
+        if let Some(dir) = &a.resume {
+            resume_dir(dir)?;
+        }
         Ok(ProveConfig {
             d,
             output: a.output,
@@ -295,6 +327,7 @@ impl ProveConfig {
                 euler_x: a.euler_x,
                 unconditional: a.unconditional,
                 force: a.force,
+                resume: a.resume,
                 ..Options::default()
             },
             claim,

@@ -1,6 +1,7 @@
 //! The exit statuses of `classcert` and the one way to leave with a
 //! message.
 
+use classcert_prover::checkpoint::CheckpointError;
 use classcert_prover::ProveError;
 use std::process::ExitCode;
 
@@ -30,6 +31,11 @@ impl Exit {
             ProveError::Refuted(_) => Exit::Refuted,
             ProveError::SearchFailed(_) => Exit::Failed,
             ProveError::SelfCheckFailed(_) => Exit::Internal,
+            // the user pointed --resume at the wrong or a damaged directory
+            ProveError::Checkpoint(CheckpointError::Mismatch { .. })
+            | ProveError::Checkpoint(CheckpointError::Corrupt { .. }) => Exit::Usage,
+            // reading or writing it failed during the run
+            ProveError::Checkpoint(CheckpointError::Io { .. }) => Exit::Failed,
         }
     }
 }
@@ -38,11 +44,14 @@ pub const EXIT_HELP: &str = "\
 Exit status:
   0  success
   2  usage: bad arguments, an invalid discriminant, an option out of range,
-     an output path that cannot be written, a file that is not a
-     certificate (show) -- all checked before any work starts -- or a
-     request this prover cannot serve for this D
+     an output path that cannot be written, a --resume DIR that is not a
+     directory or cannot be created, a file that is not a certificate
+     (show) -- all checked before any work starts -- a request this prover
+     cannot serve for this D, or a --resume DIR that holds another
+     computation's rounds or a damaged file
   3  the claim is refuted: --claim-class-number was shown false
-  4  the computation failed: the search gave up, or writing the file failed
+  4  the computation failed: the search gave up, or writing the file or
+     the --resume directory failed
   5  internal error: the verifier rejected the prover's own certificate
      (a bug; please report it)
   1 is not used.";
