@@ -10,7 +10,7 @@ use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
 use crate::progress::Progress;
 use crate::relations::forms::FormSearch;
-use crate::relations::sieve::SieveSearch;
+use crate::relations::siqs::{Params, SiqsSource};
 use crate::relations::{RelationSource, Sparse};
 use crate::setup::{essential_count, setup, Options, ProveError};
 use classcert_format::*;
@@ -48,7 +48,13 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     let fb = &setup.fb;
     let n = fb.len();
     let ceiling = setup.ceiling.clone();
-    let k = essential_count(fb, &abs_d);
+    // the sieve's own primes are the essential block; the form search
+    // keeps a small one
+    let params = use_sieve(&abs_d).then(|| Params::for_discriminant(d, n));
+    let k = match &params {
+        Some(p) => p.primes.min(n),
+        None => essential_count(fb, &abs_d),
+    };
     progress.phase(&format!(
         "factor base of {n} prime ideals ({k} essential): eliminating the others"
     ));
@@ -56,8 +62,8 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // below (the tests' sizes keep their certificates)
     let mut forms;
     let mut sieve;
-    let source: &mut dyn RelationSource = if use_sieve(&abs_d) {
-        sieve = SieveSearch::new(d, fb, k, opts.seed);
+    let source: &mut dyn RelationSource = if let Some(params) = params {
+        sieve = SiqsSource::new(d, fb, params, opts.seed);
         &mut sieve
     } else {
         forms = FormSearch::new(d, fb, k, opts.seed);

@@ -29,6 +29,7 @@
 pub mod elements;
 pub mod forms;
 pub mod sieve;
+pub mod siqs;
 
 use ciborium::Value;
 use classcert_format::cbor::{self, DecodeError, MapReader, WalkLimits};

@@ -1,0 +1,880 @@
+//! The self-initialising quadratic sieve over binary quadratic forms, with
+//! single large primes: S. Contini, "Factoring integers with the
+//! self-initializing quadratic sieve" (thesis, 1997) for the polynomial
+//! switching; M. J. Jacobson, Math. Comp. 68 (1999) for sieving forms;
+//! J.-F. Biasse, Adv. Math. Commun. 4 (2010) for large primes in class group
+//! computations; `shared/design/sieving.md` §§1, 2 and 5.
+//!
+//! **One relation.** For `u ≡ D (mod 2)` the element `α = (u + √D)/2` has
+//! norm `(u² - D)/4`. When that factors over the factor base,
+//! `(α) = ∏ P_i^{s_i v_i}` with `s_i = +1` exactly when `u ≡ b_i (mod 2p_i)`
+//! (ramified primes have `v_i = 1`).
+//!
+//! **Polynomials.** A *family* is one `a = q_1 ⋯ q_s` (split factor-base
+//! primes) with `B_j ≡ √D (mod q_j)`, `B_j ≡ 0 (mod q_i)` for `i ≠ j`; its
+//! `2^{s-1}` polynomials `g(x) = a x² + b x + c` take `b = ±B_1 ± ⋯ ± B_s`
+//! (first sign fixed, `b ≡ D (mod 2)`) and `c = (b² - D)/(4a)`, so that
+//! `u = 2ax + b` gives `N(α) = a·g(x)`. Consecutive `b` in Gray-code order
+//! differ by `±2B_j`, which moves each root modulo `p` by a precomputed
+//! `±2B_j (2a)⁻¹`: the self-initialising step.
+//!
+//! **Large primes.** A value whose cofactor is one prime `ℓ` above the factor
+//! base (and below [`LARGE_MULTIPLIER`] times the largest sieving prime) is
+//! a partial relation. Two partials with the same `ℓ` lie in the same prime
+//! above `ℓ` or in conjugate ones (orientation from `u mod ℓ`); the
+//! difference or the sum of their vectors is a relation without `ℓ` (it is
+//! the relation of `α₁ᾱ₂/ℓ` or `α₁α₂/ℓ`).
+//!
+//! **Determinism.** Family `k` is a pure function of `(D, seed, k)`.
+//! Families are sieved in rounds of [`FAMILIES_PER_ROUND`] on every core;
+//! a round's findings are merged in order of `(k, polynomial, x)`, so the
+//! relations handed out never depend on the number of threads.
+
+use super::{add, plain, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
+use crate::fb::{sqrt_mod, FactorBase};
+use crate::rng::Rng;
+use classcert_verifier::math::mod_small;
+use rug::ops::Pow;
+use rug::Integer;
+use std::collections::{BTreeMap, BTreeSet, VecDeque};
+use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::Mutex;
+
+/// Primes below this are not sieved (their roots are dense and their
+/// logarithms small); candidates are divided by them instead.
+const SMALL_PRIME: u64 = 30;
+
+/// A cofactor up to this many times the largest sieving prime is a
+/// partial relation (30–100 is common practice for one large prime).
+pub const LARGE_MULTIPLIER: u64 = 64;
+
+/// Families sieved per round: the unit of work split among threads, of
+/// merging and of checkpoints.
+pub const FAMILIES_PER_ROUND: u64 = 16;
+
+/// The sieve's parameters, fixed before any sieving (they determine every
+/// relation, so they are part of a checkpoint's identity).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Params {
+    /// Sieve over `-m ≤ x < m`.
+    pub m: u32,
+    /// Sieve with the factor-base primes at positions `0..primes`.
+    pub primes: usize,
+    /// Primes per `a`.
+    pub s: u32,
+    /// Bits of the target `a`.
+    pub a_bits: u32,
+    /// How far below `log₂ g` the sieve threshold lies, in bits.
+    pub slack: u32,
+}
+
+impl Params {
+    /// The tuning table, by the bit length of `|D|` (`n` prime ideals in the
+    /// factor base). Measured on this project's benchmark discriminants (see
+    /// `BENCHMARKS.md`); the starting points were the factoring sieve's
+    /// usual sizes (from memory).
+    pub fn for_discriminant(d: &Integer, n: usize) -> Params {
+        let bits = d.significant_bits();
+        // (bits of |D|, sieving primes, half-width)
+        const TABLE: [(u32, usize, u32); 9] = [
+            (100, 400, 1 << 14),
+            (133, 700, 1 << 15),
+            (150, 1000, 1 << 15),
+            (166, 1600, 1 << 15),
+            (183, 2400, 1 << 15),
+            (199, 3600, 3 << 14),
+            (232, 6000, 1 << 16),
+            (266, 9000, 1 << 16),
+            (333, 20000, 1 << 17),
+        ];
+        let row = TABLE
+            .iter()
+            .rev()
+            .find(|r| bits >= r.0)
+            .unwrap_or(&TABLE[0]);
+        let primes = row.1.min(n);
+        let m = row.2;
+        // a ≈ √|D| / (2m) balances |D|/(4a) at the centre against a m² at
+        // the ends (D < 0); a ≈ √(D/2)/m for D > 0
+        let half = bits as f64 / 2.0;
+        let a_bits = if *d < 0 {
+            half - (2.0 * m as f64).log2()
+        } else {
+            half - 0.5 - (m as f64).log2()
+        }
+        .max(8.0);
+        // primes of about 11 bits in a (at least 2, so that a varies)
+        let s = ((a_bits / 11.0).round() as u32).max(2);
+        Params {
+            m,
+            primes,
+            s,
+            a_bits: a_bits.round() as u32,
+            slack: 0,
+        }
+    }
+}
+
+/// One smooth or partial value: `N((u + √D)/2) = ± ∏ p_i^{v_i} · large`.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Found {
+    pub u: Integer,
+    /// `(factor-base index, v_i)` by increasing index.
+    pub factors: Vec<(u32, u32)>,
+    /// 1 for a full relation, else the large prime.
+    pub large: u64,
+}
+
+/// The sieve for one discriminant, factor base and seed (read-only once
+/// built: threads share it).
+pub struct Siqs<'a> {
+    d: Integer,
+    fb: &'a FactorBase,
+    seed: u64,
+    pub params: Params,
+    /// `√D mod p` (0 for p = 2 and ramified p).
+    roots: Vec<u32>,
+    logs: Vec<u8>,
+    /// Indices of split primes from which `a` is drawn.
+    pool: Vec<usize>,
+    /// Largest sieving prime, and the large-prime bound.
+    pmax: u64,
+    large_bound: u64,
+    threshold: u8,
+}
+
+/// What one family needs per prime, and the sieve array (one per thread).
+struct Workspace {
+    sieve: Vec<u8>,
+    pos1: Vec<u32>,
+    pos2: Vec<u32>,
+    /// `2 B_j (2a)^{-1} mod p`, `s` rows.
+    deltas: Vec<Vec<u32>>,
+}
+
+impl<'a> Siqs<'a> {
+    pub fn new(d: &Integer, fb: &'a FactorBase, params: Params, seed: u64) -> Siqs<'a> {
+        let k = params.primes.min(fb.len()).max(1);
+        let roots = fb
+            .primes
+            .iter()
+            .map(|&p| {
+                if p == 2 {
+                    0
+                } else {
+                    sqrt_mod(mod_small(d, p), p) as u32
+                }
+            })
+            .collect::<Vec<_>>();
+        let logs = fb
+            .primes
+            .iter()
+            .map(|&p| (p as f64).log2().round() as u8)
+            .collect();
+        let pmax = fb.primes[k - 1];
+        // a's primes: split, odd, about 2^(a_bits / s), at least 3 times s
+        // of them (more when the base allows), from the sieving primes
+        let want = (params.a_bits as f64 / params.s as f64).exp2();
+        let split: Vec<usize> = (0..k)
+            .filter(|&i| fb.primes[i] > SMALL_PRIME && roots[i] != 0)
+            .collect();
+        let centre = split.partition_point(|&i| (fb.primes[i] as f64) < want);
+        let width = (4 * params.s as usize).max(40);
+        let lo = centre.saturating_sub(width / 2);
+        let hi = (lo + width).min(split.len());
+        let lo = hi.saturating_sub(width);
+        let pool = split[lo..hi].to_vec();
+        let large_bound = (LARGE_MULTIPLIER * pmax).min(pmax.saturating_mul(pmax));
+        // log₂ of the typical |g(x)|: M √|D| / 2 to M √|D| for D < 0
+        let log_g = params.m as f64 + 0.0;
+        let log_g = log_g.log2() + d.significant_bits() as f64 / 2.0 - 0.5;
+        let threshold = (log_g - (large_bound as f64).log2() - params.slack as f64 - 2.0)
+            .clamp(1.0, 120.0) as u8;
+        Siqs {
+            d: d.clone(),
+            fb,
+            seed,
+            params,
+            roots,
+            logs,
+            pool,
+            pmax,
+            large_bound,
+            threshold,
+        }
+    }
+
+    fn sieving_primes(&self) -> usize {
+        self.params.primes.min(self.fb.len())
+    }
+
+    /// The factor-base indices of `a` for family `k`: `s - 1` distinct
+    /// primes from the pool at random, and the pool prime that brings the
+    /// product closest to `2^a_bits`.
+    pub fn a_primes(&self, k: u64) -> Vec<usize> {
+        let mut rng = Rng::new(
+            self.seed
+                .wrapping_mul(0x9e37_79b9_7f4a_7c15)
+                .wrapping_add(k.wrapping_mul(0xd1b5_4a32_d192_ed03)),
+        );
+        let s = (self.params.s as usize).min(self.pool.len());
+        let mut chosen: Vec<usize> = Vec::with_capacity(s);
+        let mut bits = 0.0;
+        while chosen.len() + 1 < s {
+            let j = self.pool[rng.below(self.pool.len() as u64) as usize];
+            if !chosen.contains(&j) {
+                chosen.push(j);
+                bits += (self.fb.primes[j] as f64).log2();
+            }
+        }
+        let goal = self.params.a_bits as f64 - bits;
+        let last = self
+            .pool
+            .iter()
+            .copied()
+            .filter(|j| !chosen.contains(j))
+            .min_by(|&x, &y| {
+                let dx = ((self.fb.primes[x] as f64).log2() - goal).abs();
+                let dy = ((self.fb.primes[y] as f64).log2() - goal).abs();
+                dx.total_cmp(&dy).then(x.cmp(&y))
+            });
+        if let Some(j) = last {
+            chosen.push(j);
+        }
+        chosen.sort_unstable();
+        chosen
+    }
+
+    fn workspace(&self) -> Workspace {
+        let k = self.sieving_primes();
+        Workspace {
+            sieve: vec![0; 2 * self.params.m as usize],
+            pos1: vec![0; k],
+            pos2: vec![0; k],
+            deltas: vec![vec![0; k]; self.params.s as usize],
+        }
+    }
+
+    /// Sieves every polynomial of family `k`; the smooth and partial
+    /// values in order of (polynomial, x).
+    fn family(&self, k: u64, w: &mut Workspace) -> Vec<Found> {
+        let q = self.a_primes(k);
+        self.polynomials(&q, w, |_| false)
+    }
+
+    /// Sieves the polynomials of the family with `a = ∏ q` in Gray-code
+    /// order until `enough` holds for the findings so far.
+    fn polynomials(
+        &self,
+        q: &[usize],
+        w: &mut Workspace,
+        enough: impl Fn(&[Found]) -> bool,
+    ) -> Vec<Found> {
+        let fb = self.fb;
+        let mut out = Vec::new();
+        if q.is_empty() {
+            return out;
+        }
+        let a: Integer = q.iter().map(|&i| Integer::from(fb.primes[i])).product();
+        // B_j = (a/q_j)·(t_j (a/q_j)^{-1} mod q_j)
+        let bj: Vec<Integer> = q
+            .iter()
+            .map(|&i| {
+                let qj = fb.primes[i];
+                let cof = Integer::from(&a / qj);
+                let inv = inv_mod(cof.mod_u(qj as u32) as u64, qj);
+                let g = self.roots[i] as u64 * inv % qj;
+                cof * g
+            })
+            .collect();
+        let mut b: Integer = bj.iter().sum();
+        if b.is_odd() != self.d.is_odd() {
+            b += &a;
+        }
+        let m = self.params.m as u64;
+        let kp = self.sieving_primes();
+        for i in 0..kp {
+            let p = fb.primes[i];
+            if p < SMALL_PRIME || q.contains(&i) {
+                continue;
+            }
+            let inv2a = inv_mod(a.mod_u(p as u32) as u64 * 2 % p, p);
+            let bp = b.mod_u(p as u32) as u64;
+            let t = self.roots[i] as u64;
+            let mp = m % p;
+            w.pos1[i] = (((p + t - bp) % p * inv2a + mp) % p) as u32;
+            w.pos2[i] = (((2 * p - t - bp) % p * inv2a + mp) % p) as u32;
+            for (j, bjv) in bj.iter().enumerate() {
+                w.deltas[j][i] = (2 * bjv.mod_u(p as u32) as u64 % p * inv2a % p) as u32;
+            }
+        }
+        let s = q.len();
+        let polys = 1u64 << (s - 1);
+        for poly in 0..polys {
+            if poly > 0 {
+                let v = poly.trailing_zeros() as usize;
+                let j = v + 1;
+                let gray = poly ^ (poly >> 1);
+                let plus = gray >> v & 1 == 0;
+                let two_bj = Integer::from(&bj[j] * 2u32);
+                if plus {
+                    b += two_bj;
+                } else {
+                    b -= two_bj;
+                }
+                let dj = &w.deltas[j];
+                for i in 0..kp {
+                    let p = fb.primes[i] as u32;
+                    if (p as u64) < SMALL_PRIME || q.contains(&i) {
+                        continue;
+                    }
+                    let d = dj[i];
+                    if plus {
+                        w.pos1[i] = sub_mod(w.pos1[i], d, p);
+                        w.pos2[i] = sub_mod(w.pos2[i], d, p);
+                    } else {
+                        w.pos1[i] = add_mod(w.pos1[i], d, p);
+                        w.pos2[i] = add_mod(w.pos2[i], d, p);
+                    }
+                }
+            }
+            self.sieve_one(&a, &b, q, w, &mut out);
+            if enough(&out) {
+                break;
+            }
+        }
+        out
+    }
+
+    /// An elimination for factor-base index `i` beyond the sieving primes:
+    /// a relation with `+1` at `i` and support below `i`, from families
+    /// whose `a` contains `p_i` (special-q), tried in a fixed order.
+    pub fn elimination(&self, i: usize, families: u64) -> Option<Sparse> {
+        let mut w = self.workspace();
+        let kp = self.sieving_primes();
+        if i < kp || self.fb.primes[i] == 2 || self.roots[i] == 0 {
+            return None;
+        }
+        let qbits = (self.fb.primes[i] as f64).log2();
+        let fits = |f: &Found| {
+            f.large == 1
+                && f.factors
+                    .iter()
+                    .all(|&(j, v)| (j as usize) < i || (j as usize == i && v == 1))
+        };
+        for t in 0..families {
+            let mut q = self.companions(qbits, (i as u64) << 20 | t);
+            q.push(i);
+            let found = self.polynomials(&q, &mut w, |out| out.iter().any(fits));
+            if let Some(f) = found.iter().find(|f| fits(f)) {
+                let v = self.vector(f);
+                return Some(if v.get(&i) == Some(&-1) {
+                    v.iter().map(|(&j, &e)| (j, -e)).collect()
+                } else {
+                    v
+                });
+            }
+        }
+        None
+    }
+
+    /// Pool primes to go with a special prime of `qbits` bits, for the
+    /// attempt named by `salt`: as in [`Siqs::a_primes`] with one prime
+    /// fewer.
+    fn companions(&self, qbits: f64, salt: u64) -> Vec<usize> {
+        let mut rng = Rng::new(
+            self.seed
+                .wrapping_mul(0xa076_1d64_78bd_642f)
+                .wrapping_add(salt.wrapping_mul(0xe703_7ed1_a0b4_28db)),
+        );
+        let rest = self.params.a_bits as f64 - qbits;
+        let s = ((rest / 11.0).round() as usize).clamp(1, self.pool.len());
+        let mut chosen: Vec<usize> = Vec::with_capacity(s);
+        let mut bits = 0.0;
+        while chosen.len() + 1 < s {
+            let j = self.pool[rng.below(self.pool.len() as u64) as usize];
+            if !chosen.contains(&j) {
+                chosen.push(j);
+                bits += (self.fb.primes[j] as f64).log2();
+            }
+        }
+        let goal = rest - bits;
+        let cands: Vec<usize> = self.pool.iter().copied().filter(|j| !chosen.contains(j)).collect();
+        let mut by_fit = cands.clone();
+        by_fit.sort_by(|&x, &y| {
+            let dx = ((self.fb.primes[x] as f64).log2() - goal).abs();
+            let dy = ((self.fb.primes[y] as f64).log2() - goal).abs();
+            dx.total_cmp(&dy).then(x.cmp(&y))
+        });
+        // one of the best few, so that attempts differ
+        if !by_fit.is_empty() {
+            let pick = rng.below(by_fit.len().min(4) as u64) as usize;
+            chosen.push(by_fit[pick]);
+        }
+        chosen.sort_unstable();
+        chosen
+    }
+
+    /// Eliminations for `ideals`, each from at most `families` special-q
+    /// families, on up to `threads` threads; stops at the first index
+    /// without one.
+    pub fn eliminations(&self, ideals: std::ops::Range<usize>, families: u64, threads: usize) -> Vec<Sparse> {
+        let list: Vec<usize> = ideals.collect();
+        let results: Vec<Mutex<Option<Sparse>>> = list.iter().map(|_| Mutex::new(None)).collect();
+        let next = AtomicU64::new(0);
+        let work = || loop {
+            let t = next.fetch_add(1, Ordering::Relaxed) as usize;
+            if t >= list.len() {
+                break;
+            }
+            let e = self.elimination(list[t], families);
+            if let Ok(mut slot) = results[t].lock() {
+                *slot = e;
+            }
+        };
+        let threads = threads.clamp(1, list.len().max(1));
+        if threads == 1 {
+            work();
+        } else {
+            std::thread::scope(|scope| {
+                for _ in 0..threads {
+                    scope.spawn(work);
+                }
+            });
+        }
+        results
+            .into_iter()
+            .map_while(|m| m.into_inner().ok().flatten())
+            .collect()
+    }
+
+    /// Sieves `g(x) = a x² + b x + c` over `-m ≤ x < m` with the roots in
+    /// `w` and appends the values that factor.
+    fn sieve_one(&self, a: &Integer, b: &Integer, q: &[usize], w: &mut Workspace, out: &mut Vec<Found>) {
+        let fb = self.fb;
+        let kp = self.sieving_primes();
+        let width = w.sieve.len();
+        // bytes start at 128 - threshold: a byte reaches 128 exactly when
+        // the logarithms sieved into it reach the threshold
+        let start = 128u8.wrapping_sub(self.threshold);
+        w.sieve.iter_mut().for_each(|v| *v = start);
+        for i in 0..kp {
+            let p = fb.primes[i] as usize;
+            if (p as u64) < SMALL_PRIME || q.contains(&i) {
+                continue;
+            }
+            let lg = self.logs[i];
+            let (r1, r2) = (w.pos1[i] as usize, w.pos2[i] as usize);
+            let mut j = r1;
+            while j < width {
+                w.sieve[j] = w.sieve[j].wrapping_add(lg);
+                j += p;
+            }
+            if r2 != r1 {
+                let mut j = r2;
+                while j < width {
+                    w.sieve[j] = w.sieve[j].wrapping_add(lg);
+                    j += p;
+                }
+            }
+        }
+        let c = {
+            let num = Integer::from(b.square_ref()) - &self.d;
+            debug_assert!(num.is_divisible(&Integer::from(a * 4u32)));
+            num / Integer::from(a * 4u32)
+        };
+        let m = self.params.m as i64;
+        for (chunk, word) in w.sieve.chunks_exact(8).enumerate() {
+            let bytes: [u8; 8] = word.try_into().unwrap_or([0; 8]);
+            if u64::from_le_bytes(bytes) & 0x8080_8080_8080_8080 == 0 {
+                continue;
+            }
+            for (t, &v) in word.iter().enumerate() {
+                if v & 0x80 == 0 {
+                    continue;
+                }
+                let j = 8 * chunk + t;
+                if let Some(f) = self.confirm(a, b, &c, q, j, j as i64 - m, w) {
+                    out.push(f);
+                }
+            }
+        }
+    }
+
+    /// Divides `g(x)` by the primes whose roots hit position `j`, the small
+    /// primes and those of `a`; a full or partial value, or `None`.
+    #[allow(clippy::too_many_arguments)]
+    fn confirm(
+        &self,
+        a: &Integer,
+        b: &Integer,
+        c: &Integer,
+        q: &[usize],
+        j: usize,
+        x: i64,
+        w: &Workspace,
+    ) -> Option<Found> {
+        let fb = self.fb;
+        let mut g = Integer::from(a * x);
+        g += b;
+        g *= x;
+        g += c;
+        if g.is_zero() {
+            return None;
+        }
+        let mut factors: BTreeMap<u32, u32> = BTreeMap::new();
+        let mut divide = |g: &mut Integer, i: usize| {
+            let p = fb.primes[i] as u32;
+            let mut e = 0;
+            while g.is_divisible_u(p) {
+                g.div_exact_u_mut(p);
+                e += 1;
+            }
+            if e > 0 {
+                *factors.entry(i as u32).or_insert(0) += e;
+            }
+        };
+        let kp = self.sieving_primes();
+        for i in 0..kp {
+            let p = fb.primes[i];
+            if p < SMALL_PRIME || q.contains(&i) {
+                divide(&mut g, i);
+                continue;
+            }
+            let r = (j % p as usize) as u32;
+            if r == w.pos1[i] || r == w.pos2[i] {
+                divide(&mut g, i);
+            }
+        }
+        for &i in q.iter().filter(|&&i| i >= kp) {
+            divide(&mut g, i);
+        }
+        // N(α) = a·g(x): the primes of a once more
+        for &i in q {
+            *factors.entry(i as u32).or_insert(0) += 1;
+        }
+        let cof = g.abs();
+        let large = match cof.to_u64() {
+            Some(1) => 1,
+            Some(l) if l <= self.large_bound => {
+                if l <= self.pmax {
+                    return None;
+                }
+                match self.fb.index_of(l) {
+                    // a factor-base prime beyond the sieving primes
+                    Some(i) => {
+                        *factors.entry(i as u32).or_insert(0) += 1;
+                        1
+                    }
+                    None => {
+                        let last = *self.fb.primes.last()?;
+                        // a prime above the factor base's bound (the bound
+                        // is at least the last prime), not dividing D
+                        if l <= last
+                            || Integer::from(l).is_probably_prime(20) == rug::integer::IsPrime::No
+                            || mod_small(&self.d, l) == 0
+                        {
+                            return None;
+                        }
+                        l
+                    }
+                }
+            }
+            _ => return None,
+        };
+        let mut u = Integer::from(a * (2 * x));
+        u += b;
+        Some(Found {
+            u,
+            factors: factors.into_iter().collect(),
+            large,
+        })
+    }
+
+    /// The findings of families `first..first + count`, in order, sieved
+    /// on up to `threads` threads.
+    pub fn round(&self, first: u64, count: u64, threads: usize) -> Vec<Vec<Found>> {
+        let results: Vec<Mutex<Vec<Found>>> = (0..count).map(|_| Mutex::new(Vec::new())).collect();
+        let next = AtomicU64::new(0);
+        let work = || {
+            let mut w = self.workspace();
+            loop {
+                let t = next.fetch_add(1, Ordering::Relaxed);
+                if t >= count {
+                    break;
+                }
+                let found = self.family(first + t, &mut w);
+                if let Ok(mut slot) = results[t as usize].lock() {
+                    *slot = found;
+                }
+            }
+        };
+        let threads = threads.clamp(1, count.max(1) as usize);
+        if threads == 1 {
+            work();
+        } else {
+            std::thread::scope(|scope| {
+                for _ in 0..threads {
+                    scope.spawn(work);
+                }
+            });
+        }
+        results
+            .into_iter()
+            .map(|m| m.into_inner().unwrap_or_default())
+            .collect()
+    }
+
+    /// The exponent vector of a full value: `s_i v_i` with `s_i = +1` when
+    /// `u ≡ b_i (mod 2 p_i)` or `p_i` ramifies.
+    pub fn vector(&self, f: &Found) -> Sparse {
+        let mut rel = Sparse::new();
+        for &(i, v) in &f.factors {
+            let i = i as usize;
+            let p = self.fb.primes[i];
+            let beta = self.fb.bs[i];
+            let ramified = beta.is_multiple_of(p);
+            let sign = if ramified || f.u.mod_u((2 * p) as u32) as u64 == beta % (2 * p) {
+                1
+            } else {
+                -1
+            };
+            add(&mut rel, i, sign * v as i64);
+        }
+        rel
+    }
+
+    /// The orientation of a partial value's large prime `ℓ`: `+1` when
+    /// `u mod ℓ` is the smaller square root of `D` modulo `ℓ`.
+    pub fn orientation(&self, f: &Found) -> i64 {
+        let l = f.large;
+        let t = sqrt_mod(mod_small(&self.d, l), l);
+        let t = t.min(l - t);
+        if f.u.mod_u(l as u32) as u64 == t {
+            1
+        } else {
+            -1
+        }
+    }
+
+    /// Whether `f` is what it says: `(u² - D)/4 = ±∏ p_i^{v_i}·large` with
+    /// `u ≡ D (mod 2)`. Relations read back from a checkpoint pass this
+    /// before they are used.
+    pub fn holds_by_norm(&self, f: &Found) -> bool {
+        if f.u.is_odd() != self.d.is_odd() || f.large == 0 {
+            return false;
+        }
+        let mut n = Integer::from(f.u.square_ref()) - &self.d;
+        n >>= 2;
+        let mut prod = Integer::from(f.large);
+        let mut last = None;
+        for &(i, v) in &f.factors {
+            let Some(&p) = self.fb.primes.get(i as usize) else {
+                return false;
+            };
+            if v == 0 || v > 256 || last.is_some_and(|l| l >= i) {
+                return false;
+            }
+            last = Some(i);
+            prod *= Integer::from(p).pow(v);
+        }
+        n.abs() == prod
+    }
+
+    pub fn threshold(&self) -> u8 {
+        self.threshold
+    }
+}
+
+/// Hands out relations from rounds of families, combining partial values
+/// with the same large prime, in a fixed order.
+pub struct Collector {
+    /// The first partial seen for each large prime: its vector and
+    /// orientation.
+    partials: BTreeMap<u64, (Sparse, i64)>,
+    emitted: BTreeSet<Sparse>,
+    queue: VecDeque<Sparse>,
+    pub next_family: u64,
+    pub fulls: u64,
+    pub combined: u64,
+    pub partial_count: u64,
+}
+
+impl Default for Collector {
+    fn default() -> Self {
+        Collector::new()
+    }
+}
+
+impl Collector {
+    pub fn new() -> Collector {
+        Collector {
+            partials: BTreeMap::new(),
+            emitted: BTreeSet::new(),
+            queue: VecDeque::new(),
+            next_family: 0,
+            fulls: 0,
+            combined: 0,
+            partial_count: 0,
+        }
+    }
+
+    /// Takes the findings of the next families, in order.
+    pub fn absorb(&mut self, siqs: &Siqs, families: Vec<Vec<Found>>) {
+        for fam in families {
+            self.next_family += 1;
+            for f in fam {
+                let v = siqs.vector(&f);
+                if f.large == 1 {
+                    self.fulls += 1;
+                    self.queue.push_back(v);
+                    continue;
+                }
+                self.partial_count += 1;
+                let s = siqs.orientation(&f);
+                match self.partials.get(&f.large) {
+                    Some((v1, s1)) => {
+                        // r1 - s1 s2 r2: the relation of α₁ᾱ₂/ℓ or α₁α₂/ℓ
+                        let mut combo = v1.clone();
+                        for (&i, &e) in &v {
+                            add(&mut combo, i, -s1 * s * e);
+                        }
+                        if !combo.is_empty() {
+                            self.combined += 1;
+                            self.queue.push_back(combo);
+                        }
+                    }
+                    None => {
+                        self.partials.insert(f.large, (v, s));
+                    }
+                }
+            }
+        }
+    }
+
+    /// The next relation not handed out before (up to sign).
+    pub fn pop(&mut self) -> Option<Sparse> {
+        while let Some(rel) = self.queue.pop_front() {
+            let normal: Sparse = if rel.values().next().is_some_and(|&e| e < 0) {
+                rel.iter().map(|(&i, &e)| (i, -e)).collect()
+            } else {
+                rel.clone()
+            };
+            if self.emitted.insert(normal) {
+                return Some(rel);
+            }
+        }
+        None
+    }
+}
+
+/// Special-q families tried for one elimination.
+const ELIMINATION_FAMILIES: u64 = 24;
+
+/// Rounds in a row without a new relation before the search gives up.
+const EMPTY_ROUNDS: u32 = 8;
+
+/// A [`RelationSource`] for `D < 0` at research sizes: relations from the
+/// sieve above (rounds on every core), eliminations beyond the sieving
+/// primes from special-q families of the same sieve.
+pub struct SiqsSource<'a> {
+    pub siqs: Siqs<'a>,
+    pub collector: Collector,
+    threads: usize,
+    origin: Origin,
+}
+
+impl<'a> SiqsSource<'a> {
+    pub fn new(d: &Integer, fb: &'a FactorBase, params: Params, seed: u64) -> SiqsSource<'a> {
+        let k = params.primes.min(fb.len());
+        let threads = std::thread::available_parallelism()
+            .map(|n| n.get())
+            .unwrap_or(1)
+            .min(8);
+        SiqsSource {
+            siqs: Siqs::new(d, fb, params, seed),
+            collector: Collector::new(),
+            threads,
+            origin: Origin {
+                discriminant: d.clone(),
+                seed,
+                source: "self-initialising-sieve",
+                essential: k as u64,
+                factor_base: fb.digest(),
+                produced: 0,
+            },
+        }
+    }
+
+    /// Sieves the next round of families and merges it.
+    fn next_round(&mut self) {
+        let first = self.collector.next_family;
+        let found = self.siqs.round(first, FAMILIES_PER_ROUND, self.threads);
+        self.collector.absorb(&self.siqs, found);
+    }
+
+    fn relation(&mut self) -> Option<Sparse> {
+        let mut empty = 0;
+        loop {
+            if let Some(rel) = self.collector.pop() {
+                return Some(rel);
+            }
+            if empty >= EMPTY_ROUNDS {
+                return None;
+            }
+            empty += 1;
+            self.next_round();
+        }
+    }
+}
+
+impl RelationSource for SiqsSource<'_> {
+    fn eliminations(&mut self, ideals: std::ops::Range<usize>, _attempts: u64) -> RelationBatch {
+        let first = ideals.start;
+        let found = self
+            .siqs
+            .eliminations(ideals, ELIMINATION_FAMILIES, self.threads)
+            .into_iter()
+            .map(plain)
+            .collect();
+        self.origin.eliminations(first, found)
+    }
+
+    fn relations(&mut self, count: usize, _attempts: u64) -> RelationBatch {
+        let found: Vec<FoundRelation> = (0..count).map_while(|_| self.relation().map(plain)).collect();
+        self.origin.relations(found)
+    }
+
+    fn candidates(&self) -> u64 {
+        self.collector.fulls + self.collector.partial_count
+    }
+}
+
+/// `x⁻¹ mod p` for `gcd(x, p) = 1` (extended Euclid).
+fn inv_mod(x: u64, p: u64) -> u64 {
+    let (mut r0, mut r1) = (p as i64, (x % p) as i64);
+    let (mut t0, mut t1) = (0i64, 1i64);
+    while r1 != 0 {
+        let q = r0 / r1;
+        (r0, r1) = (r1, r0 - q * r1);
+        (t0, t1) = (t1, t0 - q * t1);
+    }
+    t0.rem_euclid(p as i64) as u64
+}
+
+fn add_mod(x: u32, y: u32, p: u32) -> u32 {
+    let s = x + y;
+    if s >= p {
+        s - p
+    } else {
+        s
+    }
+}
+
+fn sub_mod(x: u32, y: u32, p: u32) -> u32 {
+    if x >= y {
+        x - y
+    } else {
+        x + p - y
+    }
+}
