@@ -344,7 +344,7 @@ fn sync_dir(dir: &Path) -> io::Result<()> {
 }
 
 /// The file name of round `r`.
-fn round_name(r: u64) -> String {
+pub fn round_name(r: u64) -> String {
     format!("round-{r:06}.ckpt")
 }
 

@@ -30,6 +30,10 @@ const SECOND_SET_ATTEMPTS: u64 = 20_000;
 /// the form search keeps the certificates it made before.
 const SIEVE_MIN_BITS: u32 = 105;
 
+/// Relations collected by the sieve before the structured elimination, in
+/// percent of the sieving primes.
+const SIEVE_SURPLUS_PERCENT: usize = 150;
+
 fn use_sieve(abs_d: &Integer) -> bool {
     abs_d.significant_bits() >= SIEVE_MIN_BITS
 }
@@ -51,6 +55,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // the sieve's own primes are the essential block; the form search
     // keeps a small one
     let params = use_sieve(&abs_d).then(|| Params::for_discriminant(d, n));
+    let sieving = params.is_some();
     let k = match &params {
         Some(p) => p.primes.min(n),
         None => essential_count(fb, &abs_d),
@@ -64,6 +69,16 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     let mut sieve;
     let source: &mut dyn RelationSource = if let Some(params) = params {
         sieve = SiqsSource::new(d, fb, params, opts.seed);
+        if let Some(dir) = &opts.resume {
+            sieve.keep_rounds_in(dir)?;
+            if sieve.stored_rounds() > 0 {
+                progress.say(&format!(
+                    "resuming: {} rounds of the sieve are in {} (each is checked by its norms as it is read)",
+                    sieve.stored_rounds(),
+                    dir.display()
+                ));
+            }
+        }
         &mut sieve
     } else {
         forms = FormSearch::new(d, fb, k, opts.seed);
@@ -88,6 +103,9 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             )));
         }
         let Some(rel) = source.relations(1, RELATION_ATTEMPTS).relations.pop() else {
+            if let Some(e) = source.take_error() {
+                return Err(e.into());
+            }
             return Err(ProveError::SearchFailed(
                 "relation search exhausted its attempts".into(),
             ));
@@ -130,21 +148,31 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             rels.push(Sparse::from([(i, 2)]));
         }
     }
-    // Enough relations for full rank on the essential block.
-    let mut rank = RankModP::new(k, (1u64 << 61) - 1);
-    for v in &rels {
-        rank.add(&dense(v, &all_cols));
-    }
-    while rank.rank < k {
-        let v = next_relation(source)?;
-        if let Some(sv) = substitute(v.clone()) {
-            rank.add(&dense(&sv, &all_cols));
+    if sieving {
+        // A fixed surplus instead of a rank test per relation (which costs
+        // k² per relation); a shortfall is made up after the structured
+        // elimination, where the dense block is small.
+        let target = rels.len() + k * SIEVE_SURPLUS_PERCENT / 100;
+        while rels.len() < target {
+            rels.push(next_relation(source)?);
         }
-        rels.push(v);
-    }
-    // some excess gives the elimination more unit pivots to choose from
-    for _ in 0..k / 3 {
-        rels.push(next_relation(source)?);
+    } else {
+        // Enough relations for full rank on the essential block.
+        let mut rank = RankModP::new(k, (1u64 << 61) - 1);
+        for v in &rels {
+            rank.add(&dense(v, &all_cols));
+        }
+        while rank.rank < k {
+            let v = next_relation(source)?;
+            if let Some(sv) = substitute(v.clone()) {
+                rank.add(&dense(&sv, &all_cols));
+            }
+            rels.push(v);
+        }
+        // some excess gives the elimination more unit pivots to choose from
+        for _ in 0..k / 3 {
+            rels.push(next_relation(source)?);
+        }
     }
     // Unit pivots leave the dense block. The eliminations join the raw
     // relations here, so large primes stay sparse columns (no fill-in

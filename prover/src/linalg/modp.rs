@@ -27,18 +27,20 @@ fn to_mod(x: i64, p: u64) -> u64 {
     x.rem_euclid(p as i64) as u64
 }
 
-/// Echelon basis modulo a word prime, for picking independent rows.
+/// Echelon basis modulo a word prime, for picking independent rows
+/// (entries kept in Montgomery form).
 pub struct RankModP {
-    p: u64,
+    mt: Mont,
     k: usize,
     rows: Vec<Option<Vec<u64>>>,
     pub rank: usize,
 }
 
 impl RankModP {
+    /// `p` an odd prime below `2^62`.
     pub fn new(k: usize, p: u64) -> RankModP {
         RankModP {
-            p,
+            mt: Mont::new(p),
             k,
             rows: vec![None; k],
             rank: 0,
@@ -47,23 +49,26 @@ impl RankModP {
 
     /// True if `v` is independent of the rows seen so far (and keeps it).
     pub fn add(&mut self, v: &[i64]) -> bool {
-        let p = self.p;
-        let mut w: Vec<u64> = v.iter().map(|&x| to_mod(x, p)).collect();
+        let mt = &self.mt;
+        let p = mt.p;
+        let mut w: Vec<u64> = v.iter().map(|&x| mt.to(to_mod(x, p))).collect();
         for j in 0..self.k {
             if w[j] == 0 {
                 continue;
             }
             match &self.rows[j] {
                 Some(b) => {
+                    // b[j] = 1: w[c] -= w[j] b[c]
                     let f = w[j];
-                    for c in j..self.k {
-                        w[c] = (w[c] + p - mul_mod(f, b[c], p)) % p;
+                    for (x, &y) in w[j..].iter_mut().zip(&b[j..]) {
+                        let t = mt.mul(f, y);
+                        *x = if *x >= t { *x - t } else { *x + p - t };
                     }
                 }
                 None => {
-                    let inv = inv_mod(w[j], p);
+                    let inv = mt.to(inv_mod(mt.from(w[j]), p));
                     for x in w.iter_mut() {
-                        *x = mul_mod(*x, inv, p);
+                        *x = mt.mul(*x, inv);
                     }
                     self.rows[j] = Some(w);
                     self.rank += 1;
@@ -157,11 +162,21 @@ fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
     mt.from(det)
 }
 
+/// Primes past which an unchanged Chinese-remainder value is taken as the
+/// determinant (each agreement has probability about `2^-61` of being a
+/// coincidence; early termination of this kind is common practice).
+const STABLE_PRIMES: usize = 2;
+
 /// The determinant of a square integer matrix, by Gaussian elimination
-/// modulo word primes and the Chinese remainder theorem, up to twice
-/// Hadamard's bound. The primes are fixed before any work and the residues
-/// combined in their order, so the result does not depend on the number of
-/// threads that compute the residues (all cores, at most 8).
+/// modulo word primes and the Chinese remainder theorem: up to twice
+/// Hadamard's bound, or earlier once the value has not changed for
+/// [`STABLE_PRIMES`] further primes. The prover uses the result only as a
+/// modulus for the Hermite form; were it wrong, the rows it gives would
+/// not be relations and the self-check would reject the certificate, so
+/// early termination costs no soundness. The primes are fixed in advance
+/// and the stopping rule is read off prefixes of that list, so the result
+/// does not depend on the number of threads that compute the residues
+/// (all cores, at most 8).
 pub fn det_crt(m: &[Vec<i64>]) -> Integer {
     let mut bound = Integer::from(1);
     for r in m {
@@ -185,21 +200,38 @@ pub fn det_crt(m: &[Vec<i64>]) -> Integer {
     let threads = std::thread::available_parallelism()
         .map_or(1, |n| n.get())
         .clamp(1, 8);
-    let residues = residues(m, &primes, threads);
     let mut modulus = Integer::from(1);
     let mut value = Integer::new();
-    for (&p, r) in primes.iter().zip(residues) {
-        // x ≡ value (mod modulus), x ≡ r (mod p)
-        let pm = Integer::from(p);
-        let diff = (Integer::from(r) - &value).rem_euc(&pm);
-        let inv = Integer::from(modulus.invert_ref(&pm).expect("coprime"));
-        let t = (diff * inv).rem_euc(&pm);
-        value += Integer::from(&modulus * &t);
-        modulus *= &pm;
-    }
-    let half = Integer::from(&modulus >> 1u32);
-    if value > half {
-        value -= &modulus;
+    let mut unchanged = 0;
+    let mut done = 0;
+    // residues a few at a time (a multiple of the thread count), combined
+    // one prime at a time in the fixed order
+    while done < primes.len() && unchanged < STABLE_PRIMES {
+        let end = primes.len().min(done + 2 * threads);
+        let residues = residues(m, &primes[done..end], threads);
+        for (&p, r) in primes[done..end].iter().zip(residues) {
+            if unchanged >= STABLE_PRIMES {
+                break;
+            }
+            // x ≡ value (mod modulus), x ≡ r (mod p), in (-modulus/2, modulus/2]
+            let pm = Integer::from(p);
+            let diff = (Integer::from(r) - &value).rem_euc(&pm);
+            let inv = Integer::from(modulus.invert_ref(&pm).expect("coprime"));
+            let t = (diff * inv).rem_euc(&pm);
+            let before = value.clone();
+            value += Integer::from(&modulus * &t);
+            modulus *= &pm;
+            let half = Integer::from(&modulus >> 1u32);
+            if value > half {
+                value -= &modulus;
+            }
+            unchanged = if value == before && done > 0 {
+                unchanged + 1
+            } else {
+                0
+            };
+            done += 1;
+        }
     }
     value
 }

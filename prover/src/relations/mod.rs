@@ -117,6 +117,12 @@ pub trait RelationSource {
 
     /// Candidates tried so far (for progress lines).
     fn candidates(&self) -> u64;
+
+    /// Why the search stopped, when it was its checkpoint directory that
+    /// failed (searches without one never fail so).
+    fn take_error(&mut self) -> Option<crate::checkpoint::CheckpointError> {
+        None
+    }
 }
 
 /// The fixed part of a source's headers (everything but kind and range),

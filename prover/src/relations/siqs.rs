@@ -31,11 +31,15 @@
 //! relations handed out never depend on the number of threads.
 
 use super::{add, plain, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
+use crate::checkpoint::{Checkpoint, CheckpointError};
 use crate::fb::{sqrt_mod, FactorBase};
 use crate::rng::Rng;
+use ciborium::Value;
+use classcert_format::cbor::{self, WalkLimits};
 use classcert_verifier::math::mod_small;
 use rug::ops::Pow;
 use rug::Integer;
+use sha2::{Digest, Sha256};
 use std::collections::{BTreeMap, BTreeSet, VecDeque};
 use std::sync::atomic::{AtomicU64, Ordering};
 use std::sync::Mutex;
@@ -399,7 +403,12 @@ impl<'a> Siqs<'a> {
             }
         }
         let goal = rest - bits;
-        let cands: Vec<usize> = self.pool.iter().copied().filter(|j| !chosen.contains(j)).collect();
+        let cands: Vec<usize> = self
+            .pool
+            .iter()
+            .copied()
+            .filter(|j| !chosen.contains(j))
+            .collect();
         let mut by_fit = cands.clone();
         by_fit.sort_by(|&x, &y| {
             let dx = ((self.fb.primes[x] as f64).log2() - goal).abs();
@@ -418,7 +427,12 @@ impl<'a> Siqs<'a> {
     /// Eliminations for `ideals`, each from at most `families` special-q
     /// families, on up to `threads` threads; stops at the first index
     /// without one.
-    pub fn eliminations(&self, ideals: std::ops::Range<usize>, families: u64, threads: usize) -> Vec<Sparse> {
+    pub fn eliminations(
+        &self,
+        ideals: std::ops::Range<usize>,
+        families: u64,
+        threads: usize,
+    ) -> Vec<Sparse> {
         let list: Vec<usize> = ideals.collect();
         let results: Vec<Mutex<Option<Sparse>>> = list.iter().map(|_| Mutex::new(None)).collect();
         let next = AtomicU64::new(0);
@@ -450,7 +464,14 @@ impl<'a> Siqs<'a> {
 
     /// Sieves `g(x) = a x² + b x + c` over `-m ≤ x < m` with the roots in
     /// `w` and appends the values that factor.
-    fn sieve_one(&self, a: &Integer, b: &Integer, q: &[usize], w: &mut Workspace, out: &mut Vec<Found>) {
+    fn sieve_one(
+        &self,
+        a: &Integer,
+        b: &Integer,
+        q: &[usize],
+        w: &mut Workspace,
+        out: &mut Vec<Found>,
+    ) {
         let fb = self.fb;
         let kp = self.sieving_primes();
         let width = w.sieve.len();
@@ -686,6 +707,145 @@ impl<'a> Siqs<'a> {
     }
 }
 
+/// Limits for reading a round back: a few levels, and room for a few
+/// hundred thousand findings.
+const ROUND_LIMITS: WalkLimits = WalkLimits {
+    max_depth: 8,
+    max_items: 1 << 24,
+};
+
+/// A round's findings as CBOR: an array with one array per family, of
+/// `[u, [[index, v], …], large]` per finding (the payload of a checkpoint
+/// round).
+pub fn encode_round(families: &[Vec<Found>]) -> Vec<u8> {
+    let fams = families
+        .iter()
+        .map(|fam| {
+            Value::Array(
+                fam.iter()
+                    .map(|f| {
+                        let factors = f
+                            .factors
+                            .iter()
+                            .map(|&(i, v)| {
+                                Value::Array(vec![cbor::uint(i as u64), cbor::uint(v as u64)])
+                            })
+                            .collect();
+                        Value::Array(vec![
+                            cbor::int(&f.u),
+                            Value::Array(factors),
+                            cbor::uint(f.large),
+                        ])
+                    })
+                    .collect(),
+            )
+        })
+        .collect();
+    cbor::from_value(&Value::Array(fams)).unwrap_or_default()
+}
+
+impl Siqs<'_> {
+    /// Reads a round written by [`encode_round`] and checks every finding
+    /// by its norm ([`Siqs::holds_by_norm`]); `Err` names the first
+    /// problem, and nothing of a refused round is used.
+    pub fn decode_round(&self, bytes: &[u8], families: u64) -> Result<Vec<Vec<Found>>, String> {
+        let v = cbor::to_value(bytes, ROUND_LIMITS).map_err(|e| e.to_string())?;
+        let fams = cbor::get_array(&v, "round").map_err(|e| e.to_string())?;
+        if fams.len() as u64 != families {
+            return Err(format!(
+                "{} families where {families} were expected",
+                fams.len()
+            ));
+        }
+        let mut out = Vec::with_capacity(fams.len());
+        for (k, fam) in fams.iter().enumerate() {
+            let items = cbor::get_array(fam, "family").map_err(|e| e.to_string())?;
+            let mut found = Vec::with_capacity(items.len());
+            for item in items {
+                let [u, factors, large] =
+                    cbor::get_array(item, "finding").map_err(|e| e.to_string())?
+                else {
+                    return Err("a finding is not [u, factors, large]".into());
+                };
+                let u = cbor::get_int(u, "u").map_err(|e| e.to_string())?;
+                let large = cbor::get_u64(large, "large").map_err(|e| e.to_string())?;
+                let mut fs = Vec::new();
+                for pair in cbor::get_array(factors, "factors").map_err(|e| e.to_string())? {
+                    let [i, e] = cbor::get_array(pair, "factor").map_err(|e| e.to_string())? else {
+                        return Err("a factor is not [index, exponent]".into());
+                    };
+                    let i = cbor::get_u64(i, "index").map_err(|e| e.to_string())?;
+                    let e = cbor::get_u64(e, "exponent").map_err(|e| e.to_string())?;
+                    let (Ok(i), Ok(e)) = (u32::try_from(i), u32::try_from(e)) else {
+                        return Err("a factor is out of range".into());
+                    };
+                    fs.push((i, e));
+                }
+                let f = Found {
+                    u,
+                    factors: fs,
+                    large,
+                };
+                if !self.holds_by_norm(&f) || (f.large > 1 && !self.is_large_prime(f.large)) {
+                    return Err(format!(
+                        "a finding of family {k} does not have the norm it states"
+                    ));
+                }
+                found.push(f);
+            }
+            out.push(found);
+        }
+        if encode_round(&out) != bytes {
+            return Err("not the canonical encoding".into());
+        }
+        Ok(out)
+    }
+
+    /// Whether `l` can be a large prime: above the factor base, below the
+    /// large-prime bound, prime and not dividing `D`.
+    fn is_large_prime(&self, l: u64) -> bool {
+        let Some(&last) = self.fb.primes.last() else {
+            return false;
+        };
+        l > last
+            && l <= self.large_bound
+            && Integer::from(l).is_probably_prime(20) != rug::integer::IsPrime::No
+            && mod_small(&self.d, l) != 0
+    }
+
+    /// What names a run of this sieve in a checkpoint directory: the key
+    /// (SHA-256 of everything that fixes the rounds' content) and a line
+    /// for messages.
+    pub fn run_identity(&self) -> ([u8; 32], String) {
+        let p = &self.params;
+        let v = Value::Array(vec![
+            Value::Text("classcert sieve rounds".into()),
+            Value::Text(env!("CARGO_PKG_VERSION").into()),
+            cbor::int(&self.d),
+            cbor::uint(self.seed),
+            Value::Bytes(self.fb.digest().to_vec()),
+            cbor::uint(p.m as u64),
+            cbor::uint(p.primes as u64),
+            cbor::uint(p.s as u64),
+            cbor::uint(p.a_bits as u64),
+            cbor::uint(p.slack as u64),
+            cbor::uint(FAMILIES_PER_ROUND),
+            cbor::uint(LARGE_MULTIPLIER),
+        ]);
+        let bytes = cbor::from_value(&v).unwrap_or_default();
+        let key = Sha256::digest(bytes).into();
+        let what = format!(
+            "D = {}, seed {}, sieve half-width {}, {} sieving primes, {} primes per a",
+            classcert_verifier::report::short_number(&self.d),
+            self.seed,
+            p.m,
+            p.primes,
+            p.s
+        );
+        (key, what)
+    }
+}
+
 /// Hands out relations from rounds of families, combining partial values
 /// with the same large prime, in a fixed order.
 pub struct Collector {
@@ -782,6 +942,14 @@ pub struct SiqsSource<'a> {
     pub collector: Collector,
     threads: usize,
     origin: Origin,
+    checkpoint: Option<Checkpoint>,
+    /// Rounds stored in the checkpoint when it was opened (read back, not
+    /// sieved).
+    stored: u64,
+    /// Rounds read back from the checkpoint so far.
+    pub resumed: u64,
+    /// A checkpoint failure: the search stops and the driver reports it.
+    error: Option<CheckpointError>,
 }
 
 impl<'a> SiqsSource<'a> {
@@ -795,6 +963,10 @@ impl<'a> SiqsSource<'a> {
             siqs: Siqs::new(d, fb, params, seed),
             collector: Collector::new(),
             threads,
+            checkpoint: None,
+            stored: 0,
+            resumed: 0,
+            error: None,
             origin: Origin {
                 discriminant: d.clone(),
                 seed,
@@ -806,11 +978,60 @@ impl<'a> SiqsSource<'a> {
         }
     }
 
-    /// Sieves the next round of families and merges it.
-    fn next_round(&mut self) {
+    /// Keeps rounds in `dir` and reads back those already there; refuses a
+    /// directory of another run or with a corrupt file before any work.
+    pub fn keep_rounds_in(&mut self, dir: &std::path::Path) -> Result<(), CheckpointError> {
+        let (key, what) = self.siqs.run_identity();
+        let c = Checkpoint::open(dir, key, &what)?;
+        self.stored = c.stored_prefix()?;
+        self.checkpoint = Some(c);
+        Ok(())
+    }
+
+    /// Rounds found in the checkpoint directory when it was opened.
+    pub fn stored_rounds(&self) -> u64 {
+        self.stored
+    }
+
+    /// Sieves the next round of families (or reads it back from the
+    /// checkpoint) and merges it; `false` after a checkpoint failure.
+    fn next_round(&mut self) -> bool {
         let first = self.collector.next_family;
+        let r = first / FAMILIES_PER_ROUND;
+        if let Some(c) = &self.checkpoint {
+            if r < self.stored {
+                let stored = c.load(r).and_then(|b| {
+                    let path = c.dir().join(crate::checkpoint::round_name(r));
+                    let b = b.ok_or_else(|| CheckpointError::Corrupt {
+                        path: path.clone(),
+                        why: "the round vanished while the run was reading it".into(),
+                    })?;
+                    self.siqs
+                        .decode_round(&b, FAMILIES_PER_ROUND)
+                        .map_err(|why| CheckpointError::Corrupt { path, why })
+                });
+                match stored {
+                    Ok(found) => {
+                        self.resumed += 1;
+                        self.collector.absorb(&self.siqs, found);
+                        return true;
+                    }
+                    Err(e) => {
+                        self.error = Some(e);
+                        return false;
+                    }
+                }
+            }
+        }
         let found = self.siqs.round(first, FAMILIES_PER_ROUND, self.threads);
+        if let Some(c) = &self.checkpoint {
+            if let Err(e) = c.store(r, &encode_round(&found)) {
+                self.error = Some(e);
+                return false;
+            }
+        }
         self.collector.absorb(&self.siqs, found);
+        true
     }
 
     fn relation(&mut self) -> Option<Sparse> {
@@ -823,7 +1044,9 @@ impl<'a> SiqsSource<'a> {
                 return None;
             }
             empty += 1;
-            self.next_round();
+            if !self.next_round() {
+                return None;
+            }
         }
     }
 }
@@ -841,12 +1064,18 @@ impl RelationSource for SiqsSource<'_> {
     }
 
     fn relations(&mut self, count: usize, _attempts: u64) -> RelationBatch {
-        let found: Vec<FoundRelation> = (0..count).map_while(|_| self.relation().map(plain)).collect();
+        let found: Vec<FoundRelation> = (0..count)
+            .map_while(|_| self.relation().map(plain))
+            .collect();
         self.origin.relations(found)
     }
 
     fn candidates(&self) -> u64 {
         self.collector.fulls + self.collector.partial_count
+    }
+
+    fn take_error(&mut self) -> Option<CheckpointError> {
+        self.error.take()
     }
 }
 
