@@ -95,6 +95,10 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // Relations on the essential block, until the index is confirmed.
     let found = std::cell::Cell::new(0u64);
     let max_relations = 50 * (k as u64) + 2000;
+    let surplus: usize = std::env::var("CC_SURPLUS")
+        .ok()
+        .and_then(|x| x.parse().ok())
+        .unwrap_or(SIEVE_SURPLUS_PERCENT);
     let next_relation = |source: &mut dyn RelationSource| -> Result<Sparse, ProveError> {
         if found.get() > max_relations {
             return Err(ProveError::SearchFailed(format!(
@@ -152,7 +156,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         // A fixed surplus instead of a rank test per relation (which costs
         // k² per relation); a shortfall is made up after the structured
         // elimination, where the dense block is small.
-        let target = rels.len() + k * SIEVE_SURPLUS_PERCENT / 100;
+        let target = rels.len() + k * surplus / 100;
         while rels.len() < target {
             rels.push(next_relation(source)?);
         }
@@ -191,8 +195,16 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     let mut rank = RankModP::new(kd, (1u64 << 61) - 1);
     let mut independent = Vec::new();
     let mut pending: Vec<Vec<i64>> = Vec::new();
-    for v in &active {
-        let dv = dense(v, &cols);
+    // Short rows first: the determinants of the two full-rank sets are
+    // then smaller (Hadamard's bound is the product of the row lengths), so
+    // fewer primes compute them. Which rows make up the sets does not
+    // change the result, the Hermite form of the whole relation lattice.
+    let mut active: Vec<Vec<i64>> = active.iter().map(|v| dense(v, &cols)).collect();
+    active.sort_by_cached_key(|v| {
+        let norm: i128 = v.iter().map(|&x| (x as i128) * (x as i128)).sum();
+        norm
+    });
+    for dv in active {
         if rank.add(&dv) {
             independent.push(dv.clone());
         }
@@ -237,6 +249,9 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             extra.push(dv);
         }
         pending.extend(extra);
+        progress.say(&format!(
+            "two independent sets of {kd} relations on the dense block; their determinants next"
+        ));
         let d1 = Integer::from(det_crt(&independent).abs_ref());
         let d2 = if rank2.rank == kd {
             Integer::from(det_crt(&second).abs_ref())
@@ -252,21 +267,28 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         ));
         Hnf::with_modulus(kd, &m)
     };
-    for v in pending {
-        hnf.insert(v.into_iter().map(Integer::from).collect());
-    }
     let confirmed = |h: &Hnf| -> bool {
         match h.det() {
             Some(det) => Interval::int(det).ln().is_some_and(|l| l.hi < ceiling),
             None => false,
         }
     };
+    // Once the determinant is below the analytic ceiling the lattice is the
+    // whole relation lattice, and further rows change nothing: the Hermite
+    // form of a lattice is unique, so stopping early keeps it.
+    for v in pending {
+        if confirmed(&hnf) {
+            break;
+        }
+        hnf.insert(v.into_iter().map(Integer::from).collect());
+    }
     while !confirmed(&hnf) {
         let Some(v) = sge.reduce(next_relation(source)?) else {
             continue;
         };
         hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
     }
+    progress.say("Hermite form confirmed by the analytic bound");
     let rows = hnf.finish().expect("full rank");
     // positions in the dense block with a pivot > 1 are the generators
     let gpos: Vec<usize> = (0..kd).filter(|&j| rows[j][j] > 1).collect();

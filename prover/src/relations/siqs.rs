@@ -96,8 +96,15 @@ impl Params {
             .rev()
             .find(|r| bits >= r.0)
             .unwrap_or(&TABLE[0]);
-        let primes = row.1.min(n);
-        let m = row.2;
+        let primes = std::env::var("CC_PRIMES")
+            .ok()
+            .and_then(|x| x.parse().ok())
+            .unwrap_or(row.1)
+            .min(n);
+        let m = std::env::var("CC_M")
+            .ok()
+            .and_then(|x| x.parse().ok())
+            .unwrap_or(row.2);
         // a ≈ √|D| / (2m) balances |D|/(4a) at the centre against a m² at
         // the ends (D < 0); a ≈ √(D/2)/m for D > 0
         let half = bits as f64 / 2.0;
