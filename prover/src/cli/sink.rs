@@ -25,6 +25,8 @@ enum Mode {
 struct State {
     start: Instant,
     phase: Option<String>,
+    /// When the current phase began.
+    phase_start: Instant,
     done: Option<(u64, Option<u64>)>,
     changed: bool,
     last_line: Instant,
@@ -37,11 +39,21 @@ pub struct CliSink {
     state: Mutex<State>,
 }
 
-fn counts(done: Option<(u64, Option<u64>)>) -> String {
+/// The count of a phase, with its rate and the time left when the total
+/// is known (`elapsed`: since the phase began).
+fn counts(done: Option<(u64, Option<u64>)>, elapsed: Duration) -> String {
     match done {
         None => String::new(),
         Some((d, None)) => format!(" ({d})"),
-        Some((d, Some(t))) => format!(" ({d}/{t})"),
+        Some((d, Some(t))) => {
+            let secs = elapsed.as_secs_f64();
+            if d == 0 || secs < 1.0 {
+                return format!(" ({d}/{t})");
+            }
+            let rate = d as f64 / secs;
+            let left = t.saturating_sub(d) as f64 / rate;
+            format!(" ({d}/{t}, {rate:.1}/s, about {left:.0} s left)")
+        }
     }
 }
 
@@ -61,6 +73,7 @@ impl CliSink {
             state: Mutex::new(State {
                 start: now,
                 phase: None,
+                phase_start: now,
                 done: None,
                 changed: false,
                 last_line: now,
@@ -91,7 +104,10 @@ impl CliSink {
         let gap = s.last_line.elapsed();
         if (s.changed && gap >= MIN_GAP) || gap >= HEARTBEAT {
             let t = s.start.elapsed().as_secs_f64();
-            eprintln!("[{t:6.1} s] {phase}{}", counts(s.done));
+            eprintln!(
+                "[{t:6.1} s] {phase}{}",
+                counts(s.done, s.phase_start.elapsed())
+            );
             s.last_line = Instant::now();
             s.changed = false;
             s.lines += 1;
@@ -118,6 +134,7 @@ impl Sink for CliSink {
             Mode::Quiet => {}
             Mode::Lines => {
                 s.phase = Some(name.to_string());
+                s.phase_start = Instant::now();
                 s.done = None;
                 s.changed = true;
             }
@@ -150,7 +167,7 @@ impl Sink for CliSink {
                 if let Some((bar, styled)) = s.bar.as_mut() {
                     if !*styled {
                         let template = if total.is_some() {
-                            "{spinner} {msg} {pos}/{len} [{elapsed}]"
+                            "{spinner} {msg} {pos}/{len} ({per_sec}, about {eta} left) [{elapsed}]"
                         } else {
                             "{spinner} {msg} ({pos}) [{elapsed}]"
                         };

@@ -94,6 +94,8 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
 
     // Relations on the essential block, until the index is confirmed.
     let found = std::cell::Cell::new(0u64);
+    // the count the sieve aims at, for progress lines
+    let wanted: std::cell::Cell<Option<u64>> = std::cell::Cell::new(None);
     let max_relations = 50 * (k as u64) + 2000;
     let surplus: usize = std::env::var("CC_SURPLUS")
         .ok()
@@ -115,7 +117,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             ));
         };
         found.set(found.get() + 1);
-        progress.tick(found.get(), None);
+        progress.tick(found.get(), wanted.get());
         Ok(rel.exponents)
     };
     // The relation restricted to the essential block, by substituting the
@@ -157,6 +159,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         // k² per relation); a shortfall is made up after the structured
         // elimination, where the dense block is small.
         let target = rels.len() + k * surplus / 100;
+        wanted.set(Some((k * surplus / 100) as u64));
         while rels.len() < target {
             rels.push(next_relation(source)?);
         }
@@ -182,6 +185,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // relations here, so large primes stay sparse columns (no fill-in
     // from substituting them).
     rels.extend(elim.iter().flatten().cloned());
+    wanted.set(None);
     let Eliminated { sge, active, .. } = Sge::run(n, rels);
     let cols = sge.remaining();
     let kd = cols.len();

@@ -363,7 +363,9 @@ impl<'a> Siqs<'a> {
     pub fn elimination(&self, i: usize, families: u64) -> Option<Sparse> {
         let mut w = self.workspace();
         let kp = self.sieving_primes();
-        if i < kp || self.fb.primes[i] == 2 || self.roots[i] == 0 {
+        // (a ramified p_i works too: b ≡ 0 (mod p_i) and p_i ∤ c, so p_i
+        // divides N(α) exactly once)
+        if i < kp || self.fb.primes[i] == 2 {
             return None;
         }
         let qbits = (self.fb.primes[i] as f64).log2();
@@ -374,8 +376,10 @@ impl<'a> Siqs<'a> {
                     .all(|&(j, v)| (j as usize) < i || (j as usize == i && v == 1))
         };
         for t in 0..families {
-            let mut q = self.companions(qbits, (i as u64) << 20 | t);
-            q.push(i);
+            // the special prime first: its sign is the fixed one, so a
+            // ramified p_i (whose B is 0) repeats no polynomial
+            let mut q = vec![i];
+            q.extend(self.companions(qbits, (i as u64) << 20 | t));
             let found = self.polynomials(&q, &mut w, |out| out.iter().any(fits));
             if let Some(f) = found.iter().find(|f| fits(f)) {
                 let v = self.vector(f);
@@ -936,7 +940,7 @@ impl Collector {
 }
 
 /// Special-q families tried for one elimination.
-const ELIMINATION_FAMILIES: u64 = 24;
+const ELIMINATION_FAMILIES: u64 = 200;
 
 /// Rounds in a row without a new relation before the search gives up.
 const EMPTY_ROUNDS: u32 = 8;
@@ -1112,5 +1116,131 @@ fn sub_mod(x: u32, y: u32, p: u32) -> u32 {
         x - y
     } else {
         x + p - y
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::relations::RelationSource;
+    use classcert_verifier::math::{primes_up_to, Form};
+
+    /// Whether the product of the prime forms to `rel` reduces to the
+    /// principal form: the definition of a relation (common practice).
+    fn holds(fb: &FactorBase, d: &Integer, rel: &Sparse) -> bool {
+        let exps: Vec<Integer> = rel.values().map(|&e| Integer::from(e)).collect();
+        let terms: Vec<(&Form, &Integer)> =
+            rel.keys().map(|&i| &fb.forms[i]).zip(exps.iter()).collect();
+        Form::product(&terms, d).unwrap() == Form::principal(d)
+    }
+
+    fn next_prime(from: Integer, residue: u32) -> Integer {
+        let mut p = from;
+        loop {
+            p += 1u32;
+            if p.mod_u(4) == residue && p.is_probably_prime(30) != rug::integer::IsPrime::No {
+                return p;
+            }
+        }
+    }
+
+    /// About 25 digits: -4p with p ≡ 1 (mod 4) prime, and -10007·r with
+    /// r ≡ 1 (mod 4) prime, whose ramified 10007 lies beyond the sieving
+    /// primes (so its elimination is a special-q one with b ≡ 0 mod q).
+    fn cases() -> Vec<Integer> {
+        let big = Integer::from(Integer::u_pow_u(10, 24)) * 5u32 / 2u32;
+        let small = Integer::from(Integer::u_pow_u(10, 21));
+        vec![
+            Integer::from(-4) * next_prime(big, 1),
+            Integer::from(-10007) * next_prime(small, 1),
+        ]
+    }
+
+    fn base(d: &Integer) -> FactorBase {
+        let l = d.significant_bits() as f64 * std::f64::consts::LN_2;
+        let bound = (6.0 * l * l) as u64;
+        FactorBase::new(d, &primes_up_to(bound), bound, &[])
+    }
+
+    /// Every relation handed out (full ones and combined partials) is a
+    /// relation, none repeats up to sign, and some come from partials.
+    #[test]
+    fn sieved_and_combined_relations_reduce_to_the_principal_form() {
+        for d in cases() {
+            let fb = base(&d);
+            let params = Params::for_discriminant(&d, fb.len());
+            let mut s = SiqsSource::new(&d, &fb, params, 5);
+            let rels = s.relations(300, 0).relations;
+            assert_eq!(rels.len(), 300, "D = {d}");
+            let mut seen = BTreeSet::new();
+            for r in &rels {
+                assert!(holds(&fb, &d, &r.exponents), "D = {d}: {:?}", r.exponents);
+                let neg: Sparse = r.exponents.iter().map(|(&i, &e)| (i, -e)).collect();
+                assert!(!seen.contains(&neg) && seen.insert(r.exponents.clone()));
+            }
+            assert!(s.collector.combined > 0, "D = {d}: no partials combined");
+        }
+    }
+
+    /// An elimination has coefficient +1 at its index and support below it,
+    /// and is a relation, for every ideal beyond the sieving primes (the
+    /// ramified 10007 included).
+    #[test]
+    fn eliminations_have_a_unit_pivot_and_lower_support() {
+        for d in cases() {
+            let fb = base(&d);
+            let params = Params::for_discriminant(&d, fb.len());
+            let k = params.primes;
+            let s = Siqs::new(&d, &fb, params, 9);
+            let ideals = k..fb.len();
+            let elim = s.eliminations(ideals.clone(), ELIMINATION_FAMILIES, 2);
+            assert_eq!(elim.len(), ideals.len(), "D = {d}");
+            for (i, r) in ideals.zip(&elim) {
+                assert_eq!(r.get(&i), Some(&1), "D = {d}, i = {i}: {r:?}");
+                assert_eq!(r.keys().next_back(), Some(&i), "D = {d}, i = {i}");
+                assert!(holds(&fb, &d, r), "D = {d}, i = {i}: {r:?}");
+            }
+            if let Some(i) = fb.index_of(10007) {
+                assert!(
+                    i >= k && fb.bs[i] % 10007 == 0,
+                    "10007 ramifies beyond the sieve"
+                );
+            }
+        }
+    }
+
+    /// A round's findings do not depend on the number of threads, and read
+    /// back from their encoding they are accepted only when unaltered.
+    #[test]
+    fn rounds_are_thread_independent_and_checked_when_read_back() {
+        let d = cases().remove(0);
+        let fb = base(&d);
+        let params = Params::for_discriminant(&d, fb.len());
+        let s = Siqs::new(&d, &fb, params, 3);
+        let one = s.round(4, 6, 1);
+        assert_eq!(s.round(4, 6, 2), one);
+        assert!(one.iter().map(Vec::len).sum::<usize>() > 0);
+        let bytes = encode_round(&one);
+        assert_eq!(s.decode_round(&bytes, 6).as_ref(), Ok(&one));
+        assert!(s.decode_round(&bytes, 7).is_err(), "family count");
+        // change u of one finding by 2 (still ≡ D mod 2): its norm is wrong
+        let mut bad = one.clone();
+        let f = bad.iter_mut().flatten().next().unwrap();
+        f.u += 2u32;
+        assert!(s.decode_round(&encode_round(&bad), 6).is_err(), "altered u");
+        let mut bad = one.clone();
+        let f = bad
+            .iter_mut()
+            .flatten()
+            .find(|f| !f.factors.is_empty())
+            .unwrap();
+        f.factors[0].1 += 1;
+        assert!(
+            s.decode_round(&encode_round(&bad), 6).is_err(),
+            "altered exponent"
+        );
+        for f in one.iter().flatten() {
+            assert!(s.holds_by_norm(f));
+        }
     }
 }
