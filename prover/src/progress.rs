@@ -22,6 +22,12 @@ pub trait Sink: Send + Sync {
     fn tick(&self, done: u64, total: Option<u64>);
     /// Something the user should know even when progress is hidden.
     fn warn(&self, msg: &str);
+    /// A fact about the run worth a line of its own, shown at once (unlike
+    /// a phase, which may be folded into the next line), and hidden with
+    /// progress.
+    fn note(&self, msg: &str) {
+        self.phase(msg);
+    }
 }
 
 /// Where progress goes: nowhere, or a sink that lives for the whole
@@ -122,6 +128,13 @@ impl Progress {
     pub fn warn(&self, msg: &str) {
         if let Some(s) = self.hook.0 {
             s.warn(msg);
+        }
+    }
+
+    /// See [`Sink::note`].
+    pub fn note(&self, msg: &str) {
+        if let Some(s) = self.hook.0 {
+            s.note(msg);
         }
     }
 }

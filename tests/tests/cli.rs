@@ -764,3 +764,83 @@ fn resume_must_be_a_directory() {
     assert!(help.contains("--resume <DIR>"), "{help}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Issue 9, acceptance 2, at a test size: a run killed with SIGKILL
+/// resumes from its checkpoint directory and writes the same certificate
+/// as a run never interrupted; a round file with one byte changed is
+/// refused (exit 2, the file named) and nothing is written. 40 digits
+/// (D = -4p, p the first prime ≡ 1 mod 4 above 2.5·10^38, our benchmark
+/// choice), where the sieve keeps several rounds.
+#[test]
+fn a_killed_run_resumes_to_the_same_bytes_and_a_changed_round_is_refused() {
+    let Some(classcert) = bin("classcert") else {
+        return;
+    };
+    let dir = scratch("resume-kill");
+    let d = "-1000000000000000000000000000000000000244";
+    let plain = dir.join("plain.cert");
+    let resumed = dir.join("resumed.cert");
+    let rounds = dir.join("rounds");
+    let o = run(
+        &classcert,
+        &["prove", d, "-q", "-o", plain.to_str().expect("utf-8")],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    // start a run and kill it once two rounds are on disk
+    let mut child = Command::new(&classcert)
+        .args(["prove", d, "-q", "-o"])
+        .arg(&resumed)
+        .arg("--resume")
+        .arg(&rounds)
+        .spawn()
+        .expect("spawn");
+    let round = |r: u32| rounds.join(format!("round-{r:06}.ckpt"));
+    let start = std::time::Instant::now();
+    while !round(1).exists() && start.elapsed().as_secs() < 120 {
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    child.kill().expect("SIGKILL");
+    let _ = child.wait();
+    assert!(round(0).exists(), "no round was stored before the kill");
+    assert!(!resumed.exists(), "the killed run finished first");
+    let o = run(
+        &classcert,
+        &[
+            "prove",
+            d,
+            "-o",
+            resumed.to_str().expect("utf-8"),
+            "--resume",
+            rounds.to_str().expect("utf-8"),
+        ],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    assert!(stderr(&o).contains("resuming"), "{}", stderr(&o));
+    assert!(
+        std::fs::read(&plain).expect("plain") == std::fs::read(&resumed).expect("resumed"),
+        "the resumed run wrote other bytes"
+    );
+    // one byte changed in the middle of round 0: refused, never used
+    let mut bytes = std::fs::read(round(0)).expect("round 0");
+    let mid = bytes.len() / 2;
+    bytes[mid] ^= 0x01;
+    std::fs::write(round(0), &bytes).expect("write");
+    std::fs::remove_file(&resumed).expect("remove");
+    let o = run(
+        &classcert,
+        &[
+            "prove",
+            d,
+            "-q",
+            "-o",
+            resumed.to_str().expect("utf-8"),
+            "--resume",
+            rounds.to_str().expect("utf-8"),
+        ],
+    );
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains("round-000000.ckpt"), "{}", stderr(&o));
+    assert!(stderr(&o).contains("refused"), "{}", stderr(&o));
+    assert!(!resumed.exists(), "a certificate was written from a changed round");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -185,6 +185,21 @@ impl Sink for CliSink {
         }
     }
 
+    fn note(&self, msg: &str) {
+        let mut s = self.lock();
+        match self.mode {
+            Mode::Quiet => {}
+            Mode::Lines => {
+                eprintln!("[{:6.1} s] {msg}", s.start.elapsed().as_secs_f64());
+                s.last_line = Instant::now();
+            }
+            Mode::Bars => match &s.bar {
+                Some((bar, _)) => bar.suspend(|| eprintln!("{msg}")),
+                None => eprintln!("{msg}"),
+            },
+        }
+    }
+
     fn warn(&self, msg: &str) {
         let s = self.lock();
         match &s.bar {

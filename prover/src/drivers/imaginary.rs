@@ -72,7 +72,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         if let Some(dir) = &opts.resume {
             sieve.keep_rounds_in(dir)?;
             if sieve.stored_rounds() > 0 {
-                progress.say(&format!(
+                progress.note(&format!(
                     "resuming: {} rounds of the sieve are in {} (each is checked by its norms as it is read)",
                     sieve.stored_rounds(),
                     dir.display()
