@@ -37,8 +37,9 @@ pub trait PivotRow {
     fn weight(&self) -> usize;
     fn has(&self, c: usize) -> bool;
     fn is_zero(&self) -> bool;
-    /// Clears column `c` with `pivot`, whose entry there is `±1`; `false`
-    /// when the row can no longer be held (it is then dropped).
+    /// Clears column `c` with `pivot`, whose entry there is `±1`, changing
+    /// no entry outside `pivot`'s columns; `false` when the row can no
+    /// longer be held (it is then dropped).
     fn eliminate(&mut self, c: usize, pivot: &Self) -> bool;
 }
 
@@ -123,7 +124,9 @@ fn pivot_key(w: usize, n: usize, i: usize, c: usize) -> Key {
 
 /// The live rows by column, with each column's best candidate pivot kept
 /// up to date, so that choosing a pivot costs a lookup and a step costs
-/// work in proportion to the entries it changes.
+/// work in proportion to what it changes: a row that a pivot row is
+/// subtracted from changes only on the pivot row's columns (at most
+/// [`MAX_PIVOT_WEIGHT`] of them), however heavy the row itself is.
 ///
 /// Within one column `c` holding `n` rows, the key of a candidate is
 /// `pivot_key(w, n, i, c)`, increasing in `(w, i)`: rows of weight 1 are
@@ -165,17 +168,34 @@ impl Columns {
         }
     }
 
+    /// Row `i` becomes a candidate at its unit entries, if light enough.
+    fn put_units<R: PivotRow>(&mut self, i: usize, r: &R) {
+        let w = r.weight();
+        if w <= MAX_PIVOT_WEIGHT {
+            for c in r.unit_columns() {
+                self.units[c].insert((w, i));
+                self.touch(c);
+            }
+        }
+    }
+
+    /// Undoes [`Columns::put_units`] for row `i`, as it was put.
+    fn take_units<R: PivotRow>(&mut self, i: usize, r: &R) {
+        let w = r.weight();
+        if w <= MAX_PIVOT_WEIGHT {
+            for c in r.unit_columns() {
+                self.units[c].remove(&(w, i));
+                self.touch(c);
+            }
+        }
+    }
+
     fn insert<R: PivotRow>(&mut self, i: usize, r: &R) {
         for c in r.columns() {
             self.rows[c].insert(i);
             self.touch(c);
         }
-        let w = r.weight();
-        if w <= MAX_PIVOT_WEIGHT {
-            for c in r.unit_columns() {
-                self.units[c].insert((w, i));
-            }
-        }
+        self.put_units(i, r);
     }
 
     /// Takes out row `i`, which must be as it was inserted.
@@ -184,10 +204,35 @@ impl Columns {
             self.rows[c].remove(&i);
             self.touch(c);
         }
-        let w = r.weight();
-        if w <= MAX_PIVOT_WEIGHT {
-            for c in r.unit_columns() {
-                self.units[c].remove(&(w, i));
+        self.take_units(i, r);
+    }
+
+    /// Row `i`, whose units were taken out, has had `prow` subtracted from
+    /// it; `had` says which of `prow`'s columns it had before.
+    fn amend<R: PivotRow>(&mut self, i: usize, r: &R, prow: &R, had: &[bool]) {
+        for (c, &h) in prow.columns().zip(had) {
+            if h != r.has(c) {
+                if h {
+                    self.rows[c].remove(&i);
+                } else {
+                    self.rows[c].insert(i);
+                }
+                self.touch(c);
+            }
+        }
+        debug_assert!(r.columns().all(|c| self.rows[c].contains(&i)));
+        self.put_units(i, r);
+    }
+
+    /// Row `i`, whose units were taken out, leaves after `prow` was (or
+    /// was being) subtracted from it; `had` as for [`Columns::amend`].
+    fn forget<R: PivotRow>(&mut self, i: usize, r: &R, prow: &R, had: &[bool]) {
+        // outside `prow`'s columns the row is as it was inserted
+        let now = r.columns();
+        let before = prow.columns().zip(had).filter(|&(_, &h)| h).map(|(c, _)| c);
+        for c in now.chain(before) {
+            if self.rows[c].remove(&i) {
+                self.touch(c);
             }
         }
     }
@@ -259,17 +304,22 @@ impl<R: PivotRow> Sge<R> {
                 let Some(mut r) = rows[oi].take() else {
                     continue;
                 };
-                cols.remove(oi, &r);
+                cols.take_units(oi, &r);
+                let had: Vec<bool> = prow.columns().map(|c| r.has(c)).collect();
                 if r.eliminate(pc, &prow) && !r.has(pc) {
                     if r.is_zero() {
+                        cols.forget(oi, &r, &prow, &had);
                         vanished.push(r);
                     } else {
-                        cols.insert(oi, &r);
+                        cols.amend(oi, &r, &prow, &had);
                         rows[oi] = Some(r);
                     }
+                } else {
+                    // a row that overflowed is dropped: the lattice only
+                    // shrinks, and the analytic check decides whether
+                    // enough is left
+                    cols.forget(oi, &r, &prow, &had);
                 }
-                // a row that overflowed is dropped: the lattice only shrinks,
-                // and the analytic check decides whether enough is left
             }
             cols.settle();
             s.pivoted[pc] = true;
