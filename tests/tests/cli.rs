@@ -841,6 +841,9 @@ fn a_killed_run_resumes_to_the_same_bytes_and_a_changed_round_is_refused() {
     assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
     assert!(stderr(&o).contains("round-000000.ckpt"), "{}", stderr(&o));
     assert!(stderr(&o).contains("refused"), "{}", stderr(&o));
-    assert!(!resumed.exists(), "a certificate was written from a changed round");
+    assert!(
+        !resumed.exists(),
+        "a certificate was written from a changed round"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }

@@ -16,7 +16,7 @@ pub(crate) const RELATION_ATTEMPTS: u64 = 5_000_000;
 
 /// Eliminations asked of a source at a time; progress ticks after each
 /// chunk (the chunk does not change which relations are found).
-const ELIMINATION_CHUNK: usize = 25;
+pub(crate) const ELIMINATION_CHUNK: usize = 25;
 
 /// Encodes a certificate and runs the verifier on the bytes (decoding
 /// included); a rejection is a prover bug and is reported as such.

@@ -5,7 +5,7 @@
 //! the Smith form, and the certificate body. The analytic side tells it
 //! when the lattice is the whole relation lattice.
 
-use super::common::{eliminations, RELATION_ATTEMPTS};
+use super::common::{eliminations, ELIMINATION_CHUNK, RELATION_ATTEMPTS};
 use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
 use crate::progress::Progress;
@@ -32,7 +32,7 @@ const SIEVE_MIN_BITS: u32 = 105;
 
 /// Relations collected by the sieve before the structured elimination, in
 /// percent of the sieving primes.
-const SIEVE_SURPLUS_PERCENT: usize = 150;
+const SIEVE_SURPLUS_PERCENT: usize = 250;
 
 fn use_sieve(abs_d: &Integer) -> bool {
     abs_d.significant_bits() >= SIEVE_MIN_BITS
@@ -56,13 +56,16 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // keeps a small one
     let params = use_sieve(&abs_d).then(|| Params::for_discriminant(d, n));
     let sieving = params.is_some();
+
     let k = match &params {
         Some(p) => p.primes.min(n),
         None => essential_count(fb, &abs_d),
     };
-    progress.phase(&format!(
-        "factor base of {n} prime ideals ({k} essential): eliminating the others"
-    ));
+    progress.phase(&if sieving {
+        format!("factor base of {n} prime ideals; sieving with the first {k}")
+    } else {
+        format!("factor base of {n} prime ideals ({k} essential): eliminating the others")
+    });
     // the sieve from SIEVE_MIN_BITS on, where it is faster; the form search
     // below (the tests' sizes keep their certificates)
     let mut forms;
@@ -85,10 +88,13 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         &mut forms
     };
 
-    // Eliminations for every ideal beyond the essential block.
+    // Eliminations for every ideal beyond the essential block (the sieve
+    // first collects its relations, whose cofactors cover many of them).
     let mut elim: Vec<Option<Sparse>> = vec![None; n];
-    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &progress)?) {
-        elim[i] = Some(rel.exponents);
+    if !sieving {
+        for (i, rel) in (k..n).zip(eliminations(source, fb, k, &progress)?) {
+            elim[i] = Some(rel.exponents);
+        }
     }
     progress.phase("relations on the essential block");
 
@@ -97,10 +103,6 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // the count the sieve aims at, for progress lines
     let wanted: std::cell::Cell<Option<u64>> = std::cell::Cell::new(None);
     let max_relations = 50 * (k as u64) + 2000;
-    let surplus: usize = std::env::var("CC_SURPLUS")
-        .ok()
-        .and_then(|x| x.parse().ok())
-        .unwrap_or(SIEVE_SURPLUS_PERCENT);
     let next_relation = |source: &mut dyn RelationSource| -> Result<Sparse, ProveError> {
         if found.get() > max_relations {
             return Err(ProveError::SearchFailed(format!(
@@ -158,10 +160,37 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         // A fixed surplus instead of a rank test per relation (which costs
         // k² per relation); a shortfall is made up after the structured
         // elimination, where the dense block is small.
-        let target = rels.len() + k * surplus / 100;
-        wanted.set(Some((k * surplus / 100) as u64));
+        let target = rels.len() + k * SIEVE_SURPLUS_PERCENT / 100;
+        wanted.set(Some((k * SIEVE_SURPLUS_PERCENT / 100) as u64));
         while rels.len() < target {
             rels.push(next_relation(source)?);
+        }
+        // Ideals beyond the sieving primes that no relation names (a
+        // relation with one as its cofactor eliminates it) get a special-q
+        // elimination each.
+        let mut covered = vec![false; n];
+        for r in &rels {
+            for &c in r.keys() {
+                covered[c] = true;
+            }
+        }
+        let missing: Vec<usize> = (k..n).filter(|&c| !covered[c]).collect();
+        progress.phase(&format!(
+            "{} of the {} ideals beyond the sieving primes are named by no relation: eliminating them",
+            missing.len(),
+            n - k
+        ));
+        for (t, chunk) in missing.chunks(ELIMINATION_CHUNK).enumerate() {
+            progress.tick((t * ELIMINATION_CHUNK) as u64, Some(missing.len() as u64));
+            for (&i, e) in chunk.iter().zip(source.eliminations_for(chunk, 0)) {
+                let Some(e) = e else {
+                    return Err(ProveError::SearchFailed(format!(
+                        "no elimination relation found for p = {}",
+                        fb.primes[i]
+                    )));
+                };
+                elim[i] = Some(e);
+            }
         }
     } else {
         // Enough relations for full rank on the essential block.

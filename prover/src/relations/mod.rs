@@ -123,6 +123,20 @@ pub trait RelationSource {
     fn take_error(&mut self) -> Option<crate::checkpoint::CheckpointError> {
         None
     }
+
+    /// Eliminations for the listed factor-base indices (ascending), each
+    /// within `attempts` candidates; `None` where none was found.
+    fn eliminations_for(&mut self, ideals: &[usize], attempts: u64) -> Vec<Option<Sparse>> {
+        ideals
+            .iter()
+            .map(|&i| {
+                self.eliminations(i..i + 1, attempts)
+                    .relations
+                    .pop()
+                    .map(|r| r.exponents)
+            })
+            .collect()
+    }
 }
 
 /// The fixed part of a source's headers (everything but kind and range),

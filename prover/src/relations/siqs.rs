@@ -96,15 +96,8 @@ impl Params {
             .rev()
             .find(|r| bits >= r.0)
             .unwrap_or(&TABLE[0]);
-        let primes = std::env::var("CC_PRIMES")
-            .ok()
-            .and_then(|x| x.parse().ok())
-            .unwrap_or(row.1)
-            .min(n);
-        let m = std::env::var("CC_M")
-            .ok()
-            .and_then(|x| x.parse().ok())
-            .unwrap_or(row.2);
+        let primes = row.1.min(n);
+        let m = row.2;
         // a ≈ √|D| / (2m) balances |D|/(4a) at the centre against a m² at
         // the ends (D < 0); a ≈ √(D/2)/m for D > 0
         let half = bits as f64 / 2.0;
@@ -445,6 +438,21 @@ impl<'a> Siqs<'a> {
         threads: usize,
     ) -> Vec<Sparse> {
         let list: Vec<usize> = ideals.collect();
+        self.eliminations_for(&list, families, threads)
+            .into_iter()
+            .map_while(|e| e)
+            .collect()
+    }
+
+    /// Eliminations for the listed ideals, each found independently (so
+    /// the answer does not depend on `threads`); `None` where none was
+    /// found.
+    pub fn eliminations_for(
+        &self,
+        list: &[usize],
+        families: u64,
+        threads: usize,
+    ) -> Vec<Option<Sparse>> {
         let results: Vec<Mutex<Option<Sparse>>> = list.iter().map(|_| Mutex::new(None)).collect();
         let next = AtomicU64::new(0);
         let work = || loop {
@@ -469,7 +477,7 @@ impl<'a> Siqs<'a> {
         }
         results
             .into_iter()
-            .map_while(|m| m.into_inner().ok().flatten())
+            .map(|m| m.into_inner().ok().flatten())
             .collect()
     }
 
@@ -1087,6 +1095,11 @@ impl RelationSource for SiqsSource<'_> {
 
     fn take_error(&mut self) -> Option<CheckpointError> {
         self.error.take()
+    }
+
+    fn eliminations_for(&mut self, ideals: &[usize], _attempts: u64) -> Vec<Option<Sparse>> {
+        self.siqs
+            .eliminations_for(ideals, ELIMINATION_FAMILIES, self.threads)
     }
 }
 
