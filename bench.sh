@@ -3,8 +3,21 @@
 # medians over RUNS runs (wall time from /usr/bin/time, peak RSS in MiB).
 #   ./bench.sh [--real] [RUNS] [DIGITS...]   e.g. ./bench.sh 3 20 30 40
 #   --real: real quadratic fields of prime discriminant D > 0
+#   ./bench.sh --table [--with-80] [RUNS]: the fixed table of BENCHMARKS.md,
+#     imaginary 30 40 50 60 70 (and 80 with --with-80, which takes about an
+#     hour per run), then real 30 40 50
 set -euo pipefail
 cd "$(dirname "$0")"
+if [ "${1:-}" = "--table" ]; then
+  shift
+  sizes="30 40 50 60 70"
+  if [ "${1:-}" = "--with-80" ]; then sizes="$sizes 80"; shift; fi
+  runs=${1:-3}
+  "$0" "$runs" $sizes
+  echo
+  "$0" --real "$runs" 30 40 50
+  exit 0
+fi
 kind=""
 if [ "${1:-}" = "--real" ]; then kind=real; shift; fi
 runs=${1:-3}; shift || true
@@ -19,7 +32,7 @@ for n in $digits; do
   d=$(./target/release/examples/bench_d "$n" $kind)
   : > "$tmp/p"; : > "$tmp/v"
   for _ in $(seq "$runs"); do
-    /usr/bin/time -f "%e %M" -o "$tmp/t" ./target/release/classcert prove "$d" -o "$tmp/c.cert" -q >/dev/null
+    /usr/bin/time -f "%e %M" -o "$tmp/t" ./target/release/classcert prove -o "$tmp/c.cert" -q --force -- "$d" >/dev/null
     cat "$tmp/t" >> "$tmp/p"
     /usr/bin/time -f "%e %M" -o "$tmp/t" ./target/release/classcert-verify "$tmp/c.cert" >/dev/null
     cat "$tmp/t" >> "$tmp/v"

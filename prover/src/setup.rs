@@ -36,8 +36,8 @@ pub struct Options {
     /// prime ideals up to sqrt(|D|/3) and h from an exact series.
     pub unconditional: bool,
     /// The checkpoint directory of `--resume` ([`crate::checkpoint`]),
-    /// checked by the command line before any work. No driver reads it
-    /// yet: relation rounds are not stored there so far.
+    /// checked by the command line before any work: the sieve for `D < 0`
+    /// keeps its rounds there and reads back those already stored.
     pub resume: Option<std::path::PathBuf>,
 }
 
