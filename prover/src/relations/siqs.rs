@@ -1215,7 +1215,7 @@ mod tests {
             }
             if let Some(i) = fb.index_of(10007) {
                 assert!(
-                    i >= k && fb.bs[i] % 10007 == 0,
+                    i >= k && fb.bs[i].is_multiple_of(10007),
                     "10007 ramifies beyond the sieve"
                 );
             }
