@@ -141,15 +141,16 @@ pub const MAX_UNFORCED_SECONDS: f64 = 3600.0;
 
 /// `exp(a + c · sqrt(ln|D| ln ln|D|))`, the shape `L(1/2, c)` of
 /// subexponential relation search, fitted by least squares to this
-/// prover's measured medians (BENCHMARKS.md: D < 0 at 30–45 digits with
-/// the sieve, D > 0 at 15–25 digits), time and peak memory separately. An estimate, not a
+/// prover's measured times (BENCHMARKS.md: D < 0 at 50–70 digits with the
+/// self-initialising sieve on 2 cores, D > 0 at 15–25 digits), time and
+/// peak memory separately. An estimate, not a
 /// promise: it knows only the measured range and the shape of the curve.
 pub fn estimate(d: &Integer) -> Estimate {
     let ln = (d.significant_bits().max(8) as f64) * std::f64::consts::LN_2;
     let s = (ln * ln.ln()).sqrt();
     // (a, c) for seconds, then for MiB
     let ((at, ct), (am, cm)) = if *d < 0 {
-        ((-11.272, 0.651), (-0.837, 0.210))
+        ((-16.323, 0.785), (-2.535, 0.271))
     } else {
         ((-16.524, 1.257), (-1.860, 0.348))
     };

@@ -606,7 +606,7 @@ fn full_proof_refused_with_an_estimate() {
     let dir = scratch("estimate");
     let cert = dir.join("e.cert");
     let cert_s = cert.to_str().expect("utf-8 path");
-    let d = format!("-{}6", "1".repeat(80)); // 81 digits, D ≡ 0 (mod 4)
+    let d = format!("-{}6", "1".repeat(84)); // 85 digits, D ≡ 0 (mod 4)
     let started = std::time::Instant::now();
     let o = run(&classcert, &["prove", &d, "-o", cert_s]);
     assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
