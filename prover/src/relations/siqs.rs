@@ -1224,6 +1224,28 @@ impl<'a> SiqsSource<'a> {
         Ok(())
     }
 
+    /// `--resume DIR`: keeps rounds in `dir`, when there is one
+    /// ([`SiqsSource::keep_rounds_in`]), and says how many it holds
+    /// already.
+    pub fn resume(
+        &mut self,
+        dir: Option<&std::path::Path>,
+        progress: &crate::progress::Progress,
+    ) -> Result<(), CheckpointError> {
+        let Some(dir) = dir else {
+            return Ok(());
+        };
+        self.keep_rounds_in(dir)?;
+        if self.stored > 0 {
+            progress.say(&format!(
+                "resuming: {} rounds of the sieve are in {} (each is checked by its norms as it is read)",
+                self.stored,
+                dir.display()
+            ));
+        }
+        Ok(())
+    }
+
     /// Rounds found in the checkpoint directory when it was opened.
     pub fn stored_rounds(&self) -> u64 {
         self.stored
