@@ -189,7 +189,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
                         fb.primes[i]
                     )));
                 };
-                elim[i] = Some(e);
+                elim[i] = Some(e.exponents);
             }
         }
     } else {

@@ -30,7 +30,7 @@
 //! a round's findings are merged in order of `(k, polynomial, x)`, so the
 //! relations handed out never depend on the number of threads.
 
-use super::{add, plain, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
+use super::{add, Element, FoundRelation, Origin, RelationBatch, RelationSource, Sparse};
 use crate::checkpoint::{Checkpoint, CheckpointError};
 use crate::fb::{sqrt_mod, FactorBase};
 use crate::rng::Rng;
@@ -63,6 +63,32 @@ pub const LARGE_MULTIPLIER: u64 = 64;
 /// Families sieved per round: the unit of work split among threads, of
 /// merging and of checkpoints.
 pub const FAMILIES_PER_ROUND: u64 = 16;
+
+/// `D > 0`: bits of slack below the mean of `log₂|g|` beyond those of
+/// `D < 0`. Measured at 50 digits (12,000 relations, 1,000 sieving
+/// primes): 0, 2, 4 and 6 bits took 1,328, 1,056, 880 and 768 families
+/// in about the same time (0.9–1.3 s on 2 shared cores); more partials
+/// make more combined relations, each with a larger element.
+const REAL_EXTRA_SLACK: f64 = 2.0;
+
+/// `D > 0`: the sieve threshold, one for the whole interval. Here `g`
+/// changes sign: with `a ≈ √(D/2)/M`,
+/// `|g(x)| = |(2ax + b)² - D|/(4a) ≈ G·|1 - 2(x/M)²|` with
+/// `G = D/(4a) ≈ M√(D/2)/2`, largest at the centre and at the ends and
+/// far smaller near the roots `x ≈ ±M/√2`. The mean of
+/// `log₂|1 - 2t²|` over `0 ≤ t ≤ 1` is `-1.087` (numerical integration),
+/// so the threshold is `log₂ G - 1.09` less the large primes and the
+/// slack. A threshold that follows `log₂|g|` in blocks of 64 positions
+/// (down to 8 bits below `log₂ G` near the roots) took 2–5% more families
+/// for the same number of relations at 50 digits with every slack tried
+/// above, and no less time, so the simpler rule stays.
+fn real_threshold(d: &Integer, params: &Params, large_bound: u64) -> u8 {
+    let (mantissa, exp) = d.to_f64_exp();
+    // log₂ G = log₂ D - 2 - log₂ a, for a of a_bits bits
+    let log_g = mantissa.log2() + exp as f64 - 2.0 - params.a_bits as f64 - 1.087;
+    (log_g - (large_bound as f64).log2() - params.slack as f64 - 2.0 - REAL_EXTRA_SLACK)
+        .clamp(1.0, 120.0) as u8
+}
 
 /// The sieve's parameters, fixed before any sieving (they determine every
 /// relation, so they are part of a checkpoint's identity).
@@ -127,6 +153,45 @@ impl Params {
     }
 }
 
+impl Params {
+    /// The parameters for `D > 0` (`n` prime ideals in the factor base),
+    /// by the bit length of `D`. The sieving primes are the real driver's
+    /// essential block, whose exact linear algebra (combinations of raw
+    /// relations) costs far more than the sieve at these sizes, so the
+    /// block is smaller than for `D < 0`. Starting values, tried only on
+    /// the `bench_d N real` discriminants at 25–40 digits: at 30 digits 250,
+    /// 300 and 400 primes gave certificates of the same size (see
+    /// `drivers/real.rs`); 400 primes at 40 digits left special-q
+    /// eliminations without a relation.
+    pub fn for_real(d: &Integer, n: usize) -> Params {
+        // (bits of D, sieving primes, half-width)
+        const TABLE: [(u32, usize, u32); 4] = [
+            (70, 300, 1 << 14),
+            (100, 400, 1 << 14),
+            (116, 500, 1 << 15),
+            (133, 700, 1 << 15),
+        ];
+        let bits = d.significant_bits();
+        let row = TABLE
+            .iter()
+            .rev()
+            .find(|r| bits >= r.0)
+            .unwrap_or(&TABLE[0]);
+        let (primes, m) = (row.1.min(n), row.2);
+        // a ≈ √(D/2)/m puts the roots of g at ±m/√2
+        let a_bits = (bits as f64 / 2.0 - 0.5 - (m as f64).log2()).max(8.0);
+        // primes of about 11 bits in a (at least 2, so that a varies)
+        let s = ((a_bits / 11.0).round() as u32).max(2);
+        Params {
+            m,
+            primes,
+            s,
+            a_bits: a_bits.round() as u32,
+            slack: 0,
+        }
+    }
+}
+
 /// One smooth or partial value: `N((u + √D)/2) = ± ∏ p_i^{v_i} · large`.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Found {
@@ -153,6 +218,9 @@ pub struct Siqs<'a> {
     pmax: u64,
     large_bound: u64,
     threshold: u8,
+    /// `D > 0`: relations carry elements, and the threshold is
+    /// [`real_threshold`].
+    real: bool,
 }
 
 /// What one family needs per prime, and the sieve array (one per thread).
@@ -200,8 +268,12 @@ impl<'a> Siqs<'a> {
         // log₂ of the typical |g(x)|: M √|D| / 2 to M √|D| for D < 0
         let log_g = params.m as f64 + 0.0;
         let log_g = log_g.log2() + d.significant_bits() as f64 / 2.0 - 0.5;
-        let threshold = (log_g - (large_bound as f64).log2() - params.slack as f64 - 2.0)
-            .clamp(1.0, 120.0) as u8;
+        let threshold = if *d > 0 {
+            real_threshold(d, &params, large_bound)
+        } else {
+            (log_g - (large_bound as f64).log2() - params.slack as f64 - 2.0).clamp(1.0, 120.0)
+                as u8
+        };
         Siqs {
             d: d.clone(),
             fb,
@@ -213,6 +285,7 @@ impl<'a> Siqs<'a> {
             pmax,
             large_bound,
             threshold,
+            real: *d > 0,
         }
     }
 
@@ -360,8 +433,10 @@ impl<'a> Siqs<'a> {
 
     /// An elimination for factor-base index `i` beyond the sieving primes:
     /// a relation with `+1` at `i` and support below `i`, from families
-    /// whose `a` contains `p_i` (special-q), tried in a fixed order.
-    pub fn elimination(&self, i: usize, families: u64) -> Option<Sparse> {
+    /// whose `a` contains `p_i` (special-q), tried in a fixed order. For
+    /// `D > 0` it carries its element: `(u + √D)/2`, or `(-u + √D)/2`
+    /// (the conjugate up to sign) when the vector was negated.
+    pub fn elimination(&self, i: usize, families: u64) -> Option<FoundRelation> {
         let mut w = self.workspace();
         let kp = self.sieving_primes();
         // (a ramified p_i works too: b ≡ 0 (mod p_i) and p_i ∤ c, so p_i
@@ -384,11 +459,22 @@ impl<'a> Siqs<'a> {
             let found = self.polynomials(&q, &mut w, |out| out.iter().any(fits));
             if let Some(f) = found.iter().find(|f| fits(f)) {
                 let v = self.vector(f);
-                return Some(if v.get(&i) == Some(&-1) {
+                let flip = v.get(&i) == Some(&-1);
+                let exponents = if flip {
                     v.iter().map(|(&j, &e)| (j, -e)).collect()
                 } else {
                     v
+                };
+                // -ᾱ = (-u + √D)/2 generates the conjugate ideal
+                let element = self.element(f).map(|mut el| {
+                    if flip {
+                        el.x = -el.x;
+                    }
+                    el
                 });
+                let rel = FoundRelation { exponents, element };
+                debug_assert!(!self.real || self.element_holds(&rel), "{rel:?}");
+                return Some(rel);
             }
         }
         None
@@ -444,7 +530,7 @@ impl<'a> Siqs<'a> {
         ideals: std::ops::Range<usize>,
         families: u64,
         threads: usize,
-    ) -> Vec<Sparse> {
+    ) -> Vec<FoundRelation> {
         let list: Vec<usize> = ideals.collect();
         self.eliminations_for(&list, families, threads)
             .into_iter()
@@ -460,8 +546,9 @@ impl<'a> Siqs<'a> {
         list: &[usize],
         families: u64,
         threads: usize,
-    ) -> Vec<Option<Sparse>> {
-        let results: Vec<Mutex<Option<Sparse>>> = list.iter().map(|_| Mutex::new(None)).collect();
+    ) -> Vec<Option<FoundRelation>> {
+        let results: Vec<Mutex<Option<FoundRelation>>> =
+            list.iter().map(|_| Mutex::new(None)).collect();
         let next = AtomicU64::new(0);
         let work = || loop {
             let t = next.fetch_add(1, Ordering::Relaxed) as usize;
@@ -705,6 +792,115 @@ impl<'a> Siqs<'a> {
         }
     }
 
+    /// `D > 0`: the element `α = (u + √D)/2` of a value (`None` for
+    /// `D < 0`, whose relations are checked by reducing forms).
+    pub fn element(&self, f: &Found) -> Option<Element> {
+        self.real.then(|| Element {
+            x: f.u.clone(),
+            y: Integer::from(1),
+        })
+    }
+
+    /// `D > 0`: the element of the relation `combo` made of two partial
+    /// values `α_j = (u_j + √D)/2` (vectors `r_j`) with the same large
+    /// prime `ℓ`.
+    ///
+    /// With `same` (both in the same prime `L` above `ℓ`), `combo = r₁ - r₂`
+    /// and `α₁ᾱ₂ ∈ L·L̄ = ℓO`; from `4α₁ᾱ₂ = (u₁u₂ - D) + (u₂ - u₁)√D`,
+    /// `α₁ᾱ₂/ℓ = (x + y√D)/2` with `x = (u₁u₂ - D)/(2ℓ)`,
+    /// `y = (u₂ - u₁)/(2ℓ)` (integers: `u₁ ≡ u₂ (mod 2ℓ)` and
+    /// `u² ≡ D (mod 4ℓ)`). Otherwise `combo = r₁ + r₂` and `α₁α₂/ℓ`, with
+    /// `x = (u₁u₂ + D)/(2ℓ)`, `y = (u₁ + u₂)/(2ℓ)` (`u₂ ≡ -u₁ (mod 2ℓ)`).
+    /// Norms multiply: `N = N(α₁)N(α₂)/ℓ²`.
+    ///
+    /// Where the two contribute a prime `P` and its conjugate, their product
+    /// holds `(p) = P·P̄` (also `P² = (p)` for ramified `P`), which `combo`
+    /// no longer names: the element is divided by
+    /// `g = ∏ p_i^{(|e₁| + |e₂| - |c_i|)/2}` over the two contributions
+    /// `e₁, e₂` and their sum `c_i`, leaving exactly the ideal of `combo`.
+    /// `None` when a division is not exact (which the argument above rules
+    /// out).
+    pub fn combined_element(
+        &self,
+        first: (&Integer, &Sparse),
+        second: (&Integer, &Sparse),
+        l: u64,
+        same: bool,
+        combo: &Sparse,
+    ) -> Option<Element> {
+        let ((u1, r1), (u2, r2)) = (first, second);
+        let uu = Integer::from(u1 * u2);
+        let (mut x, mut y) = if same {
+            (uu - &self.d, Integer::from(u2 - u1))
+        } else {
+            (uu + &self.d, Integer::from(u1 + u2))
+        };
+        let two_l = Integer::from(l) * 2u32;
+        if !x.is_divisible(&two_l) || !y.is_divisible(&two_l) {
+            return None;
+        }
+        x.div_exact_mut(&two_l);
+        y.div_exact_mut(&two_l);
+        let sign = if same { -1 } else { 1 };
+        let mut g = Integer::from(1);
+        let support: BTreeSet<usize> = r1.keys().chain(r2.keys()).copied().collect();
+        for i in support {
+            let e1 = r1.get(&i).copied().unwrap_or(0);
+            let e2 = sign * r2.get(&i).copied().unwrap_or(0);
+            let c = combo.get(&i).copied().unwrap_or(0);
+            debug_assert_eq!(e1 + e2, c);
+            let twice = e1.abs() + e2.abs() - c.abs();
+            if twice > 0 {
+                g *= Integer::from(self.fb.primes[i]).pow((twice / 2) as u32);
+            }
+        }
+        if !x.is_divisible(&g) || !y.is_divisible(&g) {
+            return None;
+        }
+        x.div_exact_mut(&g);
+        y.div_exact_mut(&g);
+        Some(Element { x, y })
+    }
+
+    /// Whether `rel`'s element `α = (x + y√D)/2` generates the ideal its
+    /// vector names, checked as the verifier checks an element witness
+    /// (`verifier/src/relations/elements.rs`): `x ≡ yD (mod 2)`, `|N(α)|`
+    /// is `∏ p_i^{|e_i|}` exactly, and for a split `p_i` the element does
+    /// not lie in the prime above `p_i` that the vector does not name
+    /// (`α ∈ P` iff `p | (x - yb)/2`, `α ∈ P̄` iff `p | (x + yb)/2`).
+    pub fn element_holds(&self, rel: &FoundRelation) -> bool {
+        let Some(Element { x, y }) = &rel.element else {
+            return false;
+        };
+        let yd = Integer::from(y * &self.d);
+        if Integer::from(x - &yd).is_odd() {
+            return false;
+        }
+        let mut norm = Integer::from(x.square_ref()) - Integer::from(y * &yd);
+        norm >>= 2;
+        if norm.is_zero() {
+            return false;
+        }
+        for (&i, &e) in &rel.exponents {
+            let (Some(&p), Some(&b)) = (self.fb.primes.get(i), self.fb.bs.get(i)) else {
+                return false;
+            };
+            let pe = Integer::from(p).pow(e.unsigned_abs() as u32);
+            if e == 0 || !norm.is_divisible(&pe) {
+                return false;
+            }
+            norm.div_exact_mut(&pe);
+            if !self.d.is_divisible_u(p as u32) {
+                let yb = Integer::from(y * b);
+                let t = if e > 0 { x + yb } else { x - yb };
+                if (t >> 1u32).is_divisible_u(p as u32) {
+                    return false;
+                }
+            }
+        }
+        norm.abs() == 1
+    }
+
     /// Whether `f` is what it says: `(u² - D)/4 = ±∏ p_i^{v_i}·large` with
     /// `u ≡ D (mod 2)`. Relations read back from a checkpoint pass this
     /// before they are used.
@@ -874,13 +1070,14 @@ impl Siqs<'_> {
 }
 
 /// Hands out relations from rounds of families, combining partial values
-/// with the same large prime, in a fixed order.
+/// with the same large prime, in a fixed order. For `D > 0` every relation
+/// carries its element ([`Siqs::element`], [`Siqs::combined_element`]).
 pub struct Collector {
-    /// The first partial seen for each large prime: its vector and
-    /// orientation.
-    partials: BTreeMap<u64, (Sparse, i64)>,
+    /// The first partial seen for each large prime: its vector, orientation
+    /// and (`D > 0` only) `u`.
+    partials: BTreeMap<u64, (Sparse, i64, Option<Integer>)>,
     emitted: BTreeSet<Sparse>,
-    queue: VecDeque<Sparse>,
+    queue: VecDeque<FoundRelation>,
     pub next_family: u64,
     pub fulls: u64,
     pub combined: u64,
@@ -914,38 +1111,69 @@ impl Collector {
                 let v = siqs.vector(&f);
                 if f.large == 1 {
                     self.fulls += 1;
-                    self.queue.push_back(v);
+                    let rel = FoundRelation {
+                        exponents: v,
+                        element: siqs.element(&f),
+                    };
+                    debug_assert!(!siqs.real || siqs.element_holds(&rel), "{rel:?}");
+                    self.queue.push_back(rel);
                     continue;
                 }
                 self.partial_count += 1;
                 let s = siqs.orientation(&f);
                 match self.partials.get(&f.large) {
-                    Some((v1, s1)) => {
+                    Some((v1, s1, u1)) => {
                         // r1 - s1 s2 r2: the relation of α₁ᾱ₂/ℓ or α₁α₂/ℓ
                         let mut combo = v1.clone();
                         for (&i, &e) in &v {
                             add(&mut combo, i, -s1 * s * e);
                         }
-                        if !combo.is_empty() {
-                            self.combined += 1;
-                            self.queue.push_back(combo);
+                        if combo.is_empty() {
+                            continue;
                         }
+                        let element = match u1 {
+                            None => None,
+                            Some(u1) => {
+                                let el = siqs.combined_element(
+                                    (u1, v1),
+                                    (&f.u, &v),
+                                    f.large,
+                                    *s1 == s,
+                                    &combo,
+                                );
+                                debug_assert!(el.is_some(), "no element for ℓ = {}", f.large);
+                                if el.is_none() {
+                                    continue;
+                                }
+                                el
+                            }
+                        };
+                        let rel = FoundRelation {
+                            exponents: combo,
+                            element,
+                        };
+                        debug_assert!(!siqs.real || siqs.element_holds(&rel), "{rel:?}");
+                        self.combined += 1;
+                        self.queue.push_back(rel);
                     }
                     None => {
-                        self.partials.insert(f.large, (v, s));
+                        let u = siqs.real.then(|| f.u.clone());
+                        self.partials.insert(f.large, (v, s, u));
                     }
                 }
             }
         }
     }
 
-    /// The next relation not handed out before (up to sign).
-    pub fn pop(&mut self) -> Option<Sparse> {
+    /// The next relation whose vector was not handed out before (up to
+    /// sign).
+    pub fn pop(&mut self) -> Option<FoundRelation> {
         while let Some(rel) = self.queue.pop_front() {
-            let normal: Sparse = if rel.values().next().is_some_and(|&e| e < 0) {
-                rel.iter().map(|(&i, &e)| (i, -e)).collect()
+            let v = &rel.exponents;
+            let normal: Sparse = if v.values().next().is_some_and(|&e| e < 0) {
+                v.iter().map(|(&i, &e)| (i, -e)).collect()
             } else {
-                rel.clone()
+                v.clone()
             };
             if self.emitted.insert(normal) {
                 return Some(rel);
@@ -961,9 +1189,10 @@ const ELIMINATION_FAMILIES: u64 = 200;
 /// Rounds in a row without a new relation before the search gives up.
 const EMPTY_ROUNDS: u32 = 8;
 
-/// A [`RelationSource`] for `D < 0` at research sizes: relations from the
-/// sieve above (rounds on every core), eliminations beyond the sieving
-/// primes from special-q families of the same sieve.
+/// A [`RelationSource`] at research sizes: relations from the sieve above
+/// (rounds on every core), eliminations beyond the sieving primes from
+/// special-q families of the same sieve. For `D < 0` the relations are
+/// plain vectors; for `D > 0` each carries its element.
 pub struct SiqsSource<'a> {
     pub siqs: Siqs<'a>,
     pub collector: Collector,
@@ -1015,6 +1244,28 @@ impl<'a> SiqsSource<'a> {
         Ok(())
     }
 
+    /// `--resume DIR`: keeps rounds in `dir`, when there is one
+    /// ([`SiqsSource::keep_rounds_in`]), and says how many it holds
+    /// already.
+    pub fn resume(
+        &mut self,
+        dir: Option<&std::path::Path>,
+        progress: &crate::progress::Progress,
+    ) -> Result<(), CheckpointError> {
+        let Some(dir) = dir else {
+            return Ok(());
+        };
+        self.keep_rounds_in(dir)?;
+        if self.stored > 0 {
+            progress.say(&format!(
+                "resuming: {} rounds of the sieve are in {} (each is checked by its norms as it is read)",
+                self.stored,
+                dir.display()
+            ));
+        }
+        Ok(())
+    }
+
     /// Rounds found in the checkpoint directory when it was opened.
     pub fn stored_rounds(&self) -> u64 {
         self.stored
@@ -1061,7 +1312,7 @@ impl<'a> SiqsSource<'a> {
         true
     }
 
-    fn relation(&mut self) -> Option<Sparse> {
+    fn relation(&mut self) -> Option<FoundRelation> {
         let mut empty = 0;
         loop {
             if let Some(rel) = self.collector.pop() {
@@ -1083,17 +1334,12 @@ impl RelationSource for SiqsSource<'_> {
         let first = ideals.start;
         let found = self
             .siqs
-            .eliminations(ideals, ELIMINATION_FAMILIES, self.threads)
-            .into_iter()
-            .map(plain)
-            .collect();
+            .eliminations(ideals, ELIMINATION_FAMILIES, self.threads);
         self.origin.eliminations(first, found)
     }
 
     fn relations(&mut self, count: usize, _attempts: u64) -> RelationBatch {
-        let found: Vec<FoundRelation> = (0..count)
-            .map_while(|_| self.relation().map(plain))
-            .collect();
+        let found: Vec<FoundRelation> = (0..count).map_while(|_| self.relation()).collect();
         self.origin.relations(found)
     }
 
@@ -1105,7 +1351,7 @@ impl RelationSource for SiqsSource<'_> {
         self.error.take()
     }
 
-    fn eliminations_for(&mut self, ideals: &[usize], _attempts: u64) -> Vec<Option<Sparse>> {
+    fn eliminations_for(&mut self, ideals: &[usize], _attempts: u64) -> Vec<Option<FoundRelation>> {
         self.siqs
             .eliminations_for(ideals, ELIMINATION_FAMILIES, self.threads)
     }
@@ -1217,6 +1463,7 @@ mod tests {
             let elim = s.eliminations(ideals.clone(), ELIMINATION_FAMILIES, 2);
             assert_eq!(elim.len(), ideals.len(), "D = {d}");
             for (i, r) in ideals.zip(&elim) {
+                let r = &r.exponents;
                 assert_eq!(r.get(&i), Some(&1), "D = {d}, i = {i}: {r:?}");
                 assert_eq!(r.keys().next_back(), Some(&i), "D = {d}, i = {i}");
                 assert!(holds(&fb, &d, r), "D = {d}, i = {i}: {r:?}");
@@ -1262,6 +1509,192 @@ mod tests {
         );
         for f in one.iter().flatten() {
             assert!(s.holds_by_norm(f));
+        }
+    }
+}
+
+#[cfg(test)]
+mod real_tests {
+    use super::super::tests::composes_to_principal;
+    use super::*;
+    use classcert_verifier::math::primes_up_to;
+
+    /// The first prime `p ≡ 1 (mod 4)` above `start`.
+    fn prime_1_mod_4_above(start: Integer) -> Integer {
+        let mut p = start;
+        loop {
+            p += 1u32;
+            if p.mod_u(4) == 1 && p.is_probably_prime(40) != rug::integer::IsPrime::No {
+                return p;
+            }
+        }
+    }
+
+    /// The prime ideals of norm up to `6 log² |D|` (Bach's bound, common
+    /// practice), none dividing a conductor (the test discriminants are
+    /// fundamental).
+    fn factor_base(d: &Integer) -> FactorBase {
+        let l = d.to_f64().abs().ln();
+        let bound = (6.0 * l * l) as u64;
+        FactorBase::new(d, &primes_up_to(bound), bound, &[])
+    }
+
+    /// Whether `α = (x + y√D)/2` lies in the ideal `[A, (B + √D)/2]` (with
+    /// `B² ≡ D (mod 4A)`): as a Z-module the ideal holds `α` exactly when
+    /// `α - y(B + √D)/2 = (x - yB)/2` lies in `AZ`.
+    fn in_ideal(x: &Integer, y: &Integer, a: &Integer, b: &Integer) -> bool {
+        let t = x - Integer::from(y * b);
+        t.is_even() && (t >> 1u32).is_divisible(a)
+    }
+
+    /// `B` with `B² ≡ D (mod 4p^e)` and `B ≡ b (mod 2p)`, so that
+    /// `P^e = [p^e, (B + √D)/2]` for the split `P = [p, (b + √D)/2]`: one
+    /// power at a time, trying every lift `B + 2tp^j`, `0 ≤ t < p`.
+    fn power_root(d: &Integer, p: u64, b: u64, e: u32) -> Integer {
+        let mut root = Integer::from(b);
+        let mut pj = Integer::from(p);
+        for _ in 1..e {
+            let modulus = Integer::from(&pj * p) * 4u32;
+            let lift = (0..p)
+                .map(|t| &root + Integer::from(&pj * t) * 2u32)
+                .find(|c| (Integer::from(c.square_ref()) - d).is_divisible(&modulus))
+                .expect("a split prime's root lifts");
+            root = lift;
+            pj *= p;
+        }
+        root
+    }
+
+    /// Whether `(α) = ∏ P_i^{e_i}` (`e_i < 0`: the conjugate of `P_i`) for
+    /// the relation's element, from the definitions: `α` lies in each
+    /// `P_i^{e_i}`, so in their product (the ideals are coprime), and
+    /// `|N(α)| = |x² - Dy²|/4` equals the product's norm `∏ p_i^{|e_i|}`,
+    /// so the two ideals are equal. A ramified `P` has `P² = (p)`.
+    fn generates(d: &Integer, fb: &FactorBase, rel: &FoundRelation) -> bool {
+        let Some(Element { x, y }) = &rel.element else {
+            return false;
+        };
+        if (x - Integer::from(y * d)).is_odd() {
+            return false;
+        }
+        let norm = (Integer::from(x.square_ref()) - Integer::from(y.square_ref()) * d) / 4u32;
+        let mut product = Integer::from(1);
+        for (&i, &e) in &rel.exponents {
+            let (p, b) = (fb.primes[i], fb.bs[i]);
+            let f = e.unsigned_abs() as u32;
+            product *= Integer::from(p).pow(f);
+            let inside = if d.is_divisible_u(p as u32) {
+                // P^f = p^(f/2) · P^(f mod 2)
+                let q = Integer::from(p).pow(f / 2);
+                if !x.is_divisible(&q) || !y.is_divisible(&q) {
+                    return false;
+                }
+                let (x1, y1) = (Integer::from(x / &q), Integer::from(y / &q));
+                (&x1 - Integer::from(&y1 * d)).is_even()
+                    && (f.is_multiple_of(2)
+                        || in_ideal(&x1, &y1, &Integer::from(p), &Integer::from(b)))
+            } else {
+                let root = power_root(d, p, b, f);
+                let root = if e < 0 { -root } else { root };
+                in_ideal(x, y, &Integer::from(p).pow(f), &root)
+            };
+            if !inside {
+                return false;
+            }
+        }
+        norm.abs() == product
+    }
+
+    /// Every relation of the sieve for `D > 0`, full or two partials
+    /// combined, and every elimination carries an element that generates
+    /// the ideal its vector names; the prover's own check agrees, and both
+    /// refuse a relation with one exponent's sign flipped.
+    #[test]
+    fn real_relations_carry_their_elements() {
+        // D prime ≡ 1 (mod 4) (as `bench_d 25 real` picks it), and
+        // D = 4·3·7·11·q with q ≡ 1 (mod 4) prime, so 231q ≡ 3 (mod 4) and
+        // D is fundamental with 2, 3, 7 and 11 ramified
+        let ten = |e: u32| Integer::from(Integer::u_pow_u(10, e));
+        let d1 = prime_1_mod_4_above(ten(24) * 5u32 / 2u32);
+        let d2 = prime_1_mod_4_above(ten(22)) * 924u32;
+        for d in [d1, d2] {
+            let fb = factor_base(&d);
+            let params = Params::for_real(&d, fb.len());
+            let k = params.primes.min(fb.len());
+            let mut src = SiqsSource::new(&d, &fb, params, 1);
+            let rels = src.relations(1500, 0).relations;
+            assert_eq!(rels.len(), 1500, "D = {d}");
+            let combined = rels
+                .iter()
+                .filter(|r| r.element.as_ref().is_some_and(|e| e.y != 1))
+                .count();
+            assert!(combined > 0 && combined < rels.len(), "D = {d}: {combined}");
+            assert!(src.collector.combined > 0);
+            let ramified = rels
+                .iter()
+                .filter(|r| {
+                    r.exponents
+                        .keys()
+                        .any(|&i| d.is_divisible_u(fb.primes[i] as u32))
+                })
+                .count();
+            for rel in &rels {
+                assert!(generates(&d, &fb, rel), "D = {d}: {rel:?}");
+                assert!(src.siqs.element_holds(rel), "D = {d}: {rel:?}");
+            }
+            let elims = src.eliminations(k..k + 40, 0).relations;
+            assert_eq!(elims.len(), 40);
+            for (i, rel) in (k..).zip(&elims) {
+                assert_eq!(rel.exponents.get(&i), Some(&1));
+                assert!(rel.exponents.keys().all(|&j| j <= i));
+                assert!(generates(&d, &fb, rel), "D = {d}: {rel:?}");
+                assert!(src.siqs.element_holds(rel));
+            }
+            // a flipped sign at a split prime is caught by both checks
+            let mut flipped = 0;
+            for rel in &rels {
+                let Some((&i, &e)) = rel
+                    .exponents
+                    .iter()
+                    .find(|(&i, _)| !d.is_divisible_u(fb.primes[i] as u32))
+                else {
+                    continue;
+                };
+                let mut bad = rel.clone();
+                bad.exponents.insert(i, -e);
+                assert!(!generates(&d, &fb, &bad), "D = {d}: {bad:?}");
+                assert!(!src.siqs.element_holds(&bad));
+                flipped += 1;
+            }
+            assert!(flipped > 1000);
+            if d.is_divisible_u(3) {
+                assert!(ramified > 0);
+            }
+        }
+    }
+
+    /// For `D < 0` the sieve's relations stay plain vectors, and each is
+    /// one: the product of the prime forms to its exponents reduces to the
+    /// principal form (the definition of a relation, common practice).
+    #[test]
+    fn imaginary_relations_stay_plain_and_hold() {
+        let p = prime_1_mod_4_above(Integer::from(Integer::u_pow_u(10, 23)) * 5u32 / 2u32);
+        let d = Integer::from(-4) * p;
+        let fb = factor_base(&d);
+        let params = Params::for_discriminant(&d, fb.len());
+        let k = params.primes.min(fb.len());
+        let mut src = SiqsSource::new(&d, &fb, params, 1);
+        let mut rels = src.relations(200, 0).relations;
+        assert_eq!(rels.len(), 200);
+        rels.extend(src.eliminations(k..k + 20, 0).relations);
+        assert_eq!(rels.len(), 220);
+        for rel in rels {
+            assert!(rel.element.is_none());
+            assert!(
+                composes_to_principal(&d, &fb, &rel.exponents),
+                "{:?}",
+                rel.exponents
+            );
         }
     }
 }
