@@ -142,7 +142,8 @@ pub const MAX_UNFORCED_SECONDS: f64 = 3600.0;
 /// `exp(a + c · sqrt(ln|D| ln ln|D|))`, the shape `L(1/2, c)` of
 /// subexponential relation search, fitted by least squares to this
 /// prover's measured times (BENCHMARKS.md: D < 0 at 50–70 digits with the
-/// self-initialising sieve on 2 cores, D > 0 at 15–25 digits), time and
+/// self-initialising sieve on 2 cores, D > 0 at 25–40 digits with the
+/// same sieve), time and
 /// peak memory separately. An estimate, not a
 /// promise: it knows only the measured range and the shape of the curve.
 pub fn estimate(d: &Integer) -> Estimate {
@@ -152,7 +153,7 @@ pub fn estimate(d: &Integer) -> Estimate {
     let ((at, ct), (am, cm)) = if *d < 0 {
         ((-16.323, 0.785), (-2.535, 0.271))
     } else {
-        ((-16.524, 1.257), (-1.860, 0.348))
+        ((-6.818, 0.559), (-2.727, 0.473))
     };
     Estimate {
         seconds: (at + ct * s).exp(),
