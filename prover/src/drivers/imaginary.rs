@@ -72,16 +72,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     let mut sieve;
     let source: &mut dyn RelationSource = if let Some(params) = params {
         sieve = SiqsSource::new(d, fb, params, opts.seed);
-        if let Some(dir) = &opts.resume {
-            sieve.keep_rounds_in(dir)?;
-            if sieve.stored_rounds() > 0 {
-                progress.note(&format!(
-                    "resuming: {} rounds of the sieve are in {} (each is checked by its norms as it is read)",
-                    sieve.stored_rounds(),
-                    dir.display()
-                ));
-            }
-        }
+        sieve.resume(opts.resume.as_deref(), &progress)?;
         &mut sieve
     } else {
         forms = FormSearch::new(d, fb, k, opts.seed);

@@ -1257,18 +1257,13 @@ impl<'a> SiqsSource<'a> {
         };
         self.keep_rounds_in(dir)?;
         if self.stored > 0 {
-            progress.say(&format!(
+            progress.note(&format!(
                 "resuming: {} rounds of the sieve are in {} (each is checked by its norms as it is read)",
                 self.stored,
                 dir.display()
             ));
         }
         Ok(())
-    }
-
-    /// Rounds found in the checkpoint directory when it was opened.
-    pub fn stored_rounds(&self) -> u64 {
-        self.stored
     }
 
     /// Sieves the next round of families (or reads it back from the
