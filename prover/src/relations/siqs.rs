@@ -547,33 +547,12 @@ impl<'a> Siqs<'a> {
         families: u64,
         threads: usize,
     ) -> Vec<Option<FoundRelation>> {
-        let results: Vec<Mutex<Option<FoundRelation>>> =
-            list.iter().map(|_| Mutex::new(None)).collect();
-        let next = AtomicU64::new(0);
-        let work = || loop {
-            let t = next.fetch_add(1, Ordering::Relaxed) as usize;
-            if t >= list.len() {
-                break;
-            }
-            let e = self.elimination(list[t], families);
-            if let Ok(mut slot) = results[t].lock() {
-                *slot = e;
-            }
-        };
-        let threads = threads.clamp(1, list.len().max(1));
-        if threads == 1 {
-            work();
-        } else {
-            std::thread::scope(|scope| {
-                for _ in 0..threads {
-                    scope.spawn(work);
-                }
-            });
-        }
-        results
-            .into_iter()
-            .map(|m| m.into_inner().ok().flatten())
-            .collect()
+        in_order(
+            list.len(),
+            threads,
+            || (),
+            |_, t| self.elimination(list[t], families),
+        )
     }
 
     /// Sieves `g(x) = a x² + b x + c` over `-m ≤ x < m` with the roots in
@@ -729,35 +708,12 @@ impl<'a> Siqs<'a> {
     /// The findings of families `first..first + count`, in order, sieved
     /// on up to `threads` threads.
     pub fn round(&self, first: u64, count: u64, threads: usize) -> Vec<Vec<Found>> {
-        let results: Vec<Mutex<Vec<Found>>> = (0..count).map(|_| Mutex::new(Vec::new())).collect();
-        let next = AtomicU64::new(0);
-        let work = || {
-            let mut w = self.workspace();
-            loop {
-                let t = next.fetch_add(1, Ordering::Relaxed);
-                if t >= count {
-                    break;
-                }
-                let found = self.family(first + t, &mut w);
-                if let Ok(mut slot) = results[t as usize].lock() {
-                    *slot = found;
-                }
-            }
-        };
-        let threads = threads.clamp(1, count.max(1) as usize);
-        if threads == 1 {
-            work();
-        } else {
-            std::thread::scope(|scope| {
-                for _ in 0..threads {
-                    scope.spawn(work);
-                }
-            });
-        }
-        results
-            .into_iter()
-            .map(|m| m.into_inner().unwrap_or_default())
-            .collect()
+        in_order(
+            count as usize,
+            threads,
+            || self.workspace(),
+            |w, t| self.family(first + t as u64, w),
+        )
     }
 
     /// The exponent vector of a full value: `s_i v_i` with `s_i = +1` when
@@ -1352,6 +1308,46 @@ impl RelationSource for SiqsSource<'_> {
     }
 }
 
+/// `job(workspace, t)` for `t` in `0..count` on up to `threads` threads,
+/// each with its own workspace from `make`; the results in order of `t`,
+/// whatever the number of threads (each job depends on `t` alone).
+fn in_order<W, T: Default + Send>(
+    count: usize,
+    threads: usize,
+    make: impl Fn() -> W + Sync,
+    job: impl Fn(&mut W, usize) -> T + Sync,
+) -> Vec<T> {
+    let results: Vec<Mutex<T>> = (0..count).map(|_| Mutex::new(T::default())).collect();
+    let next = AtomicU64::new(0);
+    let work = || {
+        let mut w = make();
+        loop {
+            let t = next.fetch_add(1, Ordering::Relaxed) as usize;
+            if t >= count {
+                break;
+            }
+            let r = job(&mut w, t);
+            if let Ok(mut slot) = results[t].lock() {
+                *slot = r;
+            }
+        }
+    };
+    let threads = threads.clamp(1, count.max(1));
+    if threads == 1 {
+        work();
+    } else {
+        std::thread::scope(|scope| {
+            for _ in 0..threads {
+                scope.spawn(work);
+            }
+        });
+    }
+    results
+        .into_iter()
+        .map(|m| m.into_inner().unwrap_or_default())
+        .collect()
+}
+
 /// `x⁻¹ mod p` for `gcd(x, p) = 1` (extended Euclid).
 fn inv_mod(x: u64, p: u64) -> u64 {
     let (mut r0, mut r1) = (p as i64, (x % p) as i64);
@@ -1385,15 +1381,12 @@ fn sub_mod(x: u32, y: u32, p: u32) -> u32 {
 mod tests {
     use super::*;
     use crate::relations::RelationSource;
-    use classcert_verifier::math::{primes_up_to, Form};
+    use classcert_verifier::math::primes_up_to;
 
     /// Whether the product of the prime forms to `rel` reduces to the
     /// principal form: the definition of a relation (common practice).
     fn holds(fb: &FactorBase, d: &Integer, rel: &Sparse) -> bool {
-        let exps: Vec<Integer> = rel.values().map(|&e| Integer::from(e)).collect();
-        let terms: Vec<(&Form, &Integer)> =
-            rel.keys().map(|&i| &fb.forms[i]).zip(exps.iter()).collect();
-        Form::product(&terms, d).unwrap() == Form::principal(d)
+        super::super::tests::composes_to_principal(d, fb, rel)
     }
 
     fn next_prime(from: Integer, residue: u32) -> Integer {
