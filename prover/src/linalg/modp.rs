@@ -170,7 +170,7 @@ const STABLE_PRIMES: usize = 2;
 /// The determinant of a square integer matrix, by Gaussian elimination
 /// modulo word primes and the Chinese remainder theorem: up to twice
 /// Hadamard's bound, or earlier once the value has not changed for
-/// [`STABLE_PRIMES`] further primes. The prover uses the result only as a
+/// `STABLE_PRIMES` further primes. The prover uses the result only as a
 /// modulus for the Hermite form; were it wrong, the rows it gives would
 /// not be relations and the self-check would reject the certificate, so
 /// early termination costs no soundness. The primes are fixed in advance

@@ -9,8 +9,8 @@
 //! a cluster can take the place of today's searches:
 //!
 //! - [`forms`]: random products of prime forms, reduced (`D < 0`);
-//! - [`sieve`]: smooth values of quadratic polynomials found by sieving,
-//!   with special-q eliminations (`D < 0`, large `|D|`);
+//! - [`siqs`]: the self-initialising quadratic sieve, with single large
+//!   primes and special-q eliminations (both signs of `D`, large `|D|`);
 //! - [`elements`]: elements of small norm in products of prime ideals,
 //!   kept when trial division factors the norm (`D > 0`).
 //!
@@ -28,7 +28,6 @@
 
 pub mod elements;
 pub mod forms;
-pub mod sieve;
 pub mod siqs;
 
 use ciborium::Value;
