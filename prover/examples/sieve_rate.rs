@@ -1,8 +1,9 @@
 //! Measures the sieve's yield for one discriminant and one parameter
 //! choice (for tuning `Params::for_discriminant`):
-//!   sieve_rate D ROUNDS [PRIMES M]
+//!   sieve_rate D ROUNDS [PRIMES M [BOUND]]
 //! prints families, full and partial values found and combined relations
-//! per second of one thread.
+//! per second of one thread. The factor base reaches Bach's bound
+//! `6 log² |D|`, or BOUND when given (to try sieving past it).
 
 #![allow(
     clippy::unwrap_used,
@@ -20,7 +21,10 @@ fn main() {
     let d: Integer = args[0].parse().expect("D");
     let rounds: u64 = args[1].parse().expect("rounds");
     let l = d.significant_bits() as f64 * std::f64::consts::LN_2;
-    let bound = (6.0 * l * l) as u64;
+    let bound = args
+        .get(4)
+        .map(|b| b.parse().expect("bound"))
+        .unwrap_or((6.0 * l * l) as u64);
     let fb = FactorBase::new(&d, &primes_up_to(bound), bound, &[]);
     let mut params = Params::for_discriminant(&d, fb.len());
     if args.len() >= 4 {
