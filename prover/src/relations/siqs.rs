@@ -266,8 +266,7 @@ impl<'a> Siqs<'a> {
         let pool = split[lo..hi].to_vec();
         let large_bound = (LARGE_MULTIPLIER * pmax).min(pmax.saturating_mul(pmax));
         // log₂ of the typical |g(x)|: M √|D| / 2 to M √|D| for D < 0
-        let log_g = params.m as f64 + 0.0;
-        let log_g = log_g.log2() + d.significant_bits() as f64 / 2.0 - 0.5;
+        let log_g = (params.m as f64).log2() + d.significant_bits() as f64 / 2.0 - 0.5;
         let threshold = if *d > 0 {
             real_threshold(d, &params, large_bound)
         } else {
