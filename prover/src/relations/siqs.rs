@@ -292,6 +292,21 @@ impl<'a> Siqs<'a> {
         self.params.primes.min(self.fb.len())
     }
 
+    /// `s - 1` distinct pool primes at random (all `s` but the last factor
+    /// of an `a`), with the sum of their `log₂`.
+    fn draw(&self, rng: &mut Rng, s: usize) -> (Vec<usize>, f64) {
+        let mut chosen: Vec<usize> = Vec::with_capacity(s);
+        let mut bits = 0.0;
+        while chosen.len() + 1 < s {
+            let j = self.pool[rng.below(self.pool.len() as u64) as usize];
+            if !chosen.contains(&j) {
+                chosen.push(j);
+                bits += (self.fb.primes[j] as f64).log2();
+            }
+        }
+        (chosen, bits)
+    }
+
     /// The factor-base indices of `a` for family `k`: `s - 1` distinct
     /// primes from the pool at random, and the pool prime that brings the
     /// product closest to `2^a_bits`.
@@ -302,15 +317,7 @@ impl<'a> Siqs<'a> {
                 .wrapping_add(k.wrapping_mul(0xd1b5_4a32_d192_ed03)),
         );
         let s = (self.params.s as usize).min(self.pool.len());
-        let mut chosen: Vec<usize> = Vec::with_capacity(s);
-        let mut bits = 0.0;
-        while chosen.len() + 1 < s {
-            let j = self.pool[rng.below(self.pool.len() as u64) as usize];
-            if !chosen.contains(&j) {
-                chosen.push(j);
-                bits += (self.fb.primes[j] as f64).log2();
-            }
-        }
+        let (mut chosen, bits) = self.draw(&mut rng, s);
         let goal = self.params.a_bits as f64 - bits;
         let last = self
             .pool
@@ -490,15 +497,7 @@ impl<'a> Siqs<'a> {
         );
         let rest = self.params.a_bits as f64 - qbits;
         let s = ((rest / 11.0).round() as usize).clamp(1, self.pool.len());
-        let mut chosen: Vec<usize> = Vec::with_capacity(s);
-        let mut bits = 0.0;
-        while chosen.len() + 1 < s {
-            let j = self.pool[rng.below(self.pool.len() as u64) as usize];
-            if !chosen.contains(&j) {
-                chosen.push(j);
-                bits += (self.fb.primes[j] as f64).log2();
-            }
-        }
+        let (mut chosen, bits) = self.draw(&mut rng, s);
         let goal = rest - bits;
         let cands: Vec<usize> = self
             .pool
