@@ -49,7 +49,7 @@ enum Cmd {
         #[arg(long)]
         json: bool,
     },
-    /// Prove and verify the demo scenario (about a minute in release builds).
+    /// Prove and verify the demo scenario (a few seconds in release builds).
     #[command(after_help = EXIT_HELP)]
     Demo {
         /// An existing directory for the demo's two certificates (default:
