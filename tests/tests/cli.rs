@@ -701,9 +701,8 @@ fn help_speaks_of_both_signs() {
 }
 
 /// Item 11: the demo writes into the directory it names, nowhere else
-/// (about a minute in release builds, so not run by default).
+/// (a few seconds in release builds since the sieve).
 #[test]
-#[ignore]
 fn demo_writes_into_its_directory() {
     let Some(classcert) = bin("classcert") else {
         return;
