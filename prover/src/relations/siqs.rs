@@ -878,10 +878,6 @@ impl<'a> Siqs<'a> {
         }
         n.abs() == prod
     }
-
-    pub fn threshold(&self) -> u8 {
-        self.threshold
-    }
 }
 
 /// Limits for reading a round back: a few levels, and room for a few
@@ -1190,7 +1186,7 @@ impl<'a> SiqsSource<'a> {
 
     /// Keeps rounds in `dir` and reads back those already there; refuses a
     /// directory of another run or with a corrupt file before any work.
-    pub fn keep_rounds_in(&mut self, dir: &std::path::Path) -> Result<(), CheckpointError> {
+    fn keep_rounds_in(&mut self, dir: &std::path::Path) -> Result<(), CheckpointError> {
         let (key, what) = self.siqs.run_identity();
         let c = Checkpoint::open(dir, key, &what)?;
         self.stored = c.stored_prefix()?;
@@ -1199,7 +1195,7 @@ impl<'a> SiqsSource<'a> {
     }
 
     /// `--resume DIR`: keeps rounds in `dir`, when there is one
-    /// ([`SiqsSource::keep_rounds_in`]), and says how many it holds
+    /// (`keep_rounds_in`), and says how many it holds
     /// already.
     pub fn resume(
         &mut self,
