@@ -8,7 +8,7 @@ fn mul_mod(a: u64, b: u64, p: u64) -> u64 {
     ((a as u128 * b as u128) % p as u128) as u64
 }
 
-fn inv_mod(a: u64, p: u64) -> u64 {
+pub(crate) fn inv_mod(a: u64, p: u64) -> u64 {
     // p prime
     let mut r = 1u64;
     let mut b = a % p;
@@ -23,7 +23,7 @@ fn inv_mod(a: u64, p: u64) -> u64 {
     r
 }
 
-fn to_mod(x: i64, p: u64) -> u64 {
+pub(crate) fn to_mod(x: i64, p: u64) -> u64 {
     x.rem_euclid(p as i64) as u64
 }
 
@@ -82,8 +82,8 @@ impl RankModP {
 
 /// Montgomery arithmetic modulo an odd `p < 2^62` (P. L. Montgomery,
 /// "Modular multiplication without trial division", Math. Comp. 44 (1985)).
-struct Mont {
-    p: u64,
+pub(crate) struct Mont {
+    pub(crate) p: u64,
     /// `-p^{-1} mod 2^64`
     pinv: u64,
     /// `2^128 mod p`
@@ -91,7 +91,7 @@ struct Mont {
 }
 
 impl Mont {
-    fn new(p: u64) -> Mont {
+    pub(crate) fn new(p: u64) -> Mont {
         let mut inv: u64 = 1;
         for _ in 0..6 {
             inv = inv.wrapping_mul(2u64.wrapping_sub(p.wrapping_mul(inv)));
@@ -115,20 +115,32 @@ impl Mont {
         }
     }
 
-    fn mul(&self, a: u64, b: u64) -> u64 {
+    pub(crate) fn mul(&self, a: u64, b: u64) -> u64 {
         self.redc(a as u128 * b as u128)
     }
 
-    fn to(&self, a: u64) -> u64 {
+    pub(crate) fn to(&self, a: u64) -> u64 {
         self.mul(a, self.r2)
     }
 
-    fn from(&self, a: u64) -> u64 {
+    pub(crate) fn from(&self, a: u64) -> u64 {
         self.redc(a as u128)
     }
 }
 
-fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
+/// The largest prime below `n` (`n > 3`).
+pub(crate) fn next_prime_below(n: u64) -> u64 {
+    let mut c = (n - 1) | 1;
+    if c >= n {
+        c -= 2;
+    }
+    while Integer::from(c).is_probably_prime(30) == rug::integer::IsPrime::No {
+        c -= 2;
+    }
+    c
+}
+
+pub(crate) fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
     let n = m.len();
     let mt = Mont::new(p);
     let mut a: Vec<Vec<u64>> = m
@@ -165,7 +177,7 @@ fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
 /// Primes past which an unchanged Chinese-remainder value is taken as the
 /// determinant (each agreement has probability about `2^-61` of being a
 /// coincidence; early termination of this kind is common practice).
-const STABLE_PRIMES: usize = 2;
+pub(crate) const STABLE_PRIMES: usize = 2;
 
 /// The determinant of a square integer matrix, by Gaussian elimination
 /// modulo word primes and the Chinese remainder theorem: up to twice
