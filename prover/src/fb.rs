@@ -133,6 +133,39 @@ impl FactorBase {
     pub fn index_of(&self, p: u64) -> Option<usize> {
         self.primes.binary_search(&p).ok()
     }
+
+    /// The factor base up to `bound`, extended past it to at least `want`
+    /// prime ideals (the sieve's primes): more primes make smooth values
+    /// far likelier, and ideals above the generation bound are allowed in
+    /// a certificate as long as each is eliminated. `primes` is every prime
+    /// up to `bound` at least; more are generated when needed.
+    pub fn with_at_least(
+        d: &Integer,
+        primes: &[u64],
+        bound: u64,
+        conductor: &[u64],
+        want: usize,
+    ) -> FactorBase {
+        let mut fb = FactorBase::new(d, primes, bound, conductor);
+        if fb.len() >= want {
+            return fb;
+        }
+        // about half the primes split: π(x) ≥ 2·want well before
+        // x = 3·want·ln(3·want), doubled until it suffices
+        let w = (3 * want).max(16) as f64;
+        let mut limit = ((w * w.ln()) as u64).max(bound);
+        loop {
+            let more = classcert_verifier::math::primes_up_to(limit);
+            fb = FactorBase::new(d, &more, limit, conductor);
+            if fb.len() >= want {
+                fb.primes.truncate(want);
+                fb.bs.truncate(want);
+                fb.forms.truncate(want);
+                return fb;
+            }
+            limit = limit.saturating_mul(2);
+        }
+    }
 }
 
 #[cfg(test)]

@@ -410,7 +410,10 @@ pub(crate) struct Setup {
     pub progress: Progress,
 }
 
-pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
+/// `want` is the number of prime ideals the relation search would like in
+/// the factor base (its sieving primes); the factor base reaches the
+/// generation bound in any case.
+pub(crate) fn setup(d: &Integer, opts: &Options, want: usize) -> Result<Setup, ProveError> {
     let progress = Progress::new(opts.progress);
     let abs_d = Integer::from(d.abs_ref());
     let max_claim = maximality(d, opts, &progress)?;
@@ -444,7 +447,7 @@ pub(crate) fn setup(d: &Integer, opts: &Options) -> Result<Setup, ProveError> {
     let primes = primes_up_to(trial);
     let (conductor, d_small) = small_conductor(d, &primes);
     let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
-    let fb = FactorBase::new(d, &primes, bound, &cond_primes);
+    let fb = FactorBase::with_at_least(d, &primes, bound, &cond_primes, want);
 
     // Analytic side first: it tells the search when to stop.
     let (trace, log_h) = if opts.unconditional {

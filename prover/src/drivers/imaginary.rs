@@ -7,6 +7,7 @@
 
 use super::common::{eliminations, ELIMINATION_CHUNK, RELATION_ATTEMPTS};
 use crate::linalg::sge::{Eliminated, Sge};
+use crate::linalg::dixon::det_by_lifting;
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
 use crate::progress::Progress;
 use crate::relations::forms::FormSearch;
@@ -30,9 +31,14 @@ const SECOND_SET_ATTEMPTS: u64 = 20_000;
 /// the form search keeps the certificates it made before.
 const SIEVE_MIN_BITS: u32 = 105;
 
-/// Relations collected by the sieve before the structured elimination, in
-/// percent of the sieving primes.
-const SIEVE_SURPLUS_PERCENT: usize = 250;
+/// The sieve collects relations until they outnumber the factor-base
+/// ideals they name by this many per thousand sieving primes (and by
+/// [`SIEVE_MARGIN_MIN`] at least); a special-q relation then names each
+/// ideal left out.
+const SIEVE_MARGIN_PER_MILLE: usize = 100;
+
+/// The least margin of relations over the ideals they name.
+const SIEVE_MARGIN_MIN: usize = 20;
 
 fn use_sieve(abs_d: &Integer) -> bool {
     abs_d.significant_bits() >= SIEVE_MIN_BITS
@@ -47,7 +53,12 @@ fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
 /// The certificate body for `D < 0` (`D` already validated).
 pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let abs_d = Integer::from(d.abs_ref());
-    let mut setup = setup(d, opts)?;
+    let want = if use_sieve(&abs_d) {
+        Params::sieving_primes_for(d)
+    } else {
+        0
+    };
+    let mut setup = setup(d, opts, want)?;
     let progress = std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();
@@ -148,35 +159,48 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         }
     }
     if sieving {
-        // A fixed surplus instead of a rank test per relation (which costs
-        // k² per relation); a shortfall is made up after the structured
-        // elimination, where the dense block is small.
-        let target = rels.len() + k * SIEVE_SURPLUS_PERCENT / 100;
-        wanted.set(Some((k * SIEVE_SURPLUS_PERCENT / 100) as u64));
-        while rels.len() < target {
-            rels.push(next_relation(source)?);
-        }
-        // Ideals beyond the sieving primes that no relation names (a
-        // relation with one as its cofactor eliminates it) get a special-q
-        // elimination each.
+        // Relations until they outnumber the ideals they name by a margin
+        // (a rank test per relation would cost k² each; a shortfall is made
+        // up after the structured elimination, where the dense block is
+        // small). The largest sieving primes are rare in smooth values, so
+        // waiting for a relation to name each would take many times as
+        // long: a special-q relation names each ideal left out instead.
+        let margin = (k * SIEVE_MARGIN_PER_MILLE / 1000).max(SIEVE_MARGIN_MIN);
         let mut covered = vec![false; n];
-        for r in &rels {
+        let mut named = 0usize;
+        let mut mark = |r: &Sparse, covered: &mut Vec<bool>| {
             for &c in r.keys() {
-                covered[c] = true;
+                if let Some(slot) = covered.get_mut(c) {
+                    if !*slot {
+                        *slot = true;
+                        named += 1;
+                    }
+                }
             }
+            named
+        };
+        let mut named_now = 0;
+        for r in &rels {
+            named_now = mark(r, &mut covered);
         }
-        let missing: Vec<usize> = (k..n).filter(|&c| !covered[c]).collect();
+        while rels.len() < named_now + margin {
+            wanted.set(Some((named_now + margin) as u64));
+            let r = next_relation(source)?;
+            named_now = mark(&r, &mut covered);
+            rels.push(r);
+        }
+        let missing: Vec<usize> = (0..n).filter(|&c| !covered[c]).collect();
         progress.phase(&format!(
-            "{} of the {} ideals beyond the sieving primes are named by no relation: eliminating them",
-            missing.len(),
-            n - k
+            "{} relations name {named_now} of the {n} ideals: a special-q relation for each of the other {}",
+            rels.len(),
+            missing.len()
         ));
         for (t, chunk) in missing.chunks(ELIMINATION_CHUNK).enumerate() {
             progress.tick((t * ELIMINATION_CHUNK) as u64, Some(missing.len() as u64));
             for (&i, e) in chunk.iter().zip(source.eliminations_for(chunk, 0)) {
                 let Some(e) = e else {
                     return Err(ProveError::SearchFailed(format!(
-                        "no elimination relation found for p = {}",
+                        "no special-q relation found for p = {}",
                         fb.primes[i]
                     )));
                 };
@@ -276,12 +300,21 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         progress.say(&format!(
             "two independent sets of {kd} relations on the dense block; their determinants next"
         ));
-        let d1 = Integer::from(det_crt(&independent).abs_ref());
-        let d2 = if rank2.rank == kd {
-            Integer::from(det_crt(&second).abs_ref())
-        } else {
-            d1.clone()
+        // one determinant per core (each exact, so the thread count
+        // changes nothing)
+        let exact = |m: &[Vec<i64>]| -> Integer {
+            let det = det_by_lifting(m).unwrap_or_else(|| det_crt(m));
+            Integer::from(det.abs_ref())
         };
+        let (d1, d2) = std::thread::scope(|scope| {
+            let second_det = (rank2.rank == kd).then(|| scope.spawn(|| exact(&second)));
+            let d1 = exact(&independent);
+            let d2 = match second_det {
+                Some(h) => h.join().expect("a determinant thread panicked"),
+                None => d1.clone(),
+            };
+            (d1, d2)
+        });
         let m = d1.clone().gcd(&d2);
         progress.say(&format!(
             "dense block {kd} x {kd}; determinants of {} and {} bits, gcd {} bits",

@@ -186,7 +186,7 @@ fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
 }
 
 pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
-    let mut setup = setup(d, opts)?;
+    let mut setup = setup(d, opts, 0)?;
     let progress = std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();

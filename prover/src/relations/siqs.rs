@@ -107,29 +107,42 @@ pub struct Params {
 }
 
 impl Params {
-    /// The tuning table, by the bit length of `|D|` (`n` prime ideals in the
-    /// factor base). Measured on this project's benchmark discriminants (see
-    /// `BENCHMARKS.md`); the starting points were the factoring sieve's
-    /// usual sizes (from memory).
-    pub fn for_discriminant(d: &Integer, n: usize) -> Params {
-        let bits = d.significant_bits();
-        // (bits of |D|, sieving primes, half-width)
-        const TABLE: [(u32, usize, u32); 9] = [
+    /// `(bits of |D|, sieving primes, half-width)`: the row of the tuning
+    /// table for `|D|` of `bits` bits (`D < 0`).
+    fn row(bits: u32) -> (u32, usize, u32) {
+        const TABLE: [(u32, usize, u32); 10] = [
             (100, 400, 1 << 14),
             (133, 700, 1 << 15),
             (150, 1000, 1 << 15),
             (166, 1600, 1 << 15),
             (183, 2400, 1 << 15),
             (199, 3600, 3 << 14),
-            (232, 6000, 1 << 16),
-            (266, 9000, 1 << 16),
-            (333, 20000, 1 << 17),
+            (232, 9000, 1 << 16),
+            (250, 16000, 1 << 16),
+            (283, 24000, 1 << 16),
+            (333, 40000, 1 << 17),
         ];
-        let row = TABLE
+        *TABLE
             .iter()
             .rev()
             .find(|r| bits >= r.0)
-            .unwrap_or(&TABLE[0]);
+            .unwrap_or(&TABLE[0])
+    }
+
+    /// The prime ideals the sieve wants in the factor base for `D < 0`
+    /// (the factor base is extended past the generation bound to hold
+    /// them).
+    pub fn sieving_primes_for(d: &Integer) -> usize {
+        Params::row(d.significant_bits()).1
+    }
+
+    /// The tuning table, by the bit length of `|D|` (`n` prime ideals in the
+    /// factor base). Measured on this project's benchmark discriminants (see
+    /// `BENCHMARKS.md`); the starting points were the factoring sieve's
+    /// usual sizes (from memory).
+    pub fn for_discriminant(d: &Integer, n: usize) -> Params {
+        let bits = d.significant_bits();
+        let row = Params::row(bits);
         let primes = row.1.min(n);
         let m = row.2;
         // a ≈ √|D| / (2m) balances |D|/(4a) at the centre against a m² at
@@ -437,31 +450,43 @@ impl<'a> Siqs<'a> {
         out
     }
 
-    /// An elimination for factor-base index `i` beyond the sieving primes:
-    /// a relation with `+1` at `i` and support below `i`, from families
-    /// whose `a` contains `p_i` (special-q), tried in a fixed order. For
-    /// `D > 0` it carries its element: `(u + √D)/2`, or `(-u + √D)/2`
-    /// (the conjugate up to sign) when the vector was negated.
+    /// A relation with `+1` at factor-base index `i`, from families whose
+    /// `a` contains `p_i` (special-q), tried in a fixed order. Beyond the
+    /// sieving primes it is an elimination: its support lies below `i`.
+    /// Among the sieving primes any other support will do (it names a
+    /// column no relation of the sieve has named). For `D > 0` it carries
+    /// its element: `(u + √D)/2`, or `(-u + √D)/2` (the conjugate up to
+    /// sign) when the vector was negated.
     pub fn elimination(&self, i: usize, families: u64) -> Option<FoundRelation> {
         let mut w = self.workspace();
         let kp = self.sieving_primes();
         // (a ramified p_i works too: b ≡ 0 (mod p_i) and p_i ∤ c, so p_i
         // divides N(α) exactly once)
-        if i < kp || self.fb.primes[i] == 2 {
+        if i >= self.fb.len() || self.fb.primes[i] == 2 {
             return None;
         }
+        let below_only = i >= kp;
         let qbits = (self.fb.primes[i] as f64).log2();
         let fits = |f: &Found| {
             f.large == 1
-                && f.factors
-                    .iter()
-                    .all(|&(j, v)| (j as usize) < i || (j as usize == i && v == 1))
+                && f.factors.iter().all(|&(j, v)| {
+                    if j as usize == i {
+                        v == 1
+                    } else {
+                        !below_only || (j as usize) < i
+                    }
+                })
+                && f.factors.iter().any(|&(j, _)| j as usize == i)
         };
         for t in 0..families {
             // the special prime first: its sign is the fixed one, so a
             // ramified p_i (whose B is 0) repeats no polynomial
             let mut q = vec![i];
             q.extend(self.companions(qbits, (i as u64) << 20 | t));
+            if q[1..].contains(&i) {
+                // a sieving prime of the pool drew itself: a is not squarefree
+                continue;
+            }
             let found = self.polynomials(&q, &mut w, |out| out.iter().any(fits));
             if let Some(f) = found.iter().find(|f| fits(f)) {
                 let v = self.vector(f);
