@@ -511,6 +511,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         smith: sm.into(),
         eliminations,
         raw_relations: Some(raw_relations),
+        derived_relations: None,
     };
     let units = Units {
         steps,
