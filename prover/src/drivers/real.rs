@@ -150,11 +150,14 @@ impl Algebra {
     /// The kernel vectors over the raw relations.
     fn kernel(&mut self) -> Vec<Vector> {
         let derived = &mut self.derived;
-        self.dense
+        let kernel = self
+            .dense
             .kernel
             .iter()
             .map(|v| derived.expand(v))
-            .collect()
+            .collect();
+        derived.forget_expansions();
+        kernel
     }
 
     fn full_rank(&self) -> bool {

@@ -73,6 +73,11 @@ impl Derived {
         out
     }
 
+    /// Drops the expansions kept so far (they can be large).
+    pub fn forget_expansions(&mut self) {
+        self.memo.iter_mut().for_each(|m| *m = None);
+    }
+
     /// Expands derived relation `m` and those it rests on, without
     /// recursion: the ones not yet expanded, in increasing order (each
     /// names only earlier ones).
