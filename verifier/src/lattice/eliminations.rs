@@ -214,6 +214,13 @@ mod tests {
         let e = check_eliminations(&eliminations(terms(&[(5, -1)])), &mut known, &mut mk())
             .unwrap_err();
         assert_eq!(e.reason, Reason::CombinationMismatch);
+        // for D < 0 every relation is shown by form reduction: derived
+        // relations are refused there, with or without raw ones
+        let d23 = Integer::from(-23);
+        let cond23 = check_conductor(&[], &d23, 50).unwrap();
+        let o23 = QuadraticOrder::new(&d23, &cond23);
+        let e = check_raw_relations(&o23, &[], &None, &derived, false, &mut || {}).unwrap_err();
+        assert_eq!(e.reason, Reason::WitnessKind);
         // the derived relation with the wrong sign
         let mut known = vec![true, false, false];
         let e =
