@@ -225,3 +225,64 @@ pub fn decode_document_with(
     }
     Ok(DecodedDocument { document, id })
 }
+
+// Tests report failures by panicking (the panic-free set is the
+// verifier's rule, not the tests').
+#[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
+mod tests {
+    use super::*;
+
+    /// The stored certificate of D = 61 (`vectors/golden/`, made by the
+    /// prover; the test suite checks that it verifies): a real quadratic
+    /// order whose lattice has derived relations.
+    const PLUS_61: &[u8] = include_bytes!("../../vectors/golden/plus-61.cert");
+
+    /// The body's lattice map, to change it as a value tree.
+    fn lattice_map(v: &mut Value) -> &mut Vec<(Value, Value)> {
+        let Value::Map(top) = v else {
+            panic!("the body is a map")
+        };
+        let lattice = top
+            .iter_mut()
+            .find(|(k, _)| matches!(k, Value::Text(t) if t == "lattice"))
+            .map(|(_, l)| l)
+            .expect("a lattice");
+        let Value::Map(l) = lattice else {
+            panic!("the lattice is a map")
+        };
+        l
+    }
+
+    #[test]
+    fn derived_relations_round_trip_and_none_has_one_encoding() {
+        let decoded = decode_file(PLUS_61).unwrap();
+        let derived = &decoded.body.lattice.derived_relations;
+        assert!(derived.as_ref().is_some_and(|d| !d.is_empty()));
+        // encoding what was decoded gives the same bytes back
+        let (bytes, id) = encode_file(&decoded.body).unwrap();
+        assert_eq!(bytes, PLUS_61);
+        assert_eq!(id, decoded.id);
+
+        // without derived relations the key is absent, and Some(empty)
+        // is written the same way and read back as None
+        let mut none = decoded.body.clone();
+        none.lattice.derived_relations = None;
+        let mut empty = decoded.body.clone();
+        empty.lattice.derived_relations = Some(Vec::new());
+        let (none_bytes, _) = encode_file(&none).unwrap();
+        assert_eq!(encode_file(&empty).unwrap().0, none_bytes);
+        assert!(!none_bytes
+            .windows(b"derived-relations".len())
+            .any(|w| w == b"derived-relations"));
+        assert_eq!(decode_file(&none_bytes).unwrap().body, none);
+
+        // an empty list written by hand is refused: "none" has one encoding
+        let mut v = none.to_value();
+        lattice_map(&mut v).push((
+            Value::Text("derived-relations".into()),
+            Value::Array(Vec::new()),
+        ));
+        assert!(matches!(Body::from_value(&v), Err(DecodeError::Schema(_))));
+    }
+}

@@ -110,11 +110,13 @@ pub enum Witness {
     /// `α' = α / ∏_{e_i < 0} p_i^{-e_i}` (`P conj(P) = (p)`). Raw relations
     /// only (`D > 0`).
     Element { x: Integer, y: Integer },
-    /// The relation is `Σ c · raw_relation[j]` over `(j, c)`, indices into
-    /// the lattice's raw relations, increasing.
+    /// The relation is `Σ c · relation[j]` over `(j, c)`, indices
+    /// increasing: `j < R` names raw relation `j` of the lattice's `R` raw
+    /// relations, `j = R + m` its derived relation `m` (in a derived
+    /// relation, only earlier ones).
     Combination { terms: Vec<(u32, Integer)> },
     /// For the matrix `H` as a whole: row `i` is the combination `rows[i]`
-    /// of raw relations.
+    /// of raw and derived relations, indexed as for [`Witness::Combination`].
     Combinations { rows: Vec<Vec<(u32, Integer)>> },
 }
 
@@ -206,6 +208,11 @@ pub struct Lattice {
     /// `D > 0`: the relations with element witnesses, which every other
     /// relation combines (key absent for `D < 0`).
     pub raw_relations: Option<Vec<Relation>>,
+    /// `D > 0`: named intermediate relations, each a combination of raw
+    /// relations and earlier derived ones (derived relation `m` has index
+    /// `R + m` in combinations, `R` the number of raw relations), so that
+    /// long combinations are written once (key absent when `None`).
+    pub derived_relations: Option<Vec<Relation>>,
 }
 
 /// The Euler-product approximation of `log L(1, χ_d)`.
@@ -658,6 +665,13 @@ impl Body {
                 Value::Array(raw.iter().map(relation).collect()),
             ));
         }
+        // absent when empty too: one encoding for "none"
+        if let Some(derived) = l.derived_relations.as_ref().filter(|d| !d.is_empty()) {
+            lattice.push((
+                "derived-relations",
+                Value::Array(derived.iter().map(relation).collect()),
+            ));
+        }
         let lattice = cbor::map(lattice);
         let euler = euler_value(&self.euler);
         let mut top = vec![
@@ -1038,6 +1052,22 @@ impl Body {
                     cbor::get_array(v, "lattice.raw-relations")?
                         .iter()
                         .map(|r| get_relation(r, "raw relation"))
+                        .collect::<Result<Vec<_>, DecodeError>>()
+                })
+                .transpose()?,
+            derived_relations: l
+                .opt("derived-relations")
+                .map(|v| {
+                    let list = cbor::get_array(v, "lattice.derived-relations")?;
+                    if list.is_empty() {
+                        // "none" is the absent key: one encoding only
+                        return Err(cbor::schema(
+                            "lattice.derived-relations",
+                            "a nonempty array (the key is absent when there are none)",
+                        ));
+                    }
+                    list.iter()
+                        .map(|r| get_relation(r, "derived relation"))
                         .collect::<Result<Vec<_>, DecodeError>>()
                 })
                 .transpose()?,

@@ -330,8 +330,17 @@ pub fn text_styled(c: &Decoded, style: Style) -> String {
         b.factor_base.len(),
         b.generation_theorem
     ));
+    // D > 0: what the combinations rest on (D < 0 has neither list)
+    let relations = match (&b.lattice.raw_relations, &b.lattice.derived_relations) {
+        (None, None) => String::new(),
+        (raw, derived) => format!(
+            ", raw relations: {}, derived relations: {}",
+            raw.as_ref().map_or(0, Vec::len),
+            derived.as_ref().map_or(0, Vec::len)
+        ),
+    };
     s.push_str(&format!(
-        "  lattice        generator ideals: {}, eliminations: {}\n",
+        "  lattice        generator ideals: {}, eliminations: {}{relations}\n",
         b.lattice.generators.len(),
         b.lattice.eliminations.len()
     ));

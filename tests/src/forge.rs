@@ -645,6 +645,29 @@ fn combination_changed(b: &Body) -> Vec<u8> {
     encode(&b)
 }
 
+/// A derived relation that rests on itself: its combination names its own
+/// index, so it would "hold" whatever its entries. The first derived
+/// relation gets that witness; a certificate without derived relations
+/// gets one, stating the first elimination's relation.
+fn derived_out_of_order(b: &Body) -> Vec<u8> {
+    let mut b = b.clone();
+    let r = b.lattice.raw_relations.as_ref().map_or(0, Vec::len) as u32;
+    let own = classcert_format::Witness::Combination {
+        terms: vec![(r, Integer::from(1))],
+    };
+    match b.lattice.derived_relations.as_mut() {
+        Some(derived) => derived[0].witness = own,
+        None => {
+            let entries = b.lattice.eliminations[0].relation.entries.clone();
+            b.lattice.derived_relations = Some(vec![classcert_format::Relation {
+                entries,
+                witness: own,
+            }]);
+        }
+    }
+    encode(&b)
+}
+
 fn units_removed(b: &Body) -> Vec<u8> {
     let mut b = b.clone();
     b.units = None;
@@ -1181,6 +1204,15 @@ pub static CATALOGUE: &[Forgery] =
             false,
             "D > 0: a coefficient of an elimination's combination changed by one",
             combination_changed
+        ),
+        forgery!(
+            "real-derived-out-of-order",
+            "combination-mismatch",
+            REAL,
+            Mathematics,
+            false,
+            "D > 0: a derived relation whose combination names itself",
+            derived_out_of_order
         ),
         forgery!(
             "real-units-removed",

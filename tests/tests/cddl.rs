@@ -228,6 +228,17 @@ fn real_certificates_match_the_schema() {
             .eliminations
             .iter()
             .all(|e| matches!(e.relation.witness, Witness::Combination { .. })));
+        // derived relations: present (the prover names its pivots), never
+        // empty, each shown as a combination
+        let derived = body
+            .lattice
+            .derived_relations
+            .as_ref()
+            .expect("the prover's D > 0 certificates have derived relations");
+        assert!(!derived.is_empty(), "D = {d}: an empty derived list");
+        assert!(derived
+            .iter()
+            .all(|r| matches!(r.witness, Witness::Combination { .. })));
         assert!(body.claim.generators.iter().all(|g| g.form.is_none()));
         if d == 316 {
             assert_eq!(body.claim.class_number, 3, "h(316)");
@@ -361,6 +372,24 @@ fn damaged_real_certificates_fail_the_schema() {
         *field!(field!(field!(t, "body"), "units"), "norm") = kind;
     });
     assert_invalid("text units.norm", &out);
+
+    // Derived relations: an empty list (the key is absent when there are
+    // none), and one with a witness without its terms.
+    let out = damaged!(&real, |t| {
+        let derived = field!(field!(field!(t, "body"), "lattice"), "derived-relations");
+        derived.as_array_mut().expect("an array").clear();
+    });
+    assert_invalid("empty derived-relations", &out);
+    let out = damaged!(&real, |t| {
+        let derived = field!(field!(field!(t, "body"), "lattice"), "derived-relations");
+        let first = derived
+            .as_array_mut()
+            .expect("an array")
+            .first_mut()
+            .expect("a derived relation");
+        remove!(field!(first, "w"), "terms");
+    });
+    assert_invalid("combination witness without terms", &out);
 
     // Raw relations: an element witness without "y", and one of an unknown
     // kind.

@@ -300,7 +300,8 @@ fn random_changes_to_real_certificates_never_verify_a_false_claim() {
         });
         let raw = b.lattice.raw_relations.as_mut().unwrap();
         let units = b.units.as_mut().unwrap();
-        let what = match rng.range(0, 7) {
+        let derived = b.lattice.derived_relations.as_mut();
+        let what = match rng.range(0, 8) {
             0 => {
                 let j = rng.range(0, raw.len() as u64) as usize;
                 if let classcert_format::Witness::Element { x, y } = &mut raw[j].witness {
@@ -348,6 +349,24 @@ fn random_changes_to_real_certificates_never_verify_a_false_claim() {
             5 => {
                 units.norm = -units.norm;
                 "unit norm"
+            }
+            6 => {
+                let derived = derived.expect("this certificate has derived relations");
+                let m = rng.range(0, derived.len() as u64) as usize;
+                if rng.range(0, 2) == 0 {
+                    if let Some(e) = derived[m].entries.first_mut() {
+                        e.1 += &delta;
+                    }
+                    "derived relation entry"
+                } else {
+                    if let classcert_format::Witness::Combination { terms } =
+                        &mut derived[m].witness
+                    {
+                        let t = rng.range(0, terms.len() as u64) as usize;
+                        terms[t].1 += &delta;
+                    }
+                    "derived relation coefficient"
+                }
             }
             _ => {
                 b.claim.class_number += &delta;

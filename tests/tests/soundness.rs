@@ -167,6 +167,7 @@ forgery_tests! {
     real_h_and_r_traded => "real-h-and-r-traded",
     real_unit_norm_flipped => "real-unit-norm-flipped",
     real_combination_changed => "real-combination-changed",
+    real_derived_out_of_order => "real-derived-out-of-order",
     real_units_removed => "real-units-removed",
     real_form_reduction => "real-form-reduction",
     pocklington_base_square => "pocklington-base-square",

@@ -24,7 +24,12 @@ pub const MAX_CHECKPOINTS: usize = 64;
 pub const MAX_FACTORS: usize = 4096;
 /// Raw relations with element witnesses (`D > 0`).
 pub const MAX_RAW_RELATIONS: usize = 2_000_000;
-/// Entries touched while adding up combinations of raw relations.
+/// Derived relations (`D > 0`): combinations of raw relations and earlier
+/// derived ones, named by later combinations.
+pub const MAX_DERIVED_RELATIONS: usize = 2_000_000;
+/// Entries touched while adding up combinations of raw and derived
+/// relations (one more per term), for the derived relations, the rows of
+/// `H` and the eliminations together.
 pub const MAX_COMBINATION_WORK: u64 = 200_000_000;
 /// Steps of a unit's compact representation (about log2 of the regulator).
 pub const MAX_COMPACT_STEPS: usize = 4096;

@@ -3,7 +3,8 @@
 //! ```text
 //! order/        discriminant → conductor (trial division) → maximality
 //! ideals/       the generation statement → factor base coverage
-//! relations/    raw relations by element witnesses (D > 0)
+//! relations/    raw relations by element witnesses, then derived relations
+//!               as combinations of those before them (D > 0)
 //! lattice/      rows of H → Smith form → eliminations → the claim
 //! units/        the unit's compact representation, R* > 0 (D > 0)
 //! analytic/     Euler product or series → log h → h = h*, R = R*
@@ -149,6 +150,7 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
         &arith,
         gen.ideals(),
         &body.lattice.raw_relations,
+        &body.lattice.derived_relations,
         order.is_real(),
         &mut || progress("relations"),
     )?;

@@ -414,6 +414,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         smith: sm.into(),
         eliminations,
         raw_relations: None,
+        derived_relations: None,
     };
     Ok(setup.body(d, opts, claim, lattice, None))
 }

@@ -7,24 +7,26 @@
 //! sieving primes are then the essential block.
 //!
 //! With the sieve that block has hundreds of columns, and the structured
-//! elimination leaves 30–80 of them to the echelon form, whose rows combine
-//! a few hundred raw relations with coefficients of hundreds to thousands
-//! of bits (the entries left after the elimination are about 2^23, and each
-//! column of the echelon form multiplies the combinations by about that).
-//! On the `bench_d N real` discriminants the certificates are 0.6 MB at 25
-//! digits, 3.1 MB at 30, 5.6 MB at 35 and 23.5 MB at 40, almost all of it
-//! those rows. Shorter combinations need named intermediate steps in the
-//! certificate (`shared/design/sieving.md` §4) or a Hermite form with small
-//! multipliers; neither exists yet.
+//! elimination leaves 30–80 of them to the echelon form. Spelled out over
+//! the raw relations, the rows' combinations would fill in and their
+//! coefficients multiply (the Hermite reduction alone takes them to
+//! thousands of bits: 3.9 MB certificates at 30 digits, 24.7 MB at 40).
+//! So rows that are used again are named as the certificate's derived
+//! relations ([`Derived`], `shared/design/sieving.md` §4): every pivot of
+//! the structured elimination, every row entering the echelon form, and
+//! every pivot of the echelon form once it is reduced. Combinations name
+//! them instead of copying their expansions, and only those the
+//! certificate's combinations rest on are written out.
 //!
 //! Linear algebra is exact and keeps track of how every row combines the
-//! raw relations, because the verifier checks each derived relation as such
-//! a combination: eliminations for the large primes, an echelon form on the
+//! raw and derived relations, because the verifier checks each derived
+//! relation as such a combination: eliminations for the large primes, an echelon form on the
 //! essential block, and the rows that vanish there are units (J. Buchmann,
 //! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
 //! of their logarithms ([`crate::units::unit_gcd`]).
 
 use super::common::{eliminations, RELATION_ATTEMPTS};
+use crate::linalg::derived::Derived;
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
 use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, smith};
@@ -94,16 +96,22 @@ struct Algebra {
     dense: Echelon,
     /// Columns left to the echelon form.
     dense_cols: Vec<usize>,
+    /// The rows named on the way: every pivot of the elimination and every
+    /// row that enters the echelon form. The combinations above name them.
+    derived: Derived,
 }
 
 impl Algebra {
-    fn solve(k: usize, rows: Vec<Row>) -> Algebra {
+    /// Solves the block of `k` columns from `rows`, whose combinations name
+    /// the first `raw` relations.
+    fn solve(k: usize, raw: usize, rows: Vec<Row>) -> Algebra {
         let rows: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
+        let mut derived = Derived::new(raw);
         let Eliminated {
             sge,
-            active,
+            mut active,
             vanished,
-        } = Sge::run(k, rows);
+        } = Sge::run_with(k, rows, &mut |p| derived.name(p));
         let dense_cols = sge.remaining();
         // rows that vanish are units
         let kernel = vanished
@@ -122,6 +130,12 @@ impl Algebra {
                 }
             })
             .collect();
+        // the echelon form takes the rows with the shortest combinations
+        // first: order them so before naming makes every one a single term
+        active.sort_by_key(|r| r.combo.len());
+        for r in &mut active {
+            derived.name(r);
+        }
         let mut dense = Echelon::new(k);
         dense.kernel = kernel;
         dense.triangularise(&dense_cols, active);
@@ -129,7 +143,21 @@ impl Algebra {
             unit_pivots,
             dense,
             dense_cols,
+            derived,
         }
+    }
+
+    /// The kernel vectors over the raw relations.
+    fn kernel(&mut self) -> Vec<Vector> {
+        let derived = &mut self.derived;
+        let kernel = self
+            .dense
+            .kernel
+            .iter()
+            .map(|v| derived.expand(v))
+            .collect();
+        derived.forget_expansions();
+        kernel
     }
 
     fn full_rank(&self) -> bool {
@@ -312,7 +340,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         if sieving && !covers(&rows, k) {
             continue;
         }
-        let alg = Algebra::solve(k, rows.clone());
+        let mut alg = Algebra::solve(k, raws.len(), rows.clone());
         if !alg.full_rank() || alg.dense.kernel.is_empty() {
             continue;
         }
@@ -336,7 +364,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             let as_terms = |kv: &Vector| -> Vec<(usize, Integer)> {
                 kv.iter().map(|(i, e)| (*i, e.clone())).collect()
             };
-            let kernel = &alg.dense.kernel;
+            let kernel = &alg.kernel();
             if sieving {
                 // The kernel vectors are long and their logarithms huge
                 // multiples of R, so each step of the real gcd is costly:
@@ -389,7 +417,8 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         }
     };
     let mut ech = alg.dense;
-    ech.reduce();
+    let mut derived = alg.derived;
+    ech.reduce(&mut |p| derived.name(p));
 
     // Generators: dense columns whose pivot is > 1.
     let gens: Vec<usize> = alg
@@ -422,20 +451,28 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         .collect();
     let sm = smith(&h_g).ok_or_else(|| ProveError::SearchFailed("Smith form failed".into()))?;
     let mut eliminations = Vec::new();
-    let elimination_rows = alg
+    let elimination_rows: Vec<(usize, Row)> = alg
         .dense_cols
         .iter()
         .rev()
         .filter(|c| !gens.contains(c))
         .map(|&c| (c, pivot(c)))
-        .chain(alg.unit_pivots.iter().rev().cloned());
-    for (c, row) in elimination_rows {
+        .chain(alg.unit_pivots.iter().rev().cloned())
+        .collect();
+    // the derived relations these combinations rest on
+    let kept = derived.keep(
+        elimination_rows
+            .iter()
+            .map(|(_, r)| &r.combo)
+            .chain(h_rows.iter().map(|r| &r.combo)),
+    );
+    for (c, row) in &elimination_rows {
         eliminations.push(Elimination {
-            pivot: c as u32,
+            pivot: *c as u32,
             relation: Relation {
                 entries: to_terms(&row.v),
                 witness: Witness::Combination {
-                    terms: to_terms(&row.combo),
+                    terms: kept.terms(&row.combo),
                 },
             },
         });
@@ -506,11 +543,22 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         generators: gens.iter().map(|&g| g as u32).collect(),
         relations: h_g,
         relation_witness: Witness::Combinations {
-            rows: h_rows.iter().map(|r| to_terms(&r.combo)).collect(),
+            rows: h_rows.iter().map(|r| kept.terms(&r.combo)).collect(),
         },
         smith: sm.into(),
         eliminations,
         raw_relations: Some(raw_relations),
+        derived_relations: (!kept.rels.is_empty()).then(|| {
+            kept.rels
+                .iter()
+                .map(|(v, terms)| Relation {
+                    entries: to_terms(v),
+                    witness: Witness::Combination {
+                        terms: terms.clone(),
+                    },
+                })
+                .collect()
+        }),
     };
     let units = Units {
         steps,

@@ -1,7 +1,8 @@
 //! An integer echelon form that remembers, for every row, the combination
-//! of raw relations it stands for. The certificate for `D > 0` states each
-//! derived relation as such a combination (the verifier checks raw
-//! relations by their elements), and the rows that vanish give units.
+//! of relations it stands for (raw ones, and named rows: see
+//! [`super::derived`]). The certificate for `D > 0` states each derived
+//! relation as such a combination (the verifier checks raw relations by
+//! their elements), and the rows that vanish give units.
 
 use super::sge::PivotRow;
 use rug::ops::DivRounding;
@@ -28,8 +29,9 @@ pub fn scaled(c: &Integer, v: &Vector) -> Vector {
         .collect()
 }
 
-/// A relation on the essential block with the combination of raw
-/// relations it stands for.
+/// A relation on the essential block with the combination of raw and
+/// derived relations it stands for (indices as in the certificate: raw
+/// relations first, then derived ones).
 #[derive(Clone)]
 pub struct Row {
     pub v: Vector,
@@ -193,8 +195,12 @@ impl Echelon {
     }
 
     /// Reduces the entries right of each pivot modulo the pivots below it
-    /// (Hermite form), from the last column back.
-    pub fn reduce(&mut self) {
+    /// (Hermite form), from the last column back. Each pivot is handed to
+    /// `done` once it is reduced, before it reduces the ones above it (the
+    /// real driver names it there: reduced rows are subtracted from every
+    /// row above, so their combinations, spelled out, would multiply from
+    /// row to row).
+    pub fn reduce(&mut self, done: &mut dyn FnMut(&mut Row)) {
         let k = self.pivots.len();
         for c in (0..k).rev() {
             for j in c + 1..k {
@@ -209,6 +215,9 @@ impl Echelon {
                 if !q.is_zero() {
                     pc.sub_mul(&q, &pj);
                 }
+            }
+            if let Some(pc) = self.pivots[c].as_mut() {
+                done(pc);
             }
         }
     }

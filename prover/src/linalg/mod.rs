@@ -2,9 +2,11 @@
 //!
 //! - [`sge`]: structured Gaussian elimination with unit pivots, one routine
 //!   for both signs of `D` (the row type says whether a row carries the
-//!   combination of raw relations it stands for);
+//!   combination of relations it stands for);
 //! - [`echelon`]: an integer echelon form that keeps those combinations,
 //!   for the columns left when `D > 0` (kernel vectors are units);
+//! - [`derived`]: named intermediate relations, so that those combinations
+//!   name earlier rows instead of spelling them out (`D > 0`);
 //! - [`hnf`]: an incremental Hermite normal form over Z, kept modulo a
 //!   known multiple of the determinant (`D < 0`);
 //! - [`smith`](mod@smith): the Smith normal form with both transforms and inverses;
@@ -14,6 +16,7 @@
 //!   and to bound the Hermite form's entries;
 //! - [`matrix`]: the dense matrix type the Hermite and Smith forms share.
 
+pub mod derived;
 pub mod dixon;
 pub mod echelon;
 pub mod hnf;

@@ -14,10 +14,13 @@
 //!   [`MAX_ENTRY`] is dropped (the lattice only shrinks, and the analytic
 //!   check decides whether enough is left) and a row that vanishes says
 //!   nothing;
-//! - `D > 0`: a row with exact entries that carries the combination of raw
+//! - `D > 0`: a row with exact entries that carries the combination of
 //!   relations it stands for ([`super::echelon::Row`]), because the
 //!   certificate states every derived relation as such a combination; a
-//!   row that vanishes is a unit, so vanished rows are handed back.
+//!   row that vanishes is a unit, so vanished rows are handed back. Each
+//!   pivot row is named when it is chosen ([`Sge::run_with`],
+//!   [`super::derived`]), so the rows it is subtracted from name it
+//!   instead of copying its combination.
 
 use crate::relations::Sparse;
 use std::collections::BTreeSet;
@@ -272,6 +275,15 @@ impl<R: PivotRow> Sge<R> {
     /// entry goes first: the first row that has one, at its first such
     /// column, whatever its weight.
     pub fn run(k: usize, rows: Vec<R>) -> Eliminated<R> {
+        Self::run_with(k, rows, &mut |_| {})
+    }
+
+    /// [`Sge::run`], with `on_pivot` called on each pivot row when it is
+    /// chosen, before it is subtracted from the others. It may change what
+    /// the row carries besides its entries (the real driver names the row
+    /// there, so that the rows it is subtracted from refer to it by name),
+    /// but not the entries: the choice of pivots is the same.
+    pub fn run_with(k: usize, rows: Vec<R>, on_pivot: &mut dyn FnMut(&mut R)) -> Eliminated<R> {
         let mut vanished = Vec::new();
         let mut rows: Vec<Option<R>> = rows
             .into_iter()
@@ -297,8 +309,9 @@ impl<R: PivotRow> Sge<R> {
             pivoted: vec![false; k],
         };
         while let Some((pi, pc)) = cols.first() {
-            let prow = rows[pi].take().expect("a candidate pivot's row is live");
+            let mut prow = rows[pi].take().expect("a candidate pivot's row is live");
             cols.remove(pi, &prow);
+            on_pivot(&mut prow);
             let others: Vec<usize> = cols.rows[pc].iter().copied().collect();
             for oi in others {
                 let Some(mut r) = rows[oi].take() else {

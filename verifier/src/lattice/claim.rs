@@ -177,6 +177,7 @@ mod tests {
             },
             eliminations: vec![],
             raw_relations: None,
+            derived_relations: None,
         };
         let raw = RawOk::for_tests();
         let mut w = Witnesses::new(&raw, vec![&p2.form], &d);

@@ -130,4 +130,101 @@ mod tests {
         let e = check_eliminations(&[el(0, &[(0, 1)])], &mut known, &mut mk()).unwrap_err();
         assert_eq!(e.reason, Reason::EliminationStructure);
     }
+
+    fn relation(entries: &[(u32, i64)], witness: Witness) -> Relation {
+        Relation {
+            entries: entries
+                .iter()
+                .map(|&(i, e)| (i, Integer::from(e)))
+                .collect(),
+            witness,
+        }
+    }
+
+    fn terms(t: &[(u32, i64)]) -> Witness {
+        Witness::Combination {
+            terms: t.iter().map(|&(j, c)| (j, Integer::from(c))).collect(),
+        }
+    }
+
+    #[test]
+    fn an_elimination_may_name_a_derived_relation() {
+        use crate::ideals::quadratic::QuadraticOrder;
+        use crate::ideals::OrderArithmetic;
+        use crate::order::check_conductor;
+        use crate::relations::check_raw_relations;
+        use classcert_format::PrimeIdeal;
+        // D = 40, the order Z[sqrt 10]. Prime ideals P2 = (2, sqrt 10),
+        // P3 = (3, 1 + sqrt 10), P5 = (5, sqrt 10) (b² ≡ 40 mod 4p). Elements
+        // (x + y sqrt 40)/2 = x/2 + y sqrt 10 of norm x²/4 - 10 y² (common
+        // practice; norms and memberships worked out by hand, and the
+        // verifier's element check below confirms them):
+        //   sqrt 10:      norm -10, (sqrt 10) = P2 P5;
+        //   2 + sqrt 10:  norm -6, lies in conj(P3) (3 | (4 + 2)/2), = P2 conj(P3);
+        //   5 + sqrt 10:  norm 15, lies in conj(P3) (3 | (10 + 2)/2), = conj(P3) P5.
+        let d = Integer::from(40);
+        let cond = check_conductor(&[], &d, 50).unwrap();
+        let o = QuadraticOrder::new(&d, &cond);
+        let ideals: Vec<_> = [(2, 0), (3, 2), (5, 0)]
+            .iter()
+            .enumerate()
+            .map(|(i, &(p, b))| {
+                o.prime_ideal(i, &PrimeIdeal::QuadraticForm { p, b })
+                    .unwrap()
+            })
+            .collect();
+        let element = |x: i64, y: i64| Witness::Element {
+            x: Integer::from(x),
+            y: Integer::from(y),
+        };
+        let raw = Some(vec![
+            relation(&[(0, 1), (2, 1)], element(0, 1)),
+            relation(&[(0, 1), (1, -1)], element(4, 1)),
+            relation(&[(1, -1), (2, 1)], element(10, 1)),
+        ]);
+        // derived 0 (index 3) = raw 1 - raw 0 = P3^-1 P5^-1; derived 1
+        // (index 4) = raw 2 - derived 0 = P5^2, i.e. (5) = P5².
+        let derived = Some(vec![
+            relation(&[(1, -1), (2, -1)], terms(&[(0, -1), (1, 1)])),
+            relation(&[(2, 2)], terms(&[(2, 1), (3, -1)])),
+        ]);
+        let checked = check_raw_relations(&o, &ideals, &raw, &derived, true, &mut || {}).unwrap();
+        let forms = ideals.iter().map(|i| &i.form).collect::<Vec<_>>();
+        let mk = || Witnesses::new(&checked, forms.clone(), &d);
+        // P2 is the generator; P3 = P2 by raw 1, then P5 = P3^-1 by
+        // derived 0 negated: an elimination that names a derived relation
+        let eliminations = |last: Witness| {
+            vec![
+                Elimination {
+                    pivot: 1,
+                    relation: relation(&[(0, 1), (1, -1)], terms(&[(1, 1)])),
+                },
+                Elimination {
+                    pivot: 2,
+                    relation: relation(&[(1, 1), (2, 1)], last),
+                },
+            ]
+        };
+        let mut known = vec![true, false, false];
+        assert!(
+            check_eliminations(&eliminations(terms(&[(3, -1)])), &mut known, &mut mk()).is_ok()
+        );
+        // naming a relation beyond the last derived one (index 5)
+        let mut known = vec![true, false, false];
+        let e = check_eliminations(&eliminations(terms(&[(5, -1)])), &mut known, &mut mk())
+            .unwrap_err();
+        assert_eq!(e.reason, Reason::CombinationMismatch);
+        // for D < 0 every relation is shown by form reduction: derived
+        // relations are refused there, with or without raw ones
+        let d23 = Integer::from(-23);
+        let cond23 = check_conductor(&[], &d23, 50).unwrap();
+        let o23 = QuadraticOrder::new(&d23, &cond23);
+        let e = check_raw_relations(&o23, &[], &None, &derived, false, &mut || {}).unwrap_err();
+        assert_eq!(e.reason, Reason::WitnessKind);
+        // the derived relation with the wrong sign
+        let mut known = vec![true, false, false];
+        let e =
+            check_eliminations(&eliminations(terms(&[(3, 1)])), &mut known, &mut mk()).unwrap_err();
+        assert_eq!(e.reason, Reason::CombinationMismatch);
+    }
 }

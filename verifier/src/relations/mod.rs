@@ -6,7 +6,10 @@
 //!   principal form (reduced definite forms are unique in their class);
 //! - [`elements`]: an element `α` with `(α) = ∏ P_i^{e_i}` (raw relations,
 //!   used for `D > 0`, where reduced forms are not unique), and
-//!   [`combinations`] of those raw relations for everything derived.
+//!   [`combinations`] of those raw relations for everything derived: the
+//!   certificate's derived relations, checked in order right after the raw
+//!   ones, then the rows of `H` and the eliminations, which may name raw
+//!   and derived relations alike.
 
 pub(crate) mod combinations;
 pub(crate) mod elements;
@@ -18,21 +21,28 @@ use crate::limits::{MAX_COMBINATION_WORK, MAX_COMPOSITIONS, MAX_RAW_RELATIONS};
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, Check, Reason};
 use classcert_format::{Relation, Witness};
+use combinations::Checked;
 use forms::Budget;
 use rug::Integer;
 
-/// Token: every raw relation holds by its element witness. Empty when the
-/// order's relations are shown by form reduction instead.
+/// Token: every raw relation holds by its element witness, and every
+/// derived relation as the combination it states of those before it.
+/// Empty when the order's relations are shown by form reduction instead.
 #[derive(Debug)]
 pub(crate) struct RawOk<'a> {
-    relations: Option<&'a [Relation]>,
+    relations: Option<Checked<'a>>,
+    /// What is left of the combination budget after the derived relations.
+    work: u64,
 }
 
 impl RawOk<'_> {
     /// No raw relations (form reduction), for unit tests of later steps.
     #[cfg(test)]
     pub(crate) fn for_tests() -> RawOk<'static> {
-        RawOk { relations: None }
+        RawOk {
+            relations: None,
+            work: 0,
+        }
     }
 
     /// The registry entry element witnesses rest on, if any were used.
@@ -42,22 +52,29 @@ impl RawOk<'_> {
     }
 }
 
-/// Checks the raw relations: required for `D > 0` (`needs_elements`),
+/// Checks the raw relations, then the derived relations in order: raw
+/// relations are required for `D > 0` (`needs_elements`), and both are
 /// refused for `D < 0`, where form reduction shows every relation.
 pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
     arith: &A,
     ideals: &[A::Ideal],
     raw: &'a Option<Vec<Relation>>,
+    derived: &'a Option<Vec<Relation>>,
     needs_elements: bool,
     beat: &mut dyn FnMut(),
 ) -> Check<RawOk<'a>> {
     let raw = match (raw, needs_elements) {
-        (None, false) => return Ok(RawOk { relations: None }),
+        (None, false) if derived.is_none() => {
+            return Ok(RawOk {
+                relations: None,
+                work: 0,
+            })
+        }
         (Some(raw), true) => raw,
-        (Some(_), false) => {
+        (_, false) => {
             return reject(
                 Reason::WitnessKind,
-                "raw relations with element witnesses are for D > 0",
+                "raw and derived relations (element and combination witnesses) are for D > 0",
             )
         }
         (None, true) => {
@@ -76,8 +93,12 @@ pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
         }
         arith.check_element_relation(ideals, k, rel)?;
     }
+    let derived = derived.as_deref().unwrap_or_default();
+    let mut work = MAX_COMBINATION_WORK;
+    combinations::check_derived(raw, derived, &mut work, beat)?;
     Ok(RawOk {
-        relations: Some(raw),
+        relations: Some(Checked { raw, derived }),
+        work,
     })
 }
 
@@ -89,17 +110,17 @@ pub(crate) enum Witnesses<'a> {
         d: &'a Integer,
         budget: Budget,
     },
-    /// As combinations of checked raw relations.
-    Raw { raw: &'a [Relation], work: u64 },
+    /// As combinations of checked raw and derived relations.
+    Raw { pool: Checked<'a>, work: u64 },
 }
 
 impl<'a> Witnesses<'a> {
     /// Raw relations when there are any, form reduction otherwise.
     pub(crate) fn new(raw: &RawOk<'a>, forms: Vec<&'a Form>, d: &'a Integer) -> Self {
         match raw.relations {
-            Some(raw) => Witnesses::Raw {
-                raw,
-                work: MAX_COMBINATION_WORK,
+            Some(pool) => Witnesses::Raw {
+                pool,
+                work: raw.work,
             },
             None => Witnesses::Forms {
                 forms,
@@ -130,12 +151,9 @@ impl<'a> Witnesses<'a> {
             (Witnesses::Forms { forms, d, budget }, Witness::FormReduction) => {
                 forms::is_principal(forms, entries, d, budget)
             }
-            (Witnesses::Raw { raw, work }, Witness::Combination { terms }) => {
-                let sum = combinations::combine(raw, terms, work)?;
-                Ok(sum.len() == entries.len()
-                    && entries
-                        .iter()
-                        .all(|(i, e)| u32::try_from(*i).ok().and_then(|i| sum.get(&i)) == Some(*e)))
+            (Witnesses::Raw { pool, work }, Witness::Combination { terms }) => {
+                let sum = combinations::combine(*pool, terms, work)?;
+                Ok(combinations::equals(entries, &sum))
             }
             (Witnesses::Forms { .. }, _) => reject(
                 Reason::WitnessKind,
@@ -143,7 +161,9 @@ impl<'a> Witnesses<'a> {
             ),
             (Witnesses::Raw { .. }, _) => reject(
                 Reason::WitnessKind,
-                format!("{what}: D > 0 relations are shown as combinations of raw relations"),
+                format!(
+                    "{what}: D > 0 relations are shown as combinations of raw and derived relations"
+                ),
             ),
         }
     }
