@@ -24,7 +24,8 @@ pub trait Sink: Send + Sync {
     fn warn(&self, msg: &str);
     /// A fact about the run worth a line of its own, shown at once (unlike
     /// a phase, which may be folded into the next line), and hidden with
-    /// progress.
+    /// progress. The phase's rate is measured afresh from here on (a note
+    /// marks a change of pace, such as the end of work read back).
     fn note(&self, msg: &str) {
         self.phase(msg);
     }
@@ -129,6 +130,11 @@ impl Progress {
         if let Some(s) = self.hook.0 {
             s.warn(msg);
         }
+    }
+
+    /// The hook, for a part of the computation that reports by itself.
+    pub fn hook(&self) -> Hook {
+        self.hook
     }
 
     /// See [`Sink::note`].

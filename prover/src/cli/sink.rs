@@ -28,6 +28,10 @@ struct State {
     /// When the current phase began.
     phase_start: Instant,
     done: Option<(u64, Option<u64>)>,
+    /// The count when the rate's clock (`phase_start`) last started: 0 at
+    /// a phase, the count so far at a note (work read back from a
+    /// checkpoint before it is no part of the rate).
+    base: u64,
     changed: bool,
     last_line: Instant,
     lines: u32,
@@ -40,17 +44,17 @@ pub struct CliSink {
 }
 
 /// The count of a phase, with its rate and the time left when the total
-/// is known (`elapsed`: since the phase began).
-fn counts(done: Option<(u64, Option<u64>)>, elapsed: Duration) -> String {
+/// is known (`elapsed`: since the count was `base`).
+fn counts(done: Option<(u64, Option<u64>)>, base: u64, elapsed: Duration) -> String {
     match done {
         None => String::new(),
         Some((d, None)) => format!(" ({d})"),
         Some((d, Some(t))) => {
             let secs = elapsed.as_secs_f64();
-            if d == 0 || secs < 1.0 {
+            if d <= base || secs < 1.0 {
                 return format!(" ({d}/{t})");
             }
-            let rate = d as f64 / secs;
+            let rate = (d - base) as f64 / secs;
             let left = t.saturating_sub(d) as f64 / rate;
             format!(" ({d}/{t}, {rate:.1}/s, about {left:.0} s left)")
         }
@@ -75,6 +79,7 @@ impl CliSink {
                 phase: None,
                 phase_start: now,
                 done: None,
+                base: 0,
                 changed: false,
                 last_line: now,
                 lines: 0,
@@ -106,7 +111,7 @@ impl CliSink {
             let t = s.start.elapsed().as_secs_f64();
             eprintln!(
                 "[{t:6.1} s] {phase}{}",
-                counts(s.done, s.phase_start.elapsed())
+                counts(s.done, s.base, s.phase_start.elapsed())
             );
             s.last_line = Instant::now();
             s.changed = false;
@@ -135,6 +140,7 @@ impl Sink for CliSink {
             Mode::Lines => {
                 s.phase = Some(name.to_string());
                 s.phase_start = Instant::now();
+                s.base = 0;
                 s.done = None;
                 s.changed = true;
             }
@@ -192,9 +198,14 @@ impl Sink for CliSink {
             Mode::Lines => {
                 eprintln!("[{:6.1} s] {msg}", s.start.elapsed().as_secs_f64());
                 s.last_line = Instant::now();
+                s.base = s.done.map_or(0, |(d, _)| d);
+                s.phase_start = Instant::now();
             }
             Mode::Bars => match &s.bar {
-                Some((bar, _)) => bar.suspend(|| eprintln!("{msg}")),
+                Some((bar, _)) => {
+                    bar.suspend(|| eprintln!("{msg}"));
+                    bar.reset_eta();
+                }
                 None => eprintln!("{msg}"),
             },
         }

@@ -37,6 +37,10 @@ const SIEVE_MIN_BITS: u32 = 105;
 /// ideal left out.
 const SIEVE_MARGIN_PER_MILLE: usize = 100;
 
+/// Pivot rows of the structured elimination may be this heavy on the
+/// sieve's path (see [`Sge::run_heavier`]).
+const SIEVE_PIVOT_WEIGHT: usize = 512;
+
 /// The least margin of relations over the ideals they name.
 const SIEVE_MARGIN_MIN: usize = 20;
 
@@ -230,7 +234,12 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // from substituting them).
     rels.extend(elim.iter().flatten().cloned());
     wanted.set(None);
-    let Eliminated { sge, active, .. } = Sge::run(n, rels);
+    // the sieve's relations: heavier pivots, a smaller dense block
+    let Eliminated { sge, active, .. } = if sieving {
+        Sge::run_heavier(n, rels, SIEVE_PIVOT_WEIGHT, &mut |_| {})
+    } else {
+        Sge::run(n, rels)
+    };
     let cols = sge.remaining();
     let kd = cols.len();
     progress.say(&format!(

@@ -25,7 +25,8 @@
 use crate::relations::Sparse;
 use std::collections::BTreeSet;
 
-/// Rows heavier than this are not used as pivots (they would fill in).
+/// Rows heavier than this are not used as pivots (they would fill in),
+/// unless the caller asks for another limit ([`Sge::run_heavier`]).
 pub const MAX_PIVOT_WEIGHT: usize = 128;
 /// Entries beyond this size stop a plain row from taking part.
 pub const MAX_ENTRY: i64 = 1 << 40;
@@ -141,7 +142,9 @@ fn pivot_key(w: usize, n: usize, i: usize, c: usize) -> Key {
 struct Columns {
     /// Live rows with an entry in each column.
     rows: Vec<BTreeSet<usize>>,
-    /// `(w, i)` for the live rows of weight `w <= MAX_PIVOT_WEIGHT` with a
+    /// Rows heavier than this are no candidates.
+    max_weight: usize,
+    /// `(w, i)` for the live rows of weight `w <= max_weight` with a
     /// unit entry in each column.
     units: Vec<BTreeSet<(usize, usize)>>,
     /// Each column's best key, as it stands in `order`.
@@ -153,8 +156,9 @@ struct Columns {
 }
 
 impl Columns {
-    fn new(k: usize) -> Columns {
+    fn new(k: usize, max_weight: usize) -> Columns {
         Columns {
+            max_weight,
             rows: vec![BTreeSet::new(); k],
             units: vec![BTreeSet::new(); k],
             best: vec![None; k],
@@ -174,7 +178,7 @@ impl Columns {
     /// Row `i` becomes a candidate at its unit entries, if light enough.
     fn put_units<R: PivotRow>(&mut self, i: usize, r: &R) {
         let w = r.weight();
-        if w <= MAX_PIVOT_WEIGHT {
+        if w <= self.max_weight {
             for c in r.unit_columns() {
                 self.units[c].insert((w, i));
                 self.touch(c);
@@ -185,7 +189,7 @@ impl Columns {
     /// Undoes [`Columns::put_units`] for row `i`, as it was put.
     fn take_units<R: PivotRow>(&mut self, i: usize, r: &R) {
         let w = r.weight();
-        if w <= MAX_PIVOT_WEIGHT {
+        if w <= self.max_weight {
             for c in r.unit_columns() {
                 self.units[c].remove(&(w, i));
                 self.touch(c);
@@ -284,6 +288,19 @@ impl<R: PivotRow> Sge<R> {
     /// there, so that the rows it is subtracted from refer to it by name),
     /// but not the entries: the choice of pivots is the same.
     pub fn run_with(k: usize, rows: Vec<R>, on_pivot: &mut dyn FnMut(&mut R)) -> Eliminated<R> {
+        Self::run_heavier(k, rows, MAX_PIVOT_WEIGHT, on_pivot)
+    }
+
+    /// [`Sge::run_with`] with pivot rows of weight up to `max_weight`:
+    /// more columns leave the dense block, whose rows then have larger
+    /// entries (at 60 digits, D < 0: 512 leaves 570 columns where 128
+    /// leaves 690, and the Hermite form's cost goes as the cube).
+    pub fn run_heavier(
+        k: usize,
+        rows: Vec<R>,
+        max_weight: usize,
+        on_pivot: &mut dyn FnMut(&mut R),
+    ) -> Eliminated<R> {
         let mut vanished = Vec::new();
         let mut rows: Vec<Option<R>> = rows
             .into_iter()
@@ -296,7 +313,7 @@ impl<R: PivotRow> Sge<R> {
                 }
             })
             .collect();
-        let mut cols = Columns::new(k);
+        let mut cols = Columns::new(k, max_weight);
         for (i, r) in rows.iter().enumerate() {
             if let Some(r) = r {
                 cols.insert(i, r);

@@ -1181,6 +1181,8 @@ pub struct SiqsSource<'a> {
     pub resumed: u64,
     /// A checkpoint failure: the search stops and the driver reports it.
     error: Option<CheckpointError>,
+    /// Where to say that the rounds read back are done (on a resume).
+    notify: Option<crate::progress::Progress>,
 }
 
 impl<'a> SiqsSource<'a> {
@@ -1198,6 +1200,7 @@ impl<'a> SiqsSource<'a> {
             stored: 0,
             resumed: 0,
             error: None,
+            notify: None,
             origin: Origin {
                 discriminant: d.clone(),
                 seed,
@@ -1232,6 +1235,7 @@ impl<'a> SiqsSource<'a> {
         };
         self.keep_rounds_in(dir)?;
         if self.stored > 0 {
+            self.notify = Some(crate::progress::Progress::new(progress.hook()));
             progress.note(&format!(
                 "resuming: {} rounds of the sieve are in {} (each is checked by its norms as it is read)",
                 self.stored,
@@ -1262,6 +1266,14 @@ impl<'a> SiqsSource<'a> {
                     Ok(found) => {
                         self.resumed += 1;
                         self.collector.absorb(&self.siqs, found);
+                        if self.resumed == self.stored {
+                            if let Some(p) = self.notify.take() {
+                                p.note(&format!(
+                                    "read back the {} stored rounds ({} full and {} combined relations); any further rounds are sieved afresh",
+                                    self.stored, self.collector.fulls, self.collector.combined
+                                ));
+                            }
+                        }
                         return true;
                     }
                     Err(e) => {
