@@ -6,8 +6,8 @@
 //! when the lattice is the whole relation lattice.
 
 use super::common::{eliminations, ELIMINATION_CHUNK, RELATION_ATTEMPTS};
-use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::dixon::det_by_lifting;
+use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
 use crate::progress::Progress;
 use crate::relations::forms::FormSearch;

@@ -19,7 +19,7 @@
 //! value only as a modulus for the Hermite form, and a wrong one would
 //! fail the self-check, never pass it.
 
-use super::modp::{det_mod_p, STABLE_PRIMES, inv_mod, next_prime_below, to_mod, Mont};
+use super::modp::{det_mod_p, inv_mod, next_prime_below, to_mod, Mont, STABLE_PRIMES};
 use rug::ops::RemRounding;
 use rug::Integer;
 
@@ -247,7 +247,11 @@ pub fn det_by_lifting(m: &[Vec<i64>]) -> Option<Integer> {
         if c > half {
             c -= &cmod;
         }
-        unchanged = if c == before && cmod != qi { unchanged + 1 } else { 0 };
+        unchanged = if c == before && cmod != qi {
+            unchanged + 1
+        } else {
+            0
+        };
     }
     let det = Integer::from(&delta * &c);
     // one more prime checks it
