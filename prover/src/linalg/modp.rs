@@ -140,38 +140,96 @@ pub(crate) fn next_prime_below(n: u64) -> u64 {
     c
 }
 
+/// `det m mod p` (0 when `m` is singular modulo `p`).
 pub(crate) fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
-    let n = m.len();
-    let mt = Mont::new(p);
-    let mut a: Vec<Vec<u64>> = m
-        .iter()
-        .map(|r| r.iter().map(|&x| mt.to(to_mod(x, p))).collect())
-        .collect();
-    let mut det = mt.to(1);
-    for c in 0..n {
-        let Some(piv) = (c..n).find(|&r| a[r][c] != 0) else {
-            return 0;
-        };
-        if piv != c {
-            a.swap(piv, c);
-            det = (p - det) % p;
-        }
-        det = mt.mul(det, a[c][c]);
-        let inv = mt.to(inv_mod(mt.from(a[c][c]), p));
-        let (top, bottom) = a.split_at_mut(c + 1);
-        let pivot_row = &top[c];
-        for row in bottom.iter_mut() {
-            if row[c] == 0 {
-                continue;
+    Lu::new(m, p).map_or(0, |lu| lu.det)
+}
+
+/// `A = P·L·U` modulo `p` (entries in Montgomery form), for solving.
+pub(crate) struct Lu {
+    mt: Mont,
+    n: usize,
+    /// Row `i` of the factorisation came from row `perm[i]` of `A`.
+    perm: Vec<usize>,
+    /// `L` below the diagonal (unit diagonal), `U` on and above it.
+    a: Vec<Vec<u64>>,
+    /// Inverses of `U`'s diagonal.
+    inv_diag: Vec<u64>,
+    /// `det A mod p` (plain form).
+    pub(crate) det: u64,
+}
+
+impl Lu {
+    /// `None` when `A` is singular modulo `p`.
+    pub(crate) fn new(m: &[Vec<i64>], p: u64) -> Option<Lu> {
+        let n = m.len();
+        let mt = Mont::new(p);
+        let mut a: Vec<Vec<u64>> = m
+            .iter()
+            .map(|r| r.iter().map(|&x| mt.to(to_mod(x, p))).collect())
+            .collect();
+        let mut perm: Vec<usize> = (0..n).collect();
+        let mut det = mt.to(1);
+        let mut inv_diag = Vec::with_capacity(n);
+        for c in 0..n {
+            let piv = (c..n).find(|&r| a[r][c] != 0)?;
+            if piv != c {
+                a.swap(piv, c);
+                perm.swap(piv, c);
+                det = (p - det) % p;
             }
-            let f = mt.mul(row[c], inv);
-            for (x, &y) in row[c..].iter_mut().zip(pivot_row[c..].iter()) {
-                let t = mt.mul(f, y);
-                *x = if *x >= t { *x - t } else { *x + p - t };
+            det = mt.mul(det, a[c][c]);
+            let inv = mt.to(inv_mod(mt.from(a[c][c]), p));
+            inv_diag.push(inv);
+            let (top, bottom) = a.split_at_mut(c + 1);
+            let pivot_row = &top[c];
+            for row in bottom.iter_mut() {
+                if row[c] == 0 {
+                    continue;
+                }
+                let f = mt.mul(row[c], inv);
+                row[c] = f;
+                for (x, &y) in row[c + 1..].iter_mut().zip(pivot_row[c + 1..].iter()) {
+                    let t = mt.mul(f, y);
+                    *x = if *x >= t { *x - t } else { *x + p - t };
+                }
             }
         }
+        let det = mt.from(det);
+        Some(Lu {
+            mt,
+            n,
+            perm,
+            a,
+            inv_diag,
+            det,
+        })
     }
-    mt.from(det)
+
+    /// `A^{-1} r mod p`, plain residues in `[0, p)`.
+    pub(crate) fn solve(&self, r: &[u64]) -> Vec<u64> {
+        let (mt, p, n) = (&self.mt, self.mt.p, self.n);
+        // P L y = r: forward substitution on the permuted right-hand side
+        let mut y: Vec<u64> = self.perm.iter().map(|&i| mt.to(r[i])).collect();
+        for i in 0..n {
+            let mut acc = y[i];
+            for (j, &l) in self.a[i][..i].iter().enumerate() {
+                let t = mt.mul(l, y[j]);
+                acc = if acc >= t { acc - t } else { acc + p - t };
+            }
+            y[i] = acc;
+        }
+        // U x = y: back substitution
+        for i in (0..n).rev() {
+            let mut acc = y[i];
+            for (j, &u) in self.a[i].iter().enumerate().skip(i + 1) {
+                let t = mt.mul(u, y[j]);
+                acc = if acc >= t { acc - t } else { acc + p - t };
+            }
+            y[i] = mt.mul(acc, self.inv_diag[i]);
+        }
+        y.into_iter().map(|v| mt.from(v)).collect()
+    }
 }
 
 /// Primes past which an unchanged Chinese-remainder value is taken as the
