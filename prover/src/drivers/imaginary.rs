@@ -43,6 +43,10 @@ const SIEVE_MARGIN_PER_MILLE: usize = 300;
 /// sieve's path (see [`Sge::run_heavier`]).
 const SIEVE_PIVOT_WEIGHT: usize = 512;
 
+/// A dense block wider than this gets a warning: the Hermite form's cost
+/// grows as its cube (883 columns took about two minutes at 70 digits).
+const DENSE_WARNING: usize = 2000;
+
 /// The least margin of relations over the ideals they name.
 const SIEVE_MARGIN_MIN: usize = 20;
 
@@ -236,6 +240,10 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // from substituting them).
     rels.extend(elim.iter().flatten().cloned());
     wanted.set(None);
+    progress.phase(&format!(
+        "structured elimination of {} relations over {n} ideals",
+        rels.len()
+    ));
     // the sieve's relations: heavier pivots, a smaller dense block
     let Eliminated { sge, active, .. } = if sieving {
         Sge::run_heavier(n, rels, SIEVE_PIVOT_WEIGHT, &mut |_| {})
@@ -245,10 +253,15 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     let cols = sge.remaining();
     let kd = cols.len();
     progress.say(&format!(
-        "full rank after {} relations; {} columns left after structured elimination",
+        "{} relations from the search; {} columns left after structured elimination",
         found.get(),
         kd
     ));
+    if kd > DENSE_WARNING {
+        progress.warn(&format!(
+            "the dense block has {kd} columns: the Hermite form's cost grows as the cube of that, and at 3 577 columns (80 digits, BENCHMARKS.md) it did not finish in hours"
+        ));
+    }
     // A full-rank set first: its determinant M gives M·Z^kd inside the
     // lattice, so the Hermite form can be kept modulo M.
     let mut rank = RankModP::new(kd, (1u64 << 61) - 1);
