@@ -6,6 +6,7 @@
 //! when the lattice is the whole relation lattice.
 
 use super::common::{eliminations, ELIMINATION_CHUNK, RELATION_ATTEMPTS};
+use crate::linalg::cokernel::Characters;
 use crate::linalg::dixon::det_by_lifting;
 use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
@@ -46,6 +47,14 @@ const SIEVE_PIVOT_WEIGHT: usize = 512;
 /// A dense block wider than this gets a warning: the Hermite form's cost
 /// grows as its cube (883 columns took about two minutes at 70 digits).
 const DENSE_WARNING: usize = 2000;
+
+/// Characters of the dense block's cokernel asked for at first (more are
+/// added when they do not separate its classes).
+const CHARACTERS: usize = 4;
+
+/// Relations added at a time while the Hermite form from characters is
+/// not yet confirmed by the analytic bound.
+const CONFIRM_BATCH: usize = 20;
 
 /// The least margin of relations over the ideals they name.
 const SIEVE_MARGIN_MIN: usize = 20;
@@ -292,85 +301,126 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         }
         pending.push(dv);
     }
-    let mut hnf = if kd == 0 {
-        Hnf::new(0)
+    // The Hermite form read off characters of the cokernel of a full-rank
+    // set (`linalg/cokernel.rs`: O(n) after the solves, where insertion is
+    // O(n³)) on the sieve's path; row by row modulo a determinant gcd
+    // otherwise, or when the characters fail. Both give the Hermite form
+    // of the same lattice, which is unique.
+    let characters = if sieving && kd > 0 {
+        progress.say(&format!(
+            "dense block {kd} x {kd}: its Hermite form from characters of the cokernel"
+        ));
+        Characters::new(&independent, CHARACTERS)
     } else {
-        // A second full-rank subset from the other rows: M·Z^kd lies in the
-        // lattice for both determinants, hence for their gcd, which is
-        // usually close to the class number and keeps the entries small.
-        let mut rank2 = RankModP::new(kd, (1u64 << 61) - 31);
-        let mut second = Vec::new();
-        let mut extra = Vec::new();
-        for v in pending.iter().filter(|v| !independent.contains(v)) {
-            if rank2.add(v) {
-                second.push(v.clone());
+        None
+    };
+    let confirmed_det =
+        |det: &Integer| -> bool { Interval::int(det).ln().is_some_and(|l| l.hi < ceiling) };
+    let rows = if let Some(ch) = characters {
+        let mut others = pending;
+        loop {
+            let (rows, det) = ch.hermite(kd, &others).ok_or_else(|| {
+                ProveError::SearchFailed("the cokernel's Hermite form failed".into())
+            })?;
+            progress.say(&format!(
+                "determinant of the full-rank set {} bits; Hermite form of {} relations: {} bits",
+                ch.det().significant_bits(),
+                others.len(),
+                det.significant_bits()
+            ));
+            if confirmed_det(&det) {
+                break rows;
+            }
+            let mut added = 0;
+            while added < CONFIRM_BATCH {
+                let Some(v) = sge.reduce(next_relation(source)?) else {
+                    continue;
+                };
+                others.push(dense(&v, &cols));
+                added += 1;
             }
         }
-        // Tiny factor bases may have no fresh relations left: then d1 alone.
-        let mut tries = 0u32;
-        while rank2.rank < kd && tries < 20 * kd as u32 + 200 {
-            tries += 1;
-            let fresh = source.relations(1, SECOND_SET_ATTEMPTS).relations.pop();
-            let Some(v) = fresh.and_then(|v| sge.reduce(v.exponents)) else {
+    } else {
+        let mut hnf = if kd == 0 {
+            Hnf::new(0)
+        } else {
+            // A second full-rank subset from the other rows: M·Z^kd lies in the
+            // lattice for both determinants, hence for their gcd, which is
+            // usually close to the class number and keeps the entries small.
+            let mut rank2 = RankModP::new(kd, (1u64 << 61) - 31);
+            let mut second = Vec::new();
+            let mut extra = Vec::new();
+            for v in pending.iter().filter(|v| !independent.contains(v)) {
+                if rank2.add(v) {
+                    second.push(v.clone());
+                }
+            }
+            // Tiny factor bases may have no fresh relations left: then d1 alone.
+            let mut tries = 0u32;
+            while rank2.rank < kd && tries < 20 * kd as u32 + 200 {
+                tries += 1;
+                let fresh = source.relations(1, SECOND_SET_ATTEMPTS).relations.pop();
+                let Some(v) = fresh.and_then(|v| sge.reduce(v.exponents)) else {
+                    continue;
+                };
+                let dv = dense(&v, &cols);
+                if rank2.add(&dv) {
+                    second.push(dv.clone());
+                }
+                extra.push(dv);
+            }
+            pending.extend(extra);
+            progress.say(&format!(
+                "two independent sets of {kd} relations on the dense block; their determinants next"
+            ));
+            // one determinant per core (each exact, so the thread count
+            // changes nothing)
+            let exact = |m: &[Vec<i64>]| -> Integer {
+                let det = det_by_lifting(m).unwrap_or_else(|| det_crt(m));
+                Integer::from(det.abs_ref())
+            };
+            let (d1, d2) = std::thread::scope(|scope| {
+                let second_det = (rank2.rank == kd).then(|| scope.spawn(|| exact(&second)));
+                let d1 = exact(&independent);
+                let d2 = match second_det {
+                    Some(h) => h.join().expect("a determinant thread panicked"),
+                    None => d1.clone(),
+                };
+                (d1, d2)
+            });
+            let m = d1.clone().gcd(&d2);
+            progress.say(&format!(
+                "dense block {kd} x {kd}; determinants of {} and {} bits, gcd {} bits",
+                d1.significant_bits(),
+                d2.significant_bits(),
+                m.significant_bits()
+            ));
+            Hnf::with_modulus(kd, &m)
+        };
+        let confirmed = |h: &Hnf| -> bool {
+            match h.det() {
+                Some(det) => Interval::int(det).ln().is_some_and(|l| l.hi < ceiling),
+                None => false,
+            }
+        };
+        // Once the determinant is below the analytic ceiling the lattice is the
+        // whole relation lattice, and further rows change nothing: the Hermite
+        // form of a lattice is unique, so stopping early keeps it.
+        for v in pending {
+            if confirmed(&hnf) {
+                break;
+            }
+            hnf.insert(v.into_iter().map(Integer::from).collect());
+        }
+        while !confirmed(&hnf) {
+            let Some(v) = sge.reduce(next_relation(source)?) else {
                 continue;
             };
-            let dv = dense(&v, &cols);
-            if rank2.add(&dv) {
-                second.push(dv.clone());
-            }
-            extra.push(dv);
+            hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
         }
-        pending.extend(extra);
-        progress.say(&format!(
-            "two independent sets of {kd} relations on the dense block; their determinants next"
-        ));
-        // one determinant per core (each exact, so the thread count
-        // changes nothing)
-        let exact = |m: &[Vec<i64>]| -> Integer {
-            let det = det_by_lifting(m).unwrap_or_else(|| det_crt(m));
-            Integer::from(det.abs_ref())
-        };
-        let (d1, d2) = std::thread::scope(|scope| {
-            let second_det = (rank2.rank == kd).then(|| scope.spawn(|| exact(&second)));
-            let d1 = exact(&independent);
-            let d2 = match second_det {
-                Some(h) => h.join().expect("a determinant thread panicked"),
-                None => d1.clone(),
-            };
-            (d1, d2)
-        });
-        let m = d1.clone().gcd(&d2);
-        progress.say(&format!(
-            "dense block {kd} x {kd}; determinants of {} and {} bits, gcd {} bits",
-            d1.significant_bits(),
-            d2.significant_bits(),
-            m.significant_bits()
-        ));
-        Hnf::with_modulus(kd, &m)
+        progress.say("Hermite form confirmed by the analytic bound");
+        hnf.finish().expect("full rank")
     };
-    let confirmed = |h: &Hnf| -> bool {
-        match h.det() {
-            Some(det) => Interval::int(det).ln().is_some_and(|l| l.hi < ceiling),
-            None => false,
-        }
-    };
-    // Once the determinant is below the analytic ceiling the lattice is the
-    // whole relation lattice, and further rows change nothing: the Hermite
-    // form of a lattice is unique, so stopping early keeps it.
-    for v in pending {
-        if confirmed(&hnf) {
-            break;
-        }
-        hnf.insert(v.into_iter().map(Integer::from).collect());
-    }
-    while !confirmed(&hnf) {
-        let Some(v) = sge.reduce(next_relation(source)?) else {
-            continue;
-        };
-        hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
-    }
-    progress.say("Hermite form confirmed by the analytic bound");
-    let rows = hnf.finish().expect("full rank");
     // positions in the dense block with a pivot > 1 are the generators
     let gpos: Vec<usize> = (0..kd).filter(|&j| rows[j][j] > 1).collect();
     let gens: Vec<usize> = gpos.iter().map(|&j| cols[j]).collect();

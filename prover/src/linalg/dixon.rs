@@ -19,8 +19,9 @@
 //! value only as a modulus for the Hermite form, and a wrong one would
 //! fail the self-check, never pass it.
 
-use super::modp::{det_mod_p, inv_mod, next_prime_below, Lu, STABLE_PRIMES};
+use super::modp::{det_mod_p, inv_mod, next_prime_below, to_mod, Lu, STABLE_PRIMES};
 use rug::ops::RemRounding;
+use rug::Complete;
 use rug::Integer;
 
 /// `n/d ≡ t (mod modulus)` with `|n|, d ≤ bound` (`2·bound² < modulus`),
@@ -41,136 +42,239 @@ fn reconstruct(t: &Integer, modulus: &Integer, bound: &Integer) -> Option<Intege
     (d > 0 && d <= *bound).then_some(d)
 }
 
-/// `det m` for a square, nonsingular `m`, exactly; `None` when the method
-/// does not apply (a singular matrix, entries too large for the word
-/// arithmetic, a failed check), and the caller computes it otherwise.
-pub fn det_by_lifting(m: &[Vec<i64>]) -> Option<Integer> {
-    let n = m.len();
-    if n == 0 {
-        return Some(Integer::from(1));
-    }
-    // H ≥ Π ‖row_i‖ bounds |det A| and, for b ∈ {±1}^n, every
-    // numerator of Cramer's rule (replacing one entry of each row by ±1
-    // does not make it longer than sqrt(‖row‖² + 1))
-    let mut h = Integer::from(1);
-    let mut l1_max: i128 = 0;
-    for r in m {
-        if r.len() != n {
-            return None;
-        }
-        let s: Integer = r.iter().map(|&x| Integer::from(x) * x).sum::<Integer>() + 1u32;
-        h *= Integer::from(s.sqrt_ref()) + 1u32;
-        let l1: i128 = r.iter().map(|&x| (x as i128).abs()).sum();
-        l1_max = l1_max.max(l1);
-    }
-    let p = next_prime_below(1u64 << 62);
-    // r stays below l1_max + |b| in size: keep A·y inside i128
-    if l1_max.checked_mul(1i128 << 62)?.checked_mul(2)? > i128::MAX / 4 {
-        return None;
-    }
-    let lu = Lu::new(m, p)?;
-    // b: a fixed ±1 pattern (any b gives an exact answer)
-    let mut state: u64 = 0x9e37_79b9_7f4a_7c15;
-    let b: Vec<i128> = (0..n)
+/// A square, nonsingular integer matrix `A` made ready for p-adic solving:
+/// its LU decomposition modulo a word prime and Hadamard's bound.
+pub struct Solver<'a> {
+    m: &'a [Vec<i64>],
+    lu: Lu,
+    p: u64,
+    /// `H ≥ Π sqrt(‖row_i‖² + 1)`: bounds `|det A|` and, for `b ∈ {-1, 0, 1}^n`,
+    /// every numerator of Cramer's rule (replacing one entry of each row
+    /// by ±1 does not make it longer than that).
+    h: Integer,
+}
+
+/// A fixed pseudo-random vector of length `n` with entries in `{-1, 0, 1}`
+/// (any such `b` gives exact answers; `salt` tells several apart). Not
+/// `±1` alone: those are all the same vector modulo 2, so their classes
+/// would never see a 2-part of the cokernel.
+pub fn sign_pattern(n: usize, salt: u64) -> Vec<i128> {
+    let mut state: u64 = 0x9e37_79b9_7f4a_7c15 ^ salt.wrapping_mul(0xd1b5_4a32_d192_ed03);
+    (0..n)
         .map(|_| {
             state = state
                 .wrapping_mul(6_364_136_223_846_793_005)
                 .wrapping_add(1_442_695_040_888_963_407);
-            if state >> 63 == 1 {
-                1
-            } else {
-                -1
-            }
+            ((state >> 33) % 3) as i128 - 1
         })
-        .collect();
-    // enough p-adic digits for rational reconstruction: p^steps > 2 H²
-    let need = Integer::from(h.square_ref()) * 2u32;
-    let mut modulus = Integer::from(1);
-    let mut steps = 0usize;
-    while modulus <= need {
-        modulus *= p;
-        steps += 1;
-    }
-    let mut r = b;
-    let mut digits: Vec<Vec<u64>> = Vec::with_capacity(steps);
-    for _ in 0..steps {
-        let rm: Vec<u64> = r.iter().map(|&v| v.rem_euclid(p as i128) as u64).collect();
-        let y = lu.solve(&rm);
-        // r ← (r − A y) / p, exactly
-        for (ri, row) in r.iter_mut().zip(m) {
-            let ay: i128 = row
-                .iter()
-                .zip(&y)
-                .map(|(&a, &yv)| a as i128 * yv as i128)
-                .sum();
-            let num = *ri - ay;
-            if num.rem_euclid(p as i128) != 0 {
+        .collect()
+}
+
+impl<'a> Solver<'a> {
+    /// `None` when `m` is not square, is singular modulo the word prime,
+    /// or has rows too long for the word arithmetic of the lifting.
+    pub fn new(m: &'a [Vec<i64>]) -> Option<Solver<'a>> {
+        let n = m.len();
+        let mut h = Integer::from(1);
+        let mut l1_max: i128 = 0;
+        for r in m {
+            if r.len() != n {
                 return None;
             }
-            *ri = num / p as i128;
+            let s: Integer = r.iter().map(|&x| Integer::from(x) * x).sum::<Integer>() + 1u32;
+            h *= Integer::from(s.sqrt_ref()) + 1u32;
+            let l1: i128 = r.iter().map(|&x| (x as i128).abs()).sum();
+            l1_max = l1_max.max(l1);
         }
-        digits.push(y);
+        // r stays below l1_max + 1 in size: keep A·y inside i128
+        if l1_max.checked_mul(1i128 << 62)?.checked_mul(2)? > i128::MAX / 4 {
+            return None;
+        }
+        let p = next_prime_below(1u64 << 62);
+        let lu = Lu::new(m, p)?;
+        Some(Solver { m, lu, p, h })
     }
-    // x_j = Σ y_i p^i, then the common denominator of the x_j
+
+    /// `A x = b` (`b` with entries in `{-1, 0, 1}`): `(δ, c)` with `δ > 0` the common
+    /// denominator of `x` and `c = δ·x` integral, so `A c = δ b`. Lifting
+    /// stops at the first doubling of its digits where every entry has a
+    /// rational reconstruction and `A c ≡ δ b` modulo two further word
+    /// primes (output-sensitive early termination, common practice), and
+    /// gives up once `p^k > 2H²`, past which the true solution would have
+    /// been found. The check is modulo primes, so the answer is right with
+    /// probability about `1 - 2^-120`; the prover only uses it for hints
+    /// that the verifier checks.
+    pub fn solve(&self, b: &[i128]) -> Option<(Integer, Vec<Integer>)> {
+        let (m, p, n) = (self.m, self.p, self.m.len());
+        if b.len() != n {
+            return None;
+        }
+        let need = Integer::from(self.h.square_ref()) * 2u32;
+        let mut modulus = Integer::from(1);
+        let mut r: Vec<i128> = b.to_vec();
+        let mut digits: Vec<Vec<u64>> = Vec::new();
+        let mut next_try = 8usize;
+        loop {
+            let rm: Vec<u64> = r.iter().map(|&v| v.rem_euclid(p as i128) as u64).collect();
+            let y = self.lu.solve(&rm);
+            // r ← (r − A y) / p, exactly
+            for (ri, row) in r.iter_mut().zip(m) {
+                let ay: i128 = row
+                    .iter()
+                    .zip(&y)
+                    .map(|(&a, &yv)| a as i128 * yv as i128)
+                    .sum();
+                let num = *ri - ay;
+                if num.rem_euclid(p as i128) != 0 {
+                    return None;
+                }
+                *ri = num / p as i128;
+            }
+            digits.push(y);
+            modulus *= p;
+            let last = modulus > need;
+            if digits.len() == next_try || last {
+                next_try *= 2;
+                let bound = Integer::from((&modulus >> 1u32).complete().sqrt_ref());
+                if let Some((delta, c)) = reconstruct_all(&digits, p, &modulus, &bound) {
+                    if self.satisfies(&delta, &c, b) {
+                        return Some((delta, c));
+                    }
+                }
+                if last {
+                    return None;
+                }
+            }
+        }
+    }
+
+    /// `A c ≡ δ b` modulo two word primes other than `p`.
+    fn satisfies(&self, delta: &Integer, c: &[Integer], b: &[i128]) -> bool {
+        let mut q = self.p;
+        for _ in 0..2 {
+            q = next_prime_below(q);
+            let qi = Integer::from(q);
+            let cq: Vec<u128> = c
+                .iter()
+                .map(|x| x.clone().rem_euc(&qi).to_u64().unwrap_or(0) as u128)
+                .collect();
+            let dq = delta.clone().rem_euc(&qi).to_u64().unwrap_or(0) as u128;
+            for (row, &bi) in self.m.iter().zip(b) {
+                let mut acc: u128 = 0;
+                for (&a, &x) in row.iter().zip(&cq) {
+                    acc = (acc + to_mod(a, q) as u128 * x) % q as u128;
+                }
+                let want = dq * (bi.rem_euclid(q as i128) as u128) % q as u128;
+                if acc != want {
+                    return false;
+                }
+            }
+        }
+        true
+    }
+
+    /// `det A`, given a divisor `δ` of it (the denominator of a solve):
+    /// the cofactor `det A / δ` by the Chinese remainder theorem up to
+    /// twice its bound `H/δ`, or once it has stood for [`STABLE_PRIMES`]
+    /// more primes; one further prime checks the product.
+    pub fn det(&self, delta: &Integer) -> Option<Integer> {
+        let (m, p) = (self.m, self.p);
+        let c_bound = Integer::from(&self.h / delta) * 2u32 + 1u32;
+        let mut c = Integer::new();
+        let mut cmod = Integer::from(1);
+        let mut q = p;
+        let mut first = true;
+        let mut unchanged = 0;
+        while cmod <= c_bound && unchanged < STABLE_PRIMES {
+            let (dq, qq) = if first {
+                first = false;
+                (self.lu.det, p)
+            } else {
+                q = next_prime_below(q);
+                (det_mod_p(m, q), q)
+            };
+            let dq_delta = Integer::from(delta % qq).to_u64()?;
+            if dq_delta == 0 {
+                continue;
+            }
+            let cq = (dq as u128 * inv_mod(dq_delta, qq) as u128 % qq as u128) as u64;
+            // c ≡ current (mod cmod), c ≡ cq (mod qq)
+            let qi = Integer::from(qq);
+            let diff = (Integer::from(cq) - &c).rem_euc(&qi);
+            let inv = Integer::from(cmod.invert_ref(&qi)?);
+            let t = (diff * inv).rem_euc(&qi);
+            let before = c.clone();
+            c += Integer::from(&cmod * &t);
+            cmod *= &qi;
+            let half = Integer::from(&cmod >> 1u32);
+            if c > half {
+                c -= &cmod;
+            }
+            unchanged = if c == before && cmod != qi {
+                unchanged + 1
+            } else {
+                0
+            };
+        }
+        let det = Integer::from(delta * &c);
+        let check = next_prime_below(q);
+        let want = det_mod_p(m, check);
+        (det.clone().rem_euc(Integer::from(check)) == want).then_some(det)
+    }
+}
+
+/// The solution's entries from their p-adic digits: the common
+/// denominator `δ` and `δ·x`, each entry a fraction with numerator and
+/// denominator at most `bound` (`None` when one has none).
+fn reconstruct_all(
+    digits: &[Vec<u64>],
+    p: u64,
+    modulus: &Integer,
+    bound: &Integer,
+) -> Option<(Integer, Vec<Integer>)> {
+    let n = digits.first().map_or(0, Vec::len);
+    let half = Integer::from(modulus >> 1u32);
     let mut delta = Integer::from(1);
+    let mut c: Vec<Integer> = Vec::with_capacity(n);
     for j in 0..n {
         let mut x = Integer::new();
         for y in digits.iter().rev() {
             x *= p;
             x += y[j];
         }
-        let t = Integer::from(&x * &delta).rem_euc(&modulus);
-        let d = reconstruct(&t, &modulus, &h)?;
-        if d != 1 {
-            delta *= d;
+        let mut t = Integer::from(&x * &delta).rem_euc(modulus);
+        if t > half {
+            t -= modulus;
         }
-        if delta > h {
-            return None;
+        if Integer::from(t.abs_ref()) > *bound {
+            let d = reconstruct(&Integer::from(&x * &delta).rem_euc(modulus), modulus, bound)?;
+            delta *= &d;
+            if delta > *bound {
+                return None;
+            }
+            for e in c.iter_mut() {
+                *e *= &d;
+            }
+            t = Integer::from(&x * &delta).rem_euc(modulus);
+            if t > half {
+                t -= modulus;
+            }
         }
+        c.push(t);
     }
-    // det = δ·c with |c| ≤ H/δ: c modulo primes up to twice that bound
-    let c_bound = Integer::from(&h / &delta) * 2u32 + 1u32;
-    let mut c = Integer::new();
-    let mut cmod = Integer::from(1);
-    let mut q = p;
-    let mut first = true;
-    let mut unchanged = 0;
-    while cmod <= c_bound && unchanged < STABLE_PRIMES {
-        let (dq, qq) = if first {
-            first = false;
-            (lu.det, p)
-        } else {
-            q = next_prime_below(q);
-            (det_mod_p(m, q), q)
-        };
-        let dq_delta = Integer::from(&delta % qq).to_u64()?;
-        if dq_delta == 0 {
-            continue;
-        }
-        let cq = (dq as u128 * inv_mod(dq_delta, qq) as u128 % qq as u128) as u64;
-        // c ≡ current (mod cmod), c ≡ cq (mod qq)
-        let qi = Integer::from(qq);
-        let diff = (Integer::from(cq) - &c).rem_euc(&qi);
-        let inv = Integer::from(cmod.invert_ref(&qi)?);
-        let t = (diff * inv).rem_euc(&qi);
-        let before = c.clone();
-        c += Integer::from(&cmod * &t);
-        cmod *= &qi;
-        let half = Integer::from(&cmod >> 1u32);
-        if c > half {
-            c -= &cmod;
-        }
-        unchanged = if c == before && cmod != qi {
-            unchanged + 1
-        } else {
-            0
-        };
+    Some((delta, c))
+}
+
+/// `det m` for a square, nonsingular `m`, exactly; `None` when the method
+/// does not apply (a singular matrix, entries too large for the word
+/// arithmetic, a failed check), and the caller computes it otherwise.
+pub fn det_by_lifting(m: &[Vec<i64>]) -> Option<Integer> {
+    if m.is_empty() {
+        return Some(Integer::from(1));
     }
-    let det = Integer::from(&delta * &c);
-    // one more prime checks it
-    let check = next_prime_below(q);
-    let want = det_mod_p(m, check);
-    (det.clone().rem_euc(Integer::from(check)) == want).then_some(det)
+    let solver = Solver::new(m)?;
+    let (delta, _) = solver.solve(&sign_pattern(m.len(), 0))?;
+    solver.det(&delta)
 }
 
 #[cfg(test)]

@@ -10,12 +10,15 @@
 //! - [`hnf`]: an incremental Hermite normal form over Z, kept modulo a
 //!   known multiple of the determinant (`D < 0`);
 //! - [`smith`](mod@smith): the Smith normal form with both transforms and inverses;
+//! - [`cokernel`]: the Hermite form read off characters of the cokernel,
+//!   for dense blocks too wide for row insertion (`D < 0`);
 //! - [`dixon`]: exact determinants by p-adic lifting (a few word primes
 //!   instead of dozens);
 //! - [`modp`]: rank and determinants modulo word primes, to choose rows
 //!   and to bound the Hermite form's entries;
 //! - [`matrix`]: the dense matrix type the Hermite and Smith forms share.
 
+pub mod cokernel;
 pub mod derived;
 pub mod dixon;
 pub mod echelon;
