@@ -61,9 +61,22 @@ impl Characters {
         };
         let mut goal = t.max(1);
         while goal <= MAX_CHARACTERS {
-            while ch.chars.len() < goal {
-                let s = ch.chars.len() as u64;
-                let (delta, c) = solver.solve(&sign_pattern(n, s))?;
+            // the solves are independent: one per thread, kept in order
+            let first = ch.chars.len();
+            let solved: Vec<Option<(Integer, Vec<Integer>)>> = std::thread::scope(|scope| {
+                let handles: Vec<_> = (first..goal)
+                    .map(|s| {
+                        let solver = &solver;
+                        scope.spawn(move || solver.solve(&sign_pattern(n, s as u64)))
+                    })
+                    .collect();
+                handles
+                    .into_iter()
+                    .map(|h| h.join().ok().flatten())
+                    .collect()
+            });
+            for (s, found) in (first..goal).zip(solved) {
+                let (delta, c) = found?;
                 if s == 0 {
                     ch.det = Integer::from(solver.det(&delta)?.abs_ref());
                 }

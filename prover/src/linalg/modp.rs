@@ -146,6 +146,10 @@ pub(crate) fn det_mod_p(m: &[Vec<i64>], p: u64) -> u64 {
 }
 
 /// `A = P·L·U` modulo `p` (entries in Montgomery form), for solving.
+/// Elimination steps with at least this many entries to update are split
+/// across threads (below it, starting them costs more than it saves).
+const LU_SPLIT_WORK: usize = 1 << 18;
+
 pub(crate) struct Lu {
     mt: Mont,
     n: usize,
@@ -163,6 +167,9 @@ impl Lu {
     /// `None` when `A` is singular modulo `p`.
     pub(crate) fn new(m: &[Vec<i64>], p: u64) -> Option<Lu> {
         let n = m.len();
+        let threads = std::thread::available_parallelism()
+            .map_or(1, |t| t.get())
+            .clamp(1, 8);
         let mt = Mont::new(p);
         let mut a: Vec<Vec<u64>> = m
             .iter()
@@ -183,16 +190,31 @@ impl Lu {
             inv_diag.push(inv);
             let (top, bottom) = a.split_at_mut(c + 1);
             let pivot_row = &top[c];
-            for row in bottom.iter_mut() {
-                if row[c] == 0 {
-                    continue;
+            let eliminate = |rows: &mut [Vec<u64>]| {
+                for row in rows.iter_mut() {
+                    if row[c] == 0 {
+                        continue;
+                    }
+                    let f = mt.mul(row[c], inv);
+                    row[c] = f;
+                    for (x, &y) in row[c + 1..].iter_mut().zip(pivot_row[c + 1..].iter()) {
+                        let t = mt.mul(f, y);
+                        *x = if *x >= t { *x - t } else { *x + p - t };
+                    }
                 }
-                let f = mt.mul(row[c], inv);
-                row[c] = f;
-                for (x, &y) in row[c + 1..].iter_mut().zip(pivot_row[c + 1..].iter()) {
-                    let t = mt.mul(f, y);
-                    *x = if *x >= t { *x - t } else { *x + p - t };
-                }
+            };
+            // the rows below are independent: large blocks use every core
+            // (the same operations on the same rows, so the same result)
+            let work = bottom.len() * (n - c);
+            if threads > 1 && work >= LU_SPLIT_WORK {
+                let share = bottom.len().div_ceil(threads);
+                std::thread::scope(|scope| {
+                    for chunk in bottom.chunks_mut(share) {
+                        scope.spawn(|| eliminate(chunk));
+                    }
+                });
+            } else {
+                eliminate(bottom);
             }
         }
         let det = mt.from(det);
