@@ -435,19 +435,32 @@ pub(crate) fn setup(d: &Integer, opts: &Options, want: usize) -> Result<Setup, P
         registry::ORDER_GENERATION
     };
     let bound = registry::generation_bound(theorem, &abs_d).expect("registry bound");
-    let (x, trial) = if opts.unconditional {
+    let (mut x, mut trial) = if opts.unconditional {
         (series::terms_for(&abs_d), bound)
     } else {
         let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
         (x, bound.max(x))
     };
+    // The verifier takes factor-base primes from its own list of primes up
+    // to its trial-division bound, max(generation bound, X): a factor base
+    // extended past both raises X to its largest prime (conductor primes
+    // found up to the new bound may push the factor base a little further,
+    // hence the loop).
+    let (primes, conductor, d_small, fb) = loop {
+        let primes = primes_up_to(trial);
+        let (conductor, d_small) = small_conductor(d, &primes);
+        let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
+        let fb = FactorBase::with_at_least(d, &primes, bound, &cond_primes, want);
+        let last = fb.primes.last().copied().unwrap_or(0);
+        if opts.unconditional || last <= trial {
+            break (primes, conductor, d_small, fb);
+        }
+        x = last;
+        trial = last;
+    };
     progress.phase(&format!(
         "analytic bound (generation bound {bound}, cut-off {x})"
     ));
-    let primes = primes_up_to(trial);
-    let (conductor, d_small) = small_conductor(d, &primes);
-    let cond_primes: Vec<u64> = conductor.iter().map(|(p, _)| *p).collect();
-    let fb = FactorBase::with_at_least(d, &primes, bound, &cond_primes, want);
 
     // Analytic side first: it tells the search when to stop.
     let (trace, log_h) = if opts.unconditional {
@@ -521,5 +534,38 @@ impl Setup {
             euler: self.trace,
             units,
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A factor base extended past the generation bound and the cut-off
+    /// raises the cut-off to its largest prime: the verifier takes
+    /// factor-base primes from its list of primes up to max(bound, X), and
+    /// rejects others (`factor-base-invalid`), as an 80-digit run showed.
+    #[test]
+    fn an_extended_factor_base_raises_the_cut_off() {
+        // D = -(10^29 + 148), the benchmark discriminant of 30 digits; its
+        // generation bound gives 1 461 prime ideals (BENCHMARKS.md)
+        let d: Integer = "-100000000000000000000000000148".parse().unwrap();
+        let plain = setup(&d, &Options::default(), 0).unwrap();
+        let last = |s: &Setup| *s.fb.primes.last().unwrap();
+        assert!(
+            last(&plain)
+                <= plain.trace.x.max(
+                    registry::generation_bound(plain.theorem, &Integer::from(d.abs_ref())).unwrap()
+                )
+        );
+        let wide = setup(&d, &Options::default(), 5000).unwrap();
+        assert_eq!(wide.fb.len(), 5000);
+        assert!(last(&wide) > last(&plain));
+        assert!(
+            wide.trace.x >= last(&wide),
+            "X {} below p {}",
+            wide.trace.x,
+            last(&wide)
+        );
     }
 }

@@ -44,8 +44,8 @@ const SIEVE_MARGIN_PER_MILLE: usize = 300;
 /// sieve's path (see [`Sge::run_heavier`]).
 const SIEVE_PIVOT_WEIGHT: usize = 512;
 
-/// A dense block wider than this gets a warning: the Hermite form's cost
-/// grows as its cube (883 columns took about two minutes at 70 digits).
+/// A dense block wider than this gets a warning: the full-rank set and
+/// the LU decomposition cost the cube of its width.
 const DENSE_WARNING: usize = 2000;
 
 /// Characters of the dense block's cokernel asked for at first (more are
@@ -268,7 +268,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     ));
     if kd > DENSE_WARNING {
         progress.warn(&format!(
-            "the dense block has {kd} columns: the Hermite form's cost grows as the cube of that, and at 3 577 columns (80 digits, BENCHMARKS.md) it did not finish in hours"
+            "the dense block has {kd} columns: choosing a full-rank set of its rows and the LU decomposition behind the Hermite form take time that grows as the cube of that (at 3 306 columns, 80 digits, about 15 minutes; BENCHMARKS.md)"
         ));
     }
     // A full-rank set first: its determinant M gives M·Z^kd inside the
