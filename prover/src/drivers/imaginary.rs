@@ -63,6 +63,20 @@ fn use_sieve(abs_d: &Integer) -> bool {
     abs_d.significant_bits() >= SIEVE_MIN_BITS
 }
 
+/// Marks the ideals `rel` names in `covered`; how many were new.
+fn mark_named(rel: &Sparse, covered: &mut [bool]) -> usize {
+    let mut new = 0;
+    for &c in rel.keys() {
+        if let Some(slot) = covered.get_mut(c) {
+            if !*slot {
+                *slot = true;
+                new += 1;
+            }
+        }
+    }
+    new
+}
+
 fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
     rel.iter()
         .map(|(&i, &e)| (i as u32, Integer::from(e)))
@@ -186,26 +200,11 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         // long: a special-q relation names each ideal left out instead.
         let margin = (k * SIEVE_MARGIN_PER_MILLE / 1000).max(SIEVE_MARGIN_MIN);
         let mut covered = vec![false; n];
-        let mut named = 0usize;
-        let mut mark = |r: &Sparse, covered: &mut Vec<bool>| {
-            for &c in r.keys() {
-                if let Some(slot) = covered.get_mut(c) {
-                    if !*slot {
-                        *slot = true;
-                        named += 1;
-                    }
-                }
-            }
-            named
-        };
-        let mut named_now = 0;
-        for r in &rels {
-            named_now = mark(r, &mut covered);
-        }
+        let mut named_now: usize = rels.iter().map(|r| mark_named(r, &mut covered)).sum();
         while rels.len() < named_now + margin {
             wanted.set(Some((named_now + margin) as u64));
             let r = next_relation(source)?;
-            named_now = mark(&r, &mut covered);
+            named_now += mark_named(&r, &mut covered);
             rels.push(r);
         }
         let missing: Vec<usize> = (0..n).filter(|&c| !covered[c]).collect();
