@@ -98,15 +98,7 @@ impl Characters {
 
     /// `|image| = Π δ_s / det(I)` with `I = ⟨δ_s e_s, images of e_j⟩ ⊆ Z^t`.
     fn image_size(&self, n: usize) -> Option<Integer> {
-        let t = self.t();
-        let lcm = self
-            .chars
-            .iter()
-            .fold(Integer::from(1), |l, (d, _)| l.lcm(d));
-        let mut image = Hnf::with_modulus(t, &lcm);
-        for s in 0..t {
-            image.insert(self.unit(s));
-        }
+        let mut image = self.zero_lattice();
         for j in 0..n {
             image.insert(self.image_of_column(j));
         }
@@ -116,6 +108,20 @@ impl Characters {
 
     fn t(&self) -> usize {
         self.chars.len()
+    }
+
+    /// The lattice `⟨δ_s e_s⟩ ⊆ Z^t` (the images of zero), as a Hermite
+    /// form kept modulo `lcm δ_s`, which it contains times `Z^t`.
+    fn zero_lattice(&self) -> Hnf {
+        let lcm = self
+            .chars
+            .iter()
+            .fold(Integer::from(1), |l, (d, _)| l.lcm(d));
+        let mut h = Hnf::with_modulus(self.t(), &lcm);
+        for s in 0..self.t() {
+            h.insert(self.unit(s));
+        }
+        h
     }
 
     /// `δ_s e_s`.
@@ -148,16 +154,8 @@ impl Characters {
     /// The Hermite form of the lattice spanned by `Λ(a)` and `others`
     /// (rows on the same `n` columns), with its determinant.
     pub fn hermite(&self, n: usize, others: &[Vec<i64>]) -> Option<(Matrix, Integer)> {
-        let t = self.t();
         // M = ⟨δ_s e_s, images of the other relations⟩: the zero class
-        let lcm = self
-            .chars
-            .iter()
-            .fold(Integer::from(1), |l, (d, _)| l.lcm(d));
-        let mut m = Hnf::with_modulus(t, &lcm);
-        for s in 0..t {
-            m.insert(self.unit(s));
-        }
+        let mut m = self.zero_lattice();
         for r in others {
             m.insert(self.image(r));
         }
@@ -309,15 +307,7 @@ mod tests {
     use crate::linalg::det_crt;
     use crate::rng::Rng;
 
-    fn random(rng: &mut Rng, rows: usize, n: usize, spread: u64) -> Vec<Vec<i64>> {
-        (0..rows)
-            .map(|_| {
-                (0..n)
-                    .map(|_| rng.below(2 * spread + 1) as i64 - spread as i64)
-                    .collect()
-            })
-            .collect()
-    }
+    use crate::linalg::random_rows as random;
 
     /// The same Hermite form as row-by-row insertion (an independent
     /// computation of the same unique matrix), on random lattices with a

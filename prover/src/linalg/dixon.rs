@@ -284,13 +284,7 @@ mod tests {
     use crate::rng::Rng;
 
     fn random(rng: &mut Rng, n: usize, spread: u64) -> Vec<Vec<i64>> {
-        (0..n)
-            .map(|_| {
-                (0..n)
-                    .map(|_| rng.below(2 * spread + 1) as i64 - spread as i64)
-                    .collect()
-            })
-            .collect()
+        crate::linalg::random_rows(rng, n, n, spread)
     }
 
     /// The lifted determinant equals the one by the Chinese remainder

@@ -32,3 +32,20 @@ pub use hnf::Hnf;
 pub use matrix::{identity, mat_mul, Matrix};
 pub use modp::{det_crt, RankModP};
 pub use smith::{cyclic_generators, smith, Smith};
+
+/// `rows × n` integers drawn uniformly from `[-spread, spread]` (tests).
+#[cfg(test)]
+pub(crate) fn random_rows(
+    rng: &mut crate::rng::Rng,
+    rows: usize,
+    n: usize,
+    spread: u64,
+) -> Vec<Vec<i64>> {
+    (0..rows)
+        .map(|_| {
+            (0..n)
+                .map(|_| rng.below(2 * spread + 1) as i64 - spread as i64)
+                .collect()
+        })
+        .collect()
+}
