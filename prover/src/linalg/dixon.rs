@@ -19,7 +19,7 @@
 //! value only as a modulus for the Hermite form, and a wrong one would
 //! fail the self-check, never pass it.
 
-use super::modp::{det_mod_p, inv_mod, next_prime_below, to_mod, Lu, STABLE_PRIMES};
+use super::modp::{crt_step, det_mod_p, inv_mod, next_prime_below, to_mod, Lu, STABLE_PRIMES};
 use rug::ops::RemRounding;
 use rug::Complete;
 use rug::Integer;
@@ -199,18 +199,9 @@ impl<'a> Solver<'a> {
             }
             let cq = (dq as u128 * inv_mod(dq_delta, qq) as u128 % qq as u128) as u64;
             // c ≡ current (mod cmod), c ≡ cq (mod qq)
-            let qi = Integer::from(qq);
-            let diff = (Integer::from(cq) - &c).rem_euc(&qi);
-            let inv = Integer::from(cmod.invert_ref(&qi)?);
-            let t = (diff * inv).rem_euc(&qi);
-            let before = c.clone();
-            c += Integer::from(&cmod * &t);
-            cmod *= &qi;
-            let half = Integer::from(&cmod >> 1u32);
-            if c > half {
-                c -= &cmod;
-            }
-            unchanged = if c == before && cmod != qi {
+            let first_prime = cmod == 1;
+            let changed = crt_step(&mut c, &mut cmod, cq, qq)?;
+            unchanged = if !changed && !first_prime {
                 unchanged + 1
             } else {
                 0

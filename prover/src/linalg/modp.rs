@@ -254,6 +254,25 @@ impl Lu {
     }
 }
 
+/// One step of the Chinese remainder theorem: `value` (mod `modulus`)
+/// becomes the `x` in `(-modulus·p/2, modulus·p/2]` with `x ≡ value (mod
+/// modulus)` and `x ≡ r (mod p)`, and `modulus` becomes `modulus·p`;
+/// whether `value` changed, or `None` when `p` divides `modulus`.
+pub(crate) fn crt_step(value: &mut Integer, modulus: &mut Integer, r: u64, p: u64) -> Option<bool> {
+    let pm = Integer::from(p);
+    let diff = (Integer::from(r) - &*value).rem_euc(&pm);
+    let inv = Integer::from(modulus.invert_ref(&pm)?);
+    let t = (diff * inv).rem_euc(&pm);
+    let before = value.clone();
+    *value += Integer::from(&*modulus * &t);
+    *modulus *= &pm;
+    let half = Integer::from(&*modulus >> 1u32);
+    if *value > half {
+        *value -= &*modulus;
+    }
+    Some(*value != before)
+}
+
 /// Primes past which an unchanged Chinese-remainder value is taken as the
 /// determinant (each agreement has probability about `2^-61` of being a
 /// coincidence; early termination of this kind is common practice).
@@ -305,19 +324,8 @@ pub fn det_crt(m: &[Vec<i64>]) -> Integer {
             if unchanged >= STABLE_PRIMES {
                 break;
             }
-            // x ≡ value (mod modulus), x ≡ r (mod p), in (-modulus/2, modulus/2]
-            let pm = Integer::from(p);
-            let diff = (Integer::from(r) - &value).rem_euc(&pm);
-            let inv = Integer::from(modulus.invert_ref(&pm).expect("coprime"));
-            let t = (diff * inv).rem_euc(&pm);
-            let before = value.clone();
-            value += Integer::from(&modulus * &t);
-            modulus *= &pm;
-            let half = Integer::from(&modulus >> 1u32);
-            if value > half {
-                value -= &modulus;
-            }
-            unchanged = if value == before && done > 0 {
+            let changed = crt_step(&mut value, &mut modulus, r, p).expect("distinct primes");
+            unchanged = if !changed && done > 0 {
                 unchanged + 1
             } else {
                 0
