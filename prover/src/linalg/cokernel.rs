@@ -20,6 +20,7 @@
 //! `None` (too few characters, a failed solve).
 
 use super::dixon::{sign_pattern, Solver};
+use super::modp::Lu;
 use super::{Hnf, Matrix};
 use rug::ops::{DivRounding, RemRounding};
 use rug::{Integer, Rational};
@@ -34,6 +35,9 @@ const MORE_CHARACTERS: usize = 4;
 
 /// Characters tried at most.
 const MAX_CHARACTERS: usize = 40;
+
+/// Other relations imaged per thread between checks of the determinant.
+const IMAGE_BATCH_PER_THREAD: usize = 8;
 
 /// The characters and the image group they define.
 pub struct Characters {
@@ -50,40 +54,63 @@ impl Characters {
     /// elements), up to [`MAX_CHARACTERS`]; `None` if they never do, `a` is
     /// singular or a solve fails. A cyclic `q`-part of the cokernel escapes
     /// `t` random characters with probability about `q^-t`, so the 2-part
-    /// is what sometimes needs more. The first solve also gives `det a`
-    /// ([`Solver::det`]).
+    /// is what sometimes needs more.
+    ///
+    /// The image's size divides `|det a|` and is a multiple of every
+    /// `δ_s`; it is taken as `|det a|` once it agrees with `det a` modulo
+    /// the solver's prime, up to sign (the LU decomposition gives that
+    /// residue). Were it a proper divisor `|det a| / m` with `m ≡ ±1`
+    /// modulo a prime above `2^61`, the Hermite form read off would hold
+    /// rows outside the lattice, and the self-check would reject it; the
+    /// exact determinant by further primes ([`Solver::det`]) would cost an
+    /// elimination of the whole block for each.
     pub fn new(a: &[Vec<i64>], t: usize) -> Option<Characters> {
+        Characters::with_lu(a, None, t)
+    }
+
+    /// [`Characters::new`] with the LU decomposition of `a` modulo
+    /// [`Solver::prime`] when the caller has it already
+    /// ([`super::modp::Lu::choosing`]).
+    pub(crate) fn with_lu(a: &[Vec<i64>], lu: Option<Lu>, t: usize) -> Option<Characters> {
         let n = a.len();
-        let solver = Solver::new(a)?;
+        let solver = Solver::with_lu(a, lu)?;
+        let threads = std::thread::available_parallelism()
+            .map_or(1, |t| t.get())
+            .clamp(1, 8);
         let mut ch = Characters {
             chars: Vec::new(),
             det: Integer::new(),
         };
         let mut goal = t.max(1);
         while goal <= MAX_CHARACTERS {
-            // the solves are independent: one per thread, kept in order
+            // the solves are independent: a share of them lifted together
+            // on each thread, the answers kept in order
             let first = ch.chars.len();
+            let bs: Vec<Vec<i128>> = (first..goal).map(|s| sign_pattern(n, s as u64)).collect();
+            let share = bs.len().div_ceil(threads);
             let solved: Vec<Option<(Integer, Vec<Integer>)>> = std::thread::scope(|scope| {
-                let handles: Vec<_> = (first..goal)
-                    .map(|s| {
+                let handles: Vec<_> = bs
+                    .chunks(share)
+                    .map(|part| {
                         let solver = &solver;
-                        scope.spawn(move || solver.solve(&sign_pattern(n, s as u64)))
+                        scope.spawn(move || solver.solve_many(part))
                     })
                     .collect();
                 handles
                     .into_iter()
-                    .map(|h| h.join().ok().flatten())
+                    .flat_map(|h| h.join().unwrap_or_else(|_| vec![None; share]))
                     .collect()
             });
-            for (s, found) in (first..goal).zip(solved) {
+            for found in solved {
                 let (delta, c) = found?;
-                if s == 0 {
-                    ch.det = Integer::from(solver.det(&delta)?.abs_ref());
-                }
                 let c = c.into_iter().map(|x| x.rem_euc(&delta)).collect();
                 ch.chars.push((delta, c));
             }
-            if ch.image_size(n)? == ch.det {
+            let size = ch.image_size(n)?;
+            let (p, det_p) = solver.det_mod_prime();
+            let r = Integer::from(&size % p).to_u64()?;
+            if r == det_p || (r + det_p) % p == 0 {
+                ch.det = size;
                 return Some(ch);
             }
             goal += MORE_CHARACTERS;
@@ -143,7 +170,7 @@ impl Characters {
                 let mut acc = Integer::new();
                 for (&x, y) in r.iter().zip(c) {
                     if x != 0 {
-                        acc += y * Integer::from(x);
+                        acc += y * x;
                     }
                 }
                 acc.rem_euc(d)
@@ -151,13 +178,52 @@ impl Characters {
             .collect()
     }
 
-    /// The Hermite form of the lattice spanned by `Λ(a)` and `others`
-    /// (rows on the same `n` columns), with its determinant.
-    pub fn hermite(&self, n: usize, others: &[Vec<i64>]) -> Option<(Matrix, Integer)> {
+    /// The images of `rows`, in order, computed on up to `threads` threads.
+    fn images(&self, rows: &[Vec<i64>], threads: usize) -> Vec<Vec<Integer>> {
+        let share = rows.len().div_ceil(threads.max(1)).max(1);
+        std::thread::scope(|scope| {
+            let handles: Vec<_> = rows
+                .chunks(share)
+                .map(|part| {
+                    scope.spawn(move || part.iter().map(|r| self.image(r)).collect::<Vec<_>>())
+                })
+                .collect();
+            handles
+                .into_iter()
+                .flat_map(|h| h.join().unwrap_or_default())
+                .collect()
+        })
+    }
+
+    /// The Hermite form of the lattice spanned by `Λ(a)` and the first
+    /// rows of `others` (on the same `n` columns), its determinant and the
+    /// number of rows of `others` it took: they are taken in order, a
+    /// batch at a time, until `enough` holds for the determinant of the
+    /// lattice spanned so far (all of them if it never does). That
+    /// determinant is `|det a| · det(M) / Π δ_s`, for `M` the lattice of
+    /// images of zero below.
+    pub fn hermite(
+        &self,
+        n: usize,
+        others: &[Vec<i64>],
+        enough: &dyn Fn(&Integer) -> bool,
+    ) -> Option<(Matrix, Integer, usize)> {
+        let threads = std::thread::available_parallelism()
+            .map_or(1, |t| t.get())
+            .clamp(1, 8);
+        let prod: Integer = self.chars.iter().map(|(d, _)| d.clone()).product();
         // M = ⟨δ_s e_s, images of the other relations⟩: the zero class
         let mut m = self.zero_lattice();
-        for r in others {
-            m.insert(self.image(r));
+        let mut used = 0;
+        for batch in others.chunks(IMAGE_BATCH_PER_THREAD * threads) {
+            for v in self.images(batch, threads) {
+                m.insert(v);
+            }
+            used += batch.len();
+            let det = Integer::from(&self.det * m.det()?) / &prod;
+            if enough(&det) {
+                break;
+            }
         }
         let m_rows = m.finish()?;
         let mut basis = Basis {
@@ -218,7 +284,7 @@ impl Characters {
             }
             rows.push(r);
         }
-        Some((rows, det))
+        Some((rows, det, used))
     }
 }
 
@@ -335,11 +401,33 @@ mod tests {
             let want = h.finish().unwrap();
             let ch = Characters::new(&a, 4).expect("characters separate");
             assert_eq!(*ch.det(), Integer::from(det_crt(&a).abs_ref()));
-            let (rows, det) = ch.hermite(n, &others).unwrap();
+            let (rows, det, used) = ch.hermite(n, &others, &|_| false).unwrap();
             assert_eq!(rows, want, "round {round}");
+            assert_eq!(used, others.len());
             let d: Integer = (0..n).map(|i| want[i][i].clone()).product();
             assert_eq!(det, d);
         }
+    }
+
+    /// Told when the determinant is small enough, the form stops taking
+    /// rows, and is still the form of the whole lattice when that
+    /// determinant is the whole lattice's.
+    #[test]
+    fn stops_once_the_determinant_is_enough() {
+        let mut rng = Rng::new(8);
+        let n = 12;
+        let a = random(&mut rng, n, n, 20);
+        let others = random(&mut rng, 40, n, 20);
+        let mut h = Hnf::new(n);
+        for r in a.iter().chain(&others) {
+            h.insert(r.iter().map(|&x| Integer::from(x)).collect());
+        }
+        let want = h.finish().unwrap();
+        let whole: Integer = (0..n).map(|i| want[i][i].clone()).product();
+        let ch = Characters::new(&a, 4).expect("characters separate");
+        let (rows, det, used) = ch.hermite(n, &others, &|d| *d == whole).unwrap();
+        assert_eq!((rows, det), (want, whole));
+        assert!(used < others.len(), "took all {used} rows");
     }
 
     /// A quotient `(Z/2)^3 × …` needs at least three characters: asked for

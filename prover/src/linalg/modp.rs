@@ -49,23 +49,92 @@ impl RankModP {
 
     /// True if `v` is independent of the rows seen so far (and keeps it).
     pub fn add(&mut self, v: &[i64]) -> bool {
-        let mt = &self.mt;
-        let p = mt.p;
-        let mut w: Vec<u64> = v.iter().map(|&x| mt.to(to_mod(x, p))).collect();
+        // at full rank every row depends on the basis: reducing it to zero
+        // would cost k² operations to learn nothing
+        if self.rank == self.k {
+            return false;
+        }
+        let w = self.to_mont(v);
+        self.insert(w)
+    }
+
+    /// [`RankModP::add`] for each of `rows` in order, and the same answers:
+    /// a batch at a time is first reduced against the basis so far, its
+    /// rows split across threads (each row alone, so the thread count
+    /// changes nothing), and only then added one by one. Whether a row is
+    /// independent of those before it depends on their span alone, not on
+    /// how it is reduced. `on_batch` hears the rank after each batch.
+    pub fn add_all(&mut self, rows: &[Vec<i64>], on_batch: &mut dyn FnMut(usize)) -> Vec<bool> {
+        let threads = std::thread::available_parallelism()
+            .map_or(1, |t| t.get())
+            .clamp(1, 8);
+        let batch = RANK_BATCH_PER_THREAD * threads;
+        let mut out = Vec::with_capacity(rows.len());
+        for chunk in rows.chunks(batch) {
+            if self.rank == self.k {
+                out.resize(rows.len(), false);
+                break;
+            }
+            let mut ws: Vec<Vec<u64>> = chunk.iter().map(|v| self.to_mont(v)).collect();
+            let share = ws.len().div_ceil(threads);
+            let this = &*self;
+            std::thread::scope(|scope| {
+                for part in ws.chunks_mut(share) {
+                    scope.spawn(move || part.iter_mut().for_each(|w| this.reduce(w)));
+                }
+            });
+            for w in ws {
+                let added = self.rank < self.k && self.insert(w);
+                out.push(added);
+            }
+            on_batch(self.rank);
+        }
+        out
+    }
+
+    /// Columns without a basis row.
+    pub fn pivotless(&self) -> Vec<usize> {
+        (0..self.k).filter(|&j| self.rows[j].is_none()).collect()
+    }
+
+    fn to_mont(&self, v: &[i64]) -> Vec<u64> {
+        let (mt, p) = (&self.mt, self.mt.p);
+        v.iter().map(|&x| mt.to(to_mod(x, p))).collect()
+    }
+
+    /// `w` minus the multiples of basis rows that clear it at every pivot.
+    fn reduce(&self, w: &mut [u64]) {
+        for j in 0..self.k {
+            if w[j] != 0 {
+                if let Some(b) = &self.rows[j] {
+                    self.eliminate(w, b, j);
+                }
+            }
+        }
+    }
+
+    /// `w[c] -= w[j] b[c]` for `c ≥ j` (`b[j] = 1`, `b` zero before `j`).
+    fn eliminate(&self, w: &mut [u64], b: &[u64], j: usize) {
+        let (mt, p) = (&self.mt, self.mt.p);
+        let f = w[j];
+        for (x, &y) in w[j..].iter_mut().zip(&b[j..]) {
+            let t = mt.mul(f, y);
+            *x = if *x >= t { *x - t } else { *x + p - t };
+        }
+    }
+
+    /// Reduces `w` (Montgomery form) up to its first column without a
+    /// pivot, which it then becomes (scaled to 1 there); false if nothing
+    /// is left of it.
+    fn insert(&mut self, mut w: Vec<u64>) -> bool {
         for j in 0..self.k {
             if w[j] == 0 {
                 continue;
             }
             match &self.rows[j] {
-                Some(b) => {
-                    // b[j] = 1: w[c] -= w[j] b[c]
-                    let f = w[j];
-                    for (x, &y) in w[j..].iter_mut().zip(&b[j..]) {
-                        let t = mt.mul(f, y);
-                        *x = if *x >= t { *x - t } else { *x + p - t };
-                    }
-                }
+                Some(b) => self.eliminate(&mut w, b, j),
                 None => {
+                    let (mt, p) = (&self.mt, self.mt.p);
                     let inv = mt.to(inv_mod(mt.from(w[j]), p));
                     for x in w.iter_mut() {
                         *x = mt.mul(*x, inv);
@@ -79,6 +148,11 @@ impl RankModP {
         false
     }
 }
+
+/// Rows per thread that [`RankModP::add_all`] reduces at a time: the rows
+/// of one batch are then added one by one, at a cost that grows with the
+/// square of the batch.
+const RANK_BATCH_PER_THREAD: usize = 32;
 
 /// Montgomery arithmetic modulo an odd `p < 2^62` (P. L. Montgomery,
 /// "Modular multiplication without trial division", Math. Comp. 44 (1985)).
@@ -166,7 +240,39 @@ pub(crate) struct Lu {
 impl Lu {
     /// `None` when `A` is singular modulo `p`.
     pub(crate) fn new(m: &[Vec<i64>], p: u64) -> Option<Lu> {
-        let n = m.len();
+        let (mut lu, swaps) = Lu::eliminate(m, m.len(), p)?;
+        if swaps % 2 == 1 {
+            lu.det = (p - lu.det) % p;
+        }
+        Some(lu)
+    }
+
+    /// The decomposition of `n` rows chosen from `candidates` (each of
+    /// length `n`), found while it is computed: column by column the pivot
+    /// is the first remaining candidate with a nonzero entry there, so the
+    /// rows chosen are independent modulo `p`. The indices of the chosen
+    /// rows come with it, in the order the decomposition takes them (its
+    /// `A` is those rows in that order, and `det` is theirs); `None` when
+    /// some column has no pivot left. One elimination where picking
+    /// independent rows first and decomposing them after would take two.
+    pub(crate) fn choosing(candidates: &[Vec<i64>], n: usize, p: u64) -> Option<(Lu, Vec<usize>)> {
+        if candidates.iter().any(|r| r.len() != n) {
+            return None;
+        }
+        let (mut lu, _) = Lu::eliminate(candidates, n, p)?;
+        let chosen = std::mem::replace(&mut lu.perm, (0..n).collect());
+        Some((lu, chosen))
+    }
+
+    /// Gaussian elimination with the first nonzero pivot on the `n`
+    /// columns of `m` (at least `n` rows), keeping the first `n` rows as
+    /// they end up; `det` is the product of the pivots, and the number of
+    /// row swaps comes with it.
+    fn eliminate(m: &[Vec<i64>], n: usize, p: u64) -> Option<(Lu, usize)> {
+        let rows = m.len();
+        if rows < n {
+            return None;
+        }
         let threads = std::thread::available_parallelism()
             .map_or(1, |t| t.get())
             .clamp(1, 8);
@@ -175,15 +281,16 @@ impl Lu {
             .iter()
             .map(|r| r.iter().map(|&x| mt.to(to_mod(x, p))).collect())
             .collect();
-        let mut perm: Vec<usize> = (0..n).collect();
+        let mut perm: Vec<usize> = (0..rows).collect();
+        let mut swaps = 0;
         let mut det = mt.to(1);
         let mut inv_diag = Vec::with_capacity(n);
         for c in 0..n {
-            let piv = (c..n).find(|&r| a[r][c] != 0)?;
+            let piv = (c..rows).find(|&r| a[r][c] != 0)?;
             if piv != c {
                 a.swap(piv, c);
                 perm.swap(piv, c);
-                det = (p - det) % p;
+                swaps += 1;
             }
             det = mt.mul(det, a[c][c]);
             let inv = mt.to(inv_mod(mt.from(a[c][c]), p));
@@ -217,18 +324,76 @@ impl Lu {
                 eliminate(bottom);
             }
         }
+        a.truncate(n);
+        perm.truncate(n);
         let det = mt.from(det);
-        Some(Lu {
-            mt,
-            n,
-            perm,
-            a,
-            inv_diag,
-            det,
-        })
+        Some((
+            Lu {
+                mt,
+                n,
+                perm,
+                a,
+                inv_diag,
+                det,
+            },
+            swaps,
+        ))
+    }
+
+    /// `A^{-1} r mod p` for each of `rs`, plain residues in `[0, p)`: the
+    /// same answers as [`Lu::solve`] one at a time, with each entry of the
+    /// factors read once for all of them.
+    pub(crate) fn solve_many(&self, rs: &[Vec<u64>]) -> Vec<Vec<u64>> {
+        let (mt, p, n, t) = (&self.mt, self.mt.p, self.n, rs.len());
+        let sub = |acc: u64, l: u64, y: u64| {
+            let v = mt.mul(l, y);
+            if acc >= v {
+                acc - v
+            } else {
+                acc + p - v
+            }
+        };
+        // y[i·t + s]: entry i of the s-th vector
+        let mut y = vec![0u64; n * t];
+        for (i, &from) in self.perm.iter().enumerate() {
+            for (s, r) in rs.iter().enumerate() {
+                y[i * t + s] = mt.to(r[from]);
+            }
+        }
+        let mut acc = vec![0u64; t];
+        // P L z = r: forward substitution
+        for i in 0..n {
+            acc.copy_from_slice(&y[i * t..(i + 1) * t]);
+            for (j, &l) in self.a[i][..i].iter().enumerate() {
+                if l != 0 {
+                    for (a, &v) in acc.iter_mut().zip(&y[j * t..(j + 1) * t]) {
+                        *a = sub(*a, l, v);
+                    }
+                }
+            }
+            y[i * t..(i + 1) * t].copy_from_slice(&acc);
+        }
+        // U x = z: back substitution
+        for i in (0..n).rev() {
+            acc.copy_from_slice(&y[i * t..(i + 1) * t]);
+            for (j, &u) in self.a[i].iter().enumerate().skip(i + 1) {
+                if u != 0 {
+                    for (a, &v) in acc.iter_mut().zip(&y[j * t..(j + 1) * t]) {
+                        *a = sub(*a, u, v);
+                    }
+                }
+            }
+            for (s, &a) in acc.iter().enumerate() {
+                y[i * t + s] = mt.mul(a, self.inv_diag[i]);
+            }
+        }
+        (0..t)
+            .map(|s| (0..n).map(|i| mt.from(y[i * t + s])).collect())
+            .collect()
     }
 
     /// `A^{-1} r mod p`, plain residues in `[0, p)`.
+    #[cfg(test)]
     pub(crate) fn solve(&self, r: &[u64]) -> Vec<u64> {
         let (mt, p, n) = (&self.mt, self.mt.p, self.n);
         // P L y = r: forward substitution on the permuted right-hand side
@@ -373,6 +538,101 @@ mod tests {
         for t in 2..=4 {
             assert_eq!(residues(&m, &primes, t), one, "{t} threads");
         }
+    }
+
+    #[test]
+    fn batched_rank_picks_the_same_rows_as_one_at_a_time() {
+        // 150 rows on 40 columns: random rows, exact copies and sums of
+        // earlier rows (dependent), and runs of zeros
+        let mut state = 7u64;
+        let mut next = || {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1);
+            (state >> 33) as i64
+        };
+        let mut rows: Vec<Vec<i64>> = Vec::new();
+        for i in 0..150 {
+            let row: Vec<i64> = match i % 5 {
+                0 if i > 10 => rows[i - 3]
+                    .iter()
+                    .zip(&rows[i - 7])
+                    .map(|(a, b)| a - 2 * b)
+                    .collect(),
+                1 => vec![0; 40],
+                _ => (0..40)
+                    .map(|_| if next() % 3 == 0 { next() % 9 - 4 } else { 0 })
+                    .collect(),
+            };
+            rows.push(row);
+        }
+        let p = (1u64 << 61) - 1;
+        let mut one = RankModP::new(40, p);
+        let single: Vec<bool> = rows.iter().map(|r| one.add(r)).collect();
+        let mut all = RankModP::new(40, p);
+        assert_eq!(all.add_all(&rows, &mut |_| {}), single);
+        assert_eq!(all.rank, one.rank);
+        assert_eq!(one.rank, 40, "the test wants the full-rank stop covered");
+        // a second call continues from the basis so far
+        let mut halves = RankModP::new(40, p);
+        let mut split = halves.add_all(&rows[..37], &mut |_| {});
+        split.extend(halves.add_all(&rows[37..], &mut |_| {}));
+        assert_eq!(split, single);
+    }
+
+    #[test]
+    fn block_solves_agree_with_single_ones() {
+        let m = crate::linalg::random_rows(&mut crate::rng::Rng::new(3), 25, 25, 50);
+        let p = (1u64 << 61) - 1;
+        let lu = Lu::new(&m, p).expect("nonsingular");
+        let rs: Vec<Vec<u64>> = (0..3u64)
+            .map(|s| (0..25u64).map(|i| (i * i + s * 7919) % p).collect())
+            .collect();
+        let many = lu.solve_many(&rs);
+        for (r, x) in rs.iter().zip(&many) {
+            assert_eq!(&lu.solve(r), x);
+            // A x ≡ r (mod p)
+            for (row, &ri) in m.iter().zip(r) {
+                let ax = row.iter().zip(x).fold(0u128, |acc, (&a, &xv)| {
+                    (acc + to_mod(a, p) as u128 * xv as u128) % p as u128
+                });
+                assert_eq!(ax as u64, ri);
+            }
+        }
+    }
+
+    /// Rows picked while decomposing: independent, decomposed as chosen
+    /// (`det` theirs, and solves right), dependent rows skipped.
+    #[test]
+    fn choosing_picks_independent_rows_and_decomposes_them() {
+        let mut rng = crate::rng::Rng::new(4);
+        let n = 20;
+        let base = crate::linalg::random_rows(&mut rng, n, n, 30);
+        // a zero row, a copy and a sum of earlier rows come first
+        let mut cands = vec![vec![0i64; n], base[0].clone(), base[0].clone()];
+        cands.push(base[0].iter().zip(&base[1]).map(|(a, b)| a + b).collect());
+        cands.extend(base[1..].iter().cloned());
+        let p = (1u64 << 61) - 1;
+        let (lu, chosen) = Lu::choosing(&cands, n, p).expect("full rank");
+        assert_eq!(chosen.len(), n);
+        let mut sorted = chosen.clone();
+        sorted.sort_unstable();
+        sorted.dedup();
+        assert_eq!(sorted.len(), n, "{chosen:?}");
+        assert!(!chosen.contains(&0), "the zero row");
+        let a: Vec<Vec<i64>> = chosen.iter().map(|&i| cands[i].clone()).collect();
+        let want = det_crt(&a).rem_euc(Integer::from(p));
+        assert_eq!(Integer::from(lu.det), want);
+        let r: Vec<u64> = (0..n as u64).map(|i| i * 7 + 1).collect();
+        let x = lu.solve(&r);
+        for (row, &ri) in a.iter().zip(&r) {
+            let ax = row.iter().zip(&x).fold(0u128, |acc, (&v, &xv)| {
+                (acc + to_mod(v, p) as u128 * xv as u128) % p as u128
+            });
+            assert_eq!(ax as u64, ri);
+        }
+        // too few independent rows
+        assert!(Lu::choosing(&cands[..n], n, p).is_none());
     }
 
     #[test]

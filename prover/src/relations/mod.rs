@@ -123,6 +123,15 @@ pub trait RelationSource {
         None
     }
 
+    /// A relation with `+1` at factor-base index `ideal`, from the search's
+    /// attempts numbered `from` on, with the number of the attempt that
+    /// gave it: calls from the next number on give others. `None` when
+    /// the search has no such attempts (the trial-division searches) or
+    /// found none.
+    fn naming(&mut self, _ideal: usize, _from: u64) -> Option<(u64, FoundRelation)> {
+        None
+    }
+
     /// Eliminations for the listed factor-base indices (ascending), each
     /// within `attempts` candidates; `None` where none was found.
     fn eliminations_for(&mut self, ideals: &[usize], attempts: u64) -> Vec<Option<FoundRelation>> {

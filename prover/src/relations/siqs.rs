@@ -458,6 +458,17 @@ impl<'a> Siqs<'a> {
     /// its element: `(u + √D)/2`, or `(-u + √D)/2` (the conjugate up to
     /// sign) when the vector was negated.
     pub fn elimination(&self, i: usize, families: u64) -> Option<FoundRelation> {
+        self.elimination_from(i, 0..families).map(|(_, rel)| rel)
+    }
+
+    /// [`Siqs::elimination`] from the families numbered in `families`, and
+    /// the number of the family that gave it (a later call from the next
+    /// number on finds another relation for `i`).
+    pub fn elimination_from(
+        &self,
+        i: usize,
+        families: std::ops::Range<u64>,
+    ) -> Option<(u64, FoundRelation)> {
         let mut w = self.workspace();
         let kp = self.sieving_primes();
         // (a ramified p_i works too: b ≡ 0 (mod p_i) and p_i ∤ c, so p_i
@@ -478,7 +489,7 @@ impl<'a> Siqs<'a> {
                 })
                 && f.factors.iter().any(|&(j, _)| j as usize == i)
         };
-        for t in 0..families {
+        for t in families {
             // the special prime first: its sign is the fixed one, so a
             // ramified p_i (whose B is 0) repeats no polynomial
             let mut q = vec![i];
@@ -505,7 +516,7 @@ impl<'a> Siqs<'a> {
                 });
                 let rel = FoundRelation { exponents, element };
                 debug_assert!(!self.real || self.element_holds(&rel), "{rel:?}");
-                return Some(rel);
+                return Some((t, rel));
             }
         }
         None
@@ -1336,6 +1347,11 @@ impl RelationSource for SiqsSource<'_> {
     fn eliminations_for(&mut self, ideals: &[usize], _attempts: u64) -> Vec<Option<FoundRelation>> {
         self.siqs
             .eliminations_for(ideals, ELIMINATION_FAMILIES, self.threads)
+    }
+
+    fn naming(&mut self, ideal: usize, from: u64) -> Option<(u64, FoundRelation)> {
+        self.siqs
+            .elimination_from(ideal, from..from + ELIMINATION_FAMILIES)
     }
 }
 
