@@ -15,7 +15,8 @@ pub type Vector = BTreeMap<usize, Integer>;
 pub fn axpy(dst: &mut Vector, c: &Integer, src: &Vector) {
     for (i, e) in src {
         let t = dst.entry(*i).or_default();
-        *t += Integer::from(c * e);
+        // one multiply-add in place, no temporary
+        *t += c * e;
         if t.is_zero() {
             dst.remove(i);
         }
