@@ -29,7 +29,7 @@ use super::common::{eliminations, RELATION_ATTEMPTS};
 use crate::linalg::derived::Derived;
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
 use crate::linalg::sge::{Eliminated, Sge};
-use crate::linalg::{cyclic_generators, smith};
+use crate::linalg::{cyclic_generators, smith, tracked};
 use crate::progress::Progress;
 use crate::relations::elements::ElementSearch;
 use crate::relations::siqs::{Params, SiqsSource};
@@ -112,11 +112,15 @@ impl Algebra {
     fn solve(k: usize, raw: usize, rows: Vec<Row>) -> Algebra {
         let rows: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
         let mut derived = Derived::new(raw);
+        // on word-size rows when the entries allow (the same result)
         let Eliminated {
             sge,
             mut active,
             vanished,
-        } = Sge::run_with(k, rows, &mut |p| derived.name(p));
+        } = match tracked::eliminate(k, &rows, &mut derived) {
+            Some(e) => e,
+            None => Sge::run_with(k, rows, &mut |p| derived.name(p)),
+        };
         let dense_cols = sge.remaining();
         // rows that vanish are units
         let kernel = vanished
