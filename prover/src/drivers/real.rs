@@ -380,11 +380,12 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 // multiples of R, so each step of the real gcd is costly:
                 // the cheapest first, one at a time, until R* is confirmed
                 // (two or three usually do). The rows that vanished come
-                // first: the spare rows' units, reduced against an echelon
-                // form whose quotients multiply, cost thousands of times
-                // more (at 30 and 40 digits every one of them more than
-                // any vanished row, which are at least 8 in a block of
-                // full rank), and are reduced only if those do not do.
+                // first (the echelon form's trial alone leaves 8 when the
+                // block has full rank): the spare rows' units, reduced
+                // against an echelon form whose quotients multiply, have
+                // 30 to 45 times their coefficient bits at 30 and 40
+                // digits, every one of them, and are reduced only if the
+                // vanished rows do not do.
                 let vanished = alg.dense.kernel.len();
                 let mut offered = 0;
                 for range in [0..vanished, vanished..alg.kernel_len()] {
