@@ -29,7 +29,7 @@ use super::common::{eliminations, RELATION_ATTEMPTS};
 use crate::linalg::derived::Derived;
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
 use crate::linalg::sge::{Eliminated, Sge};
-use crate::linalg::{cyclic_generators, smith};
+use crate::linalg::{cyclic_generators, smith, tracked};
 use crate::progress::Progress;
 use crate::relations::elements::ElementSearch;
 use crate::relations::siqs::{Params, SiqsSource};
@@ -99,6 +99,11 @@ struct Algebra {
     /// The rows named on the way: every pivot of the elimination and every
     /// row that enters the echelon form. The combinations above name them.
     derived: Derived,
+    /// Rows of the echelon form's lattice that it was not built from: each
+    /// gives a kernel vector once reduced ([`Echelon::unit`]), after those
+    /// in `dense.kernel`. They are reduced only when asked for (their
+    /// combinations are long, with coefficients of thousands of bits).
+    spare: Vec<Row>,
 }
 
 impl Algebra {
@@ -107,11 +112,15 @@ impl Algebra {
     fn solve(k: usize, raw: usize, rows: Vec<Row>) -> Algebra {
         let rows: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
         let mut derived = Derived::new(raw);
+        // on word-size rows when the entries allow (the same result)
         let Eliminated {
             sge,
             mut active,
             vanished,
-        } = Sge::run_with(k, rows, &mut |p| derived.name(p));
+        } = match tracked::eliminate(k, &rows, &mut derived) {
+            Some(e) => e,
+            None => Sge::run_with(k, rows, &mut |p| derived.name(p)),
+        };
         let dense_cols = sge.remaining();
         // rows that vanish are units
         let kernel = vanished
@@ -138,26 +147,50 @@ impl Algebra {
         }
         let mut dense = Echelon::new(k);
         dense.kernel = kernel;
-        dense.triangularise(&dense_cols, active);
+        let spare = dense.triangularise(&dense_cols, active);
         Algebra {
             unit_pivots,
             dense,
             dense_cols,
             derived,
+            spare,
         }
     }
 
-    /// The kernel vectors over the raw relations.
-    fn kernel(&mut self) -> Vec<Vector> {
-        let derived = &mut self.derived;
-        let kernel = self
-            .dense
-            .kernel
-            .iter()
-            .map(|v| derived.expand(v))
+    /// The number of kernel vectors: rows that vanished, then the spare rows.
+    fn kernel_len(&self) -> usize {
+        self.dense.kernel.len() + self.spare.len()
+    }
+
+    /// Kernel vector `j` over the raw relations. The expansions of derived
+    /// relations are kept until [`Derived::forget_expansions`].
+    fn kernel_vector(&mut self, j: usize) -> Vector {
+        match j.checked_sub(self.dense.kernel.len()) {
+            None => self.derived.expand(&self.dense.kernel[j]),
+            Some(i) => {
+                let unit = self.dense.unit(&self.dense_cols, &self.spare[i]);
+                self.derived.expand(&unit)
+            }
+        }
+    }
+
+    /// The `count` kernel vectors among `range` whose logarithms are
+    /// cheapest to evaluate, cheapest first: fewest coefficient bits over
+    /// the raw relations, ties by position. Each is expanded on its own and
+    /// dropped after it is measured (all of them at once took gigabytes).
+    fn cheapest(&mut self, range: std::ops::Range<usize>, count: usize) -> Vec<usize> {
+        let mut order: Vec<(u64, usize)> = range
+            .map(|j| {
+                let bits: u64 = self
+                    .kernel_vector(j)
+                    .values()
+                    .map(|e| u64::from(e.significant_bits()) + 1)
+                    .sum();
+                (bits, j)
+            })
             .collect();
-        derived.forget_expansions();
-        kernel
+        order.sort_unstable();
+        order.into_iter().take(count).map(|(_, j)| j).collect()
     }
 
     fn full_rank(&self) -> bool {
@@ -185,28 +218,6 @@ fn covers(rows: &[Row], k: usize) -> bool {
         }
     }
     seen.into_iter().all(|s| s)
-}
-
-/// The `count` kernel vectors whose logarithms are cheapest to evaluate,
-/// cheapest first (fewest coefficient bits; ties by position).
-fn cheapest(kernel: &[Vector], count: usize) -> Vec<&Vector> {
-    let mut order: Vec<(u64, usize)> = kernel
-        .iter()
-        .enumerate()
-        .map(|(j, v)| {
-            let bits: u64 = v
-                .values()
-                .map(|e| u64::from(e.significant_bits()) + 1)
-                .sum();
-            (bits, j)
-        })
-        .collect();
-    order.sort_unstable();
-    order
-        .into_iter()
-        .take(count)
-        .map(|(_, j)| &kernel[j])
-        .collect()
 }
 
 fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
@@ -341,7 +352,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             continue;
         }
         let mut alg = Algebra::solve(k, raws.len(), rows.clone());
-        if !alg.full_rank() || alg.dense.kernel.is_empty() {
+        if !alg.full_rank() || alg.kernel_len() == 0 {
             continue;
         }
         let h_star = alg.h_star();
@@ -364,36 +375,52 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             let as_terms = |kv: &Vector| -> Vec<(usize, Integer)> {
                 kv.iter().map(|(i, e)| (*i, e.clone())).collect()
             };
-            let kernel = &alg.kernel();
             if sieving {
                 // The kernel vectors are long and their logarithms huge
                 // multiples of R, so each step of the real gcd is costly:
                 // the cheapest first, one at a time, until R* is confirmed
-                // (two or three usually do).
-                for kv in cheapest(kernel, KERNEL_PER_ROUND) {
-                    let cands: Vec<Vec<(usize, Integer)>> =
-                        unit.iter().chain([kv]).map(as_terms).collect();
-                    if let Some(g) = units::unit_gcd(d, &fs, &cands) {
-                        unit = Some(g.into_iter().collect());
-                    }
-                    if unit.as_ref().is_some_and(below_ceiling) {
-                        confirmed = true;
+                // (two or three usually do). The rows that vanished come
+                // first (the echelon form's trial alone leaves 8 when the
+                // block has full rank): the spare rows' units, reduced
+                // against an echelon form whose quotients multiply, have
+                // 30 to 45 times their coefficient bits at 30 and 40
+                // digits, every one of them, and are reduced only if the
+                // vanished rows do not do.
+                let vanished = alg.dense.kernel.len();
+                let mut offered = 0;
+                for range in [0..vanished, vanished..alg.kernel_len()] {
+                    if confirmed || offered == KERNEL_PER_ROUND {
                         break;
+                    }
+                    for j in alg.cheapest(range, KERNEL_PER_ROUND - offered) {
+                        offered += 1;
+                        let kv = alg.kernel_vector(j);
+                        let cands: Vec<Vec<(usize, Integer)>> =
+                            unit.iter().chain([&kv]).map(as_terms).collect();
+                        if let Some(g) = units::unit_gcd(d, &fs, &cands) {
+                            unit = Some(g.into_iter().collect());
+                        }
+                        if unit.as_ref().is_some_and(below_ceiling) {
+                            confirmed = true;
+                            break;
+                        }
                     }
                 }
             } else {
                 // the current unit and kernel vectors spread over the kernel
-                let step = kernel.len().div_ceil(KERNEL_PER_ROUND).max(1);
-                let cands: Vec<Vec<(usize, Integer)>> = unit
-                    .iter()
-                    .chain(kernel.iter().step_by(step))
-                    .map(as_terms)
+                let step = alg.kernel_len().div_ceil(KERNEL_PER_ROUND).max(1);
+                let spread: Vec<Vector> = (0..alg.kernel_len())
+                    .step_by(step)
+                    .map(|j| alg.kernel_vector(j))
                     .collect();
+                let cands: Vec<Vec<(usize, Integer)>> =
+                    unit.iter().chain(&spread).map(as_terms).collect();
                 if let Some(g) = units::unit_gcd(d, &fs, &cands) {
                     unit = Some(g.into_iter().collect());
                 }
                 confirmed = unit.as_ref().is_some_and(below_ceiling);
             }
+            alg.derived.forget_expansions();
             if unit.is_none() {
                 continue;
             }

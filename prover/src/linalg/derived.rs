@@ -73,6 +73,12 @@ impl Derived {
         out
     }
 
+    /// `(entries, combination)` of each derived relation, in order.
+    #[cfg(test)]
+    pub fn rels(&self) -> &[(Vector, Vector)] {
+        &self.rels
+    }
+
     /// Drops the expansions kept so far (they can be large).
     pub fn forget_expansions(&mut self) {
         self.memo.iter_mut().for_each(|m| *m = None);

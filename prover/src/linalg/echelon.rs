@@ -15,7 +15,8 @@ pub type Vector = BTreeMap<usize, Integer>;
 pub fn axpy(dst: &mut Vector, c: &Integer, src: &Vector) {
     for (i, e) in src {
         let t = dst.entry(*i).or_default();
-        *t += Integer::from(c * e);
+        // one multiply-add in place, no temporary
+        *t += c * e;
         if t.is_zero() {
             dst.remove(i);
         }
@@ -107,44 +108,71 @@ impl Echelon {
     /// Echelon form of `rows` on `cols` (ascending). Combinations are what
     /// the certificate carries, so the form is built from as few rows with
     /// short combinations as will do: the shortest rows first, more only if
-    /// the others do not reduce to zero against the result (they then lie
-    /// in its lattice, and are units).
-    pub fn triangularise(&mut self, cols: &[usize], mut rows: Vec<Row>) {
+    /// the others do not lie in the lattice of the result. Returns the
+    /// others, which then all lie in it: each is a unit once reduced
+    /// ([`Echelon::unit`]). That reduction (against this form, before
+    /// [`Echelon::reduce`]) is costly, because the form's off-diagonal
+    /// entries multiply its quotients from column to column, so it is left
+    /// to the caller; whether a row lies in the lattice is decided here on
+    /// a Hermite-reduced copy of the entries instead, where the quotients
+    /// stay small.
+    pub fn triangularise(&mut self, cols: &[usize], mut rows: Vec<Row>) -> Vec<Row> {
         rows.sort_by_key(|r| r.combo.len());
         let mut take = rows.len().min(cols.len() + 8);
         loop {
             let mut trial = Echelon::new(self.pivots.len());
             trial.euclid(cols, rows[..take].to_vec());
             let complete = cols.iter().all(|&c| trial.pivots[c].is_some());
-            let mut left = Vec::new();
-            let mut units = Vec::new();
-            if complete {
-                for r in &rows[take..] {
-                    let mut r = r.clone();
-                    for &c in cols {
-                        let (Some(e), Some(p)) = (r.v.get(&c).cloned(), trial.pivots[c].as_ref())
-                        else {
-                            continue;
-                        };
-                        let q = e.div_floor(&p.v[&c]);
-                        r.sub_mul(&q, p);
-                    }
-                    if r.v.is_empty() {
-                        units.push(r.combo);
-                    } else {
-                        left.push(r);
-                    }
-                }
-            }
-            if complete && left.is_empty() || take == rows.len() {
+            let spans = complete && {
+                let hermite = trial.hermite_entries(cols);
+                rows[take..].iter().all(|r| lies_in(&hermite, cols, &r.v))
+            };
+            if spans || take == rows.len() {
                 self.pivots = trial.pivots;
                 self.kernel.extend(trial.kernel);
-                self.kernel
-                    .extend(units.into_iter().filter(|c| !c.is_empty()));
-                return;
+                return rows.split_off(take);
             }
             take = rows.len().min(2 * take);
         }
+    }
+
+    /// The combination of `row`, a row of the lattice returned by
+    /// [`Echelon::triangularise`], minus the pivots that clear it column by
+    /// column (floor quotients): a kernel vector.
+    pub fn unit(&self, cols: &[usize], row: &Row) -> Vector {
+        let mut r = row.clone();
+        for &c in cols {
+            let (Some(e), Some(p)) = (r.v.get(&c).cloned(), self.pivots[c].as_ref()) else {
+                continue;
+            };
+            let q = e.div_floor(&p.v[&c]);
+            r.sub_mul(&q, p);
+        }
+        debug_assert!(r.v.is_empty(), "a row outside the lattice");
+        r.combo
+    }
+
+    /// The pivots' entries (not their combinations) in Hermite form: each
+    /// entry right of a pivot reduced modulo the pivot below it, from the
+    /// last column back, as for the Hermite normal form (H. Cohen, GTM 138,
+    /// §2.4). Only the lattice matters here, not the combinations.
+    fn hermite_entries(&self, cols: &[usize]) -> Vec<Option<Vector>> {
+        let mut h: Vec<Option<Vector>> = vec![None; self.pivots.len()];
+        for &c in cols.iter().rev() {
+            let Some(p) = &self.pivots[c] else { continue };
+            let mut v = p.v.clone();
+            for &j in cols.iter().filter(|&&j| j > c) {
+                let (Some(e), Some(pj)) = (v.get(&j), &h[j]) else {
+                    continue;
+                };
+                let q = Integer::from(e.div_floor(&pj[&j]));
+                if !q.is_zero() {
+                    axpy(&mut v, &(-q), pj);
+                }
+            }
+            h[c] = Some(v);
+        }
+        h
     }
 
     /// Echelon form by Euclid across all rows at once: in each column the
@@ -227,5 +255,148 @@ impl Echelon {
             .as_ref()
             .and_then(|p| p.v.get(&c).cloned())
             .unwrap_or_default()
+    }
+}
+
+/// Whether `v` (supported on `cols`) lies in the lattice of the complete
+/// echelon form `pivots`: cleared column by column with floor quotients, it
+/// vanishes exactly then (the entry left at each column lies in
+/// `[0, pivot)`, and is 0 for a lattice vector; common practice).
+fn lies_in(pivots: &[Option<Vector>], cols: &[usize], v: &Vector) -> bool {
+    let mut v = v.clone();
+    for &c in cols {
+        let (Some(e), Some(p)) = (v.get(&c), &pivots[c]) else {
+            continue;
+        };
+        let q = Integer::from(e.div_floor(&p[&c]));
+        axpy(&mut v, &(-q), p);
+    }
+    v.is_empty()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::rng::Rng;
+
+    /// `triangularise` as it was first written: every row beyond the trial
+    /// reduced against the trial form with its combination, a row that
+    /// vanishes being a unit. The lazy form (lattice test on a Hermite
+    /// copy, units reduced on demand) must give the same pivots and the
+    /// same kernel vectors in the same order, or real certificates change.
+    fn triangularise_eager(e: &mut Echelon, cols: &[usize], mut rows: Vec<Row>) {
+        rows.sort_by_key(|r| r.combo.len());
+        let mut take = rows.len().min(cols.len() + 8);
+        loop {
+            let mut trial = Echelon::new(e.pivots.len());
+            trial.euclid(cols, rows[..take].to_vec());
+            let complete = cols.iter().all(|&c| trial.pivots[c].is_some());
+            let mut left = Vec::new();
+            let mut units = Vec::new();
+            if complete {
+                for r in &rows[take..] {
+                    let mut r = r.clone();
+                    for &c in cols {
+                        let (Some(x), Some(p)) = (r.v.get(&c).cloned(), trial.pivots[c].as_ref())
+                        else {
+                            continue;
+                        };
+                        let q = x.div_floor(&p.v[&c]);
+                        r.sub_mul(&q, p);
+                    }
+                    if r.v.is_empty() {
+                        units.push(r.combo);
+                    } else {
+                        left.push(r);
+                    }
+                }
+            }
+            if complete && left.is_empty() || take == rows.len() {
+                e.pivots = trial.pivots;
+                e.kernel.extend(trial.kernel);
+                e.kernel.extend(units.into_iter().filter(|c| !c.is_empty()));
+                return;
+            }
+            take = rows.len().min(2 * take);
+        }
+    }
+
+    /// Random rows on `k` columns, each its own combination: entries small,
+    /// a sublattice (column 0 even) in the first rows sometimes, so that
+    /// the trial must grow, and some rows sums of others, so that spare
+    /// rows lie in the lattice.
+    fn random_rows(rng: &mut Rng) -> (usize, Vec<Row>) {
+        let k = 1 + rng.below(12) as usize;
+        let n = rng.below(3 * k as u64 + 20) as usize;
+        let even_first = rng.below(3) == 0;
+        let mut vs: Vec<Vector> = Vec::new();
+        for i in 0..n {
+            let mut v = Vector::new();
+            if i > 2 && rng.below(3) == 0 {
+                let (a, b) = (rng.below(i as u64) as usize, rng.below(i as u64) as usize);
+                let m = Integer::from(rng.below(5) as i64 - 2);
+                v = vs[a].clone();
+                axpy(&mut v, &m, &vs[b]);
+            } else {
+                for c in 0..k {
+                    if rng.below(2) == 0 {
+                        let mut x = rng.below(9) as i64 - 4;
+                        if c == 0 && even_first && i < k + 8 {
+                            x *= 2;
+                        }
+                        if x != 0 {
+                            v.insert(c, Integer::from(x));
+                        }
+                    }
+                }
+            }
+            vs.push(v);
+        }
+        let rows = vs
+            .into_iter()
+            .enumerate()
+            .filter(|(_, v)| !v.is_empty())
+            .map(|(i, v)| Row {
+                v,
+                combo: Vector::from([(i, Integer::from(1))]),
+            })
+            .collect();
+        (k, rows)
+    }
+
+    #[test]
+    fn lazy_units_equal_eager_reduction() {
+        let mut rng = Rng::new(77);
+        let (mut grown, mut spare_units, mut incomplete) = (0, 0, 0);
+        for t in 0..500 {
+            let (k, rows) = random_rows(&mut rng);
+            let cols: Vec<usize> = (0..k).collect();
+            let mut want = Echelon::new(k);
+            triangularise_eager(&mut want, &cols, rows.clone());
+            let mut got = Echelon::new(k);
+            let spare = got.triangularise(&cols, rows.clone());
+            let used = rows.len() - spare.len();
+            if used > (k + 8).min(rows.len()) {
+                grown += 1;
+            }
+            if !cols.iter().all(|&c| got.pivots[c].is_some()) {
+                incomplete += 1;
+            }
+            for c in 0..k {
+                let (g, w) = (&got.pivots[c], &want.pivots[c]);
+                assert_eq!(g.as_ref().map(|r| &r.v), w.as_ref().map(|r| &r.v), "{t}");
+                assert_eq!(g.as_ref().map(|r| &r.combo), w.as_ref().map(|r| &r.combo));
+            }
+            let mut kernel = got.kernel.clone();
+            kernel.extend(spare.iter().map(|r| got.unit(&cols, r)));
+            spare_units += spare.len();
+            assert_eq!(kernel, want.kernel, "matrix {t}");
+        }
+        // the matrices exercised a trial that had to grow, spare rows that
+        // were units, and blocks not of full rank
+        assert!(
+            grown > 0 && spare_units > 100 && incomplete > 0,
+            "{grown} {spare_units} {incomplete}"
+        );
     }
 }

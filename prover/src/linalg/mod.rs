@@ -3,6 +3,8 @@
 //! - [`sge`]: structured Gaussian elimination with unit pivots, one routine
 //!   for both signs of `D` (the row type says whether a row carries the
 //!   combination of relations it stands for);
+//! - [`tracked`]: that elimination for `D > 0` on word-size rows that
+//!   record what was subtracted from them, the combinations rebuilt after;
 //! - [`echelon`]: an integer echelon form that keeps those combinations,
 //!   for the columns left when `D > 0` (kernel vectors are units);
 //! - [`derived`]: named intermediate relations, so that those combinations
@@ -27,6 +29,7 @@ pub mod matrix;
 pub mod modp;
 pub mod sge;
 pub mod smith;
+pub mod tracked;
 
 pub use hnf::Hnf;
 pub use matrix::{identity, mat_mul, Matrix};

@@ -23,7 +23,8 @@
 //!   instead of copying its combination.
 
 use crate::relations::Sparse;
-use std::collections::BTreeSet;
+use std::cmp::Reverse;
+use std::collections::{BTreeSet, BinaryHeap};
 
 /// Rows heavier than this are not used as pivots (they would fill in),
 /// unless the caller asks for another limit ([`Sge::run_heavier`]).
@@ -126,6 +127,22 @@ fn pivot_key(w: usize, n: usize, i: usize, c: usize) -> Key {
     }
 }
 
+/// Which of `prow`'s columns `r` has, in `prow`'s order: by one pass over
+/// both rows' columns (in increasing order), or by a lookup per column when
+/// `r` is much the heavier row.
+fn presence<R: PivotRow>(prow: &R, r: &R) -> Vec<bool> {
+    if r.weight() > 8 * prow.weight() {
+        return prow.columns().map(|c| r.has(c)).collect();
+    }
+    let mut out = Vec::with_capacity(prow.weight());
+    let mut theirs = r.columns().peekable();
+    for c in prow.columns() {
+        while theirs.next_if(|&x| x < c).is_some() {}
+        out.push(theirs.next_if_eq(&c).is_some());
+    }
+    out
+}
+
 /// The live rows by column, with each column's best candidate pivot kept
 /// up to date, so that choosing a pivot costs a lookup and a step costs
 /// work in proportion to what it changes: a row that a pivot row is
@@ -139,16 +156,33 @@ fn pivot_key(w: usize, n: usize, i: usize, c: usize) -> Key {
 /// column has a single row). So the column's best candidate is the least
 /// `(w, i)` among its rows with a unit entry there, and the best pivot
 /// overall is the least of the columns' best keys.
+///
+/// Almost every row a pivot is subtracted from changes its weight, and so
+/// its key in each column where it has a unit entry (dozens). So nothing
+/// is taken out when a row changes or leaves: every key carries the
+/// version of its row when it was put, and stands only while the row has
+/// that version (taking a row out starts a new one). A column's keys are a
+/// heap whose top is dropped while it is stale, and which is rebuilt from
+/// its standing keys once it holds twice as many keys as the column has
+/// rows. A column's best key in `order` can then be stale too, but only
+/// too small (a better key comes from a row put back or from a row leaving
+/// the column, and both mark the column for [`Columns::settle`]), so
+/// [`Columns::first`] brings the first column of `order` up to date until
+/// its key stands: the least key of all, as if every change had been
+/// settled at once.
 struct Columns {
     /// Live rows with an entry in each column.
     rows: Vec<BTreeSet<usize>>,
     /// Rows heavier than this are no candidates.
     max_weight: usize,
-    /// `(w, i)` for the live rows of weight `w <= max_weight` with a
-    /// unit entry in each column.
-    units: Vec<BTreeSet<(usize, usize)>>,
-    /// Each column's best key, as it stands in `order`.
-    best: Vec<Option<Key>>,
+    /// `(w, i, version)` for the live rows of weight `w <= max_weight`
+    /// with a unit entry in each column, and stale keys (see above).
+    units: Vec<BinaryHeap<Reverse<(usize, usize, u32)>>>,
+    /// Each row's version.
+    version: Vec<u32>,
+    /// Each column's best key, as it stands in `order`, and the version
+    /// of its row then.
+    best: Vec<Option<(Key, u32)>>,
     order: BTreeSet<Key>,
     /// Columns changed since the last [`Columns::settle`].
     dirty: Vec<usize>,
@@ -156,11 +190,12 @@ struct Columns {
 }
 
 impl Columns {
-    fn new(k: usize, max_weight: usize) -> Columns {
+    fn new(k: usize, rows: usize, max_weight: usize) -> Columns {
         Columns {
             max_weight,
             rows: vec![BTreeSet::new(); k],
-            units: vec![BTreeSet::new(); k],
+            units: vec![BinaryHeap::new(); k],
+            version: vec![0; rows],
             best: vec![None; k],
             order: BTreeSet::new(),
             dirty: Vec::new(),
@@ -179,22 +214,17 @@ impl Columns {
     fn put_units<R: PivotRow>(&mut self, i: usize, r: &R) {
         let w = r.weight();
         if w <= self.max_weight {
+            let v = self.version[i];
             for c in r.unit_columns() {
-                self.units[c].insert((w, i));
+                self.units[c].push(Reverse((w, i, v)));
                 self.touch(c);
             }
         }
     }
 
-    /// Undoes [`Columns::put_units`] for row `i`, as it was put.
-    fn take_units<R: PivotRow>(&mut self, i: usize, r: &R) {
-        let w = r.weight();
-        if w <= self.max_weight {
-            for c in r.unit_columns() {
-                self.units[c].remove(&(w, i));
-                self.touch(c);
-            }
-        }
+    /// Undoes [`Columns::put_units`] for row `i`: its keys stop standing.
+    fn take_units(&mut self, i: usize) {
+        self.version[i] += 1;
     }
 
     fn insert<R: PivotRow>(&mut self, i: usize, r: &R) {
@@ -211,14 +241,14 @@ impl Columns {
             self.rows[c].remove(&i);
             self.touch(c);
         }
-        self.take_units(i, r);
+        self.take_units(i);
     }
 
     /// Row `i`, whose units were taken out, has had `prow` subtracted from
     /// it; `had` says which of `prow`'s columns it had before.
     fn amend<R: PivotRow>(&mut self, i: usize, r: &R, prow: &R, had: &[bool]) {
-        for (c, &h) in prow.columns().zip(had) {
-            if h != r.has(c) {
+        for ((c, &h), has) in prow.columns().zip(had).zip(presence(prow, r)) {
+            if h != has {
                 if h {
                     self.rows[c].remove(&i);
                 } else {
@@ -244,28 +274,48 @@ impl Columns {
         }
     }
 
+    /// Brings column `c`'s best key up to date.
+    fn refresh(&mut self, c: usize) {
+        let version = &self.version;
+        let stands = |&Reverse((_, i, v)): &Reverse<(usize, usize, u32)>| version[i] == v;
+        let heap = &mut self.units[c];
+        if heap.len() > 2 * self.rows[c].len() + 32 {
+            heap.retain(stands);
+        }
+        while heap.peek().is_some_and(|k| !stands(k)) {
+            heap.pop();
+        }
+        let best = heap
+            .peek()
+            .map(|&Reverse((w, i, v))| (pivot_key(w, self.rows[c].len(), i, c), v));
+        if best != self.best[c] {
+            if let Some((old, _)) = self.best[c] {
+                self.order.remove(&old);
+            }
+            if let Some((new, _)) = best {
+                self.order.insert(new);
+            }
+            self.best[c] = best;
+        }
+    }
+
     /// Brings the best keys of the changed columns up to date.
     fn settle(&mut self) {
         for c in std::mem::take(&mut self.dirty) {
             self.is_dirty[c] = false;
-            let key = self.units[c]
-                .first()
-                .map(|&(w, i)| pivot_key(w, self.rows[c].len(), i, c));
-            if key != self.best[c] {
-                if let Some(old) = self.best[c] {
-                    self.order.remove(&old);
-                }
-                if let Some(new) = key {
-                    self.order.insert(new);
-                }
-                self.best[c] = key;
-            }
+            self.refresh(c);
         }
     }
 
     /// The best pivot `(row, column)`, if any.
-    fn first(&self) -> Option<(usize, usize)> {
-        self.order.first().map(|&(_, _, i, c)| (i, c))
+    fn first(&mut self) -> Option<(usize, usize)> {
+        loop {
+            let &(_, _, i, c) = self.order.first()?;
+            if self.best[c].is_some_and(|(_, v)| v == self.version[i]) {
+                return Some((i, c));
+            }
+            self.refresh(c);
+        }
     }
 }
 
@@ -313,7 +363,7 @@ impl<R: PivotRow> Sge<R> {
                 }
             })
             .collect();
-        let mut cols = Columns::new(k, max_weight);
+        let mut cols = Columns::new(k, rows.len(), max_weight);
         for (i, r) in rows.iter().enumerate() {
             if let Some(r) = r {
                 cols.insert(i, r);
@@ -334,8 +384,8 @@ impl<R: PivotRow> Sge<R> {
                 let Some(mut r) = rows[oi].take() else {
                     continue;
                 };
-                cols.take_units(oi, &r);
-                let had: Vec<bool> = prow.columns().map(|c| r.has(c)).collect();
+                cols.take_units(oi);
+                let had = presence(&prow, &r);
                 if r.eliminate(pc, &prow) && !r.has(pc) {
                     if r.is_zero() {
                         cols.forget(oi, &r, &prow, &had);
