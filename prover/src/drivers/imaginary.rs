@@ -281,7 +281,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     ));
     if kd > DENSE_WARNING {
         progress.warn(&format!(
-            "the dense block has {kd} columns: choosing a full-rank set of its rows and the LU decomposition behind the Hermite form take time that grows as the cube of that (at 3 306 columns, 80 digits, about 15 minutes; BENCHMARKS.md)"
+            "the dense block has {kd} columns: the elimination that picks its full-rank rows and the solves behind its Hermite form take time that grows as the cube of that (at 3 306 columns, 80 digits, about 2 minutes; BENCHMARKS.md)"
         ));
     }
     // A full-rank set first: its determinant M gives M·Z^kd inside the

@@ -243,6 +243,27 @@ struct Workspace {
     pos2: Vec<u32>,
     /// `2 B_j (2a)^{-1} mod p`, `s` rows.
     deltas: Vec<Vec<u32>>,
+    /// The runs of indices the sieve walks: those of the sieving primes
+    /// past the small ones, less the primes of `a`.
+    runs: Vec<std::ops::Range<usize>>,
+}
+
+/// `lo..kp` less the indices in `q`, as ascending runs.
+fn sieved_runs(lo: usize, kp: usize, q: &[usize]) -> Vec<std::ops::Range<usize>> {
+    let mut cuts: Vec<usize> = q.iter().copied().filter(|i| (lo..kp).contains(i)).collect();
+    cuts.sort_unstable();
+    let mut runs = Vec::with_capacity(cuts.len() + 1);
+    let mut start = lo;
+    for c in cuts {
+        if c > start {
+            runs.push(start..c);
+        }
+        start = start.max(c + 1);
+    }
+    if start < kp {
+        runs.push(start..kp);
+    }
+    runs
 }
 
 impl<'a> Siqs<'a> {
@@ -356,6 +377,7 @@ impl<'a> Siqs<'a> {
             pos1: vec![0; k],
             pos2: vec![0; k],
             deltas: vec![vec![0; k]; self.params.s as usize],
+            runs: Vec::new(),
         }
     }
 
@@ -412,6 +434,9 @@ impl<'a> Siqs<'a> {
                 w.deltas[j][i] = (2 * bjv.mod_u(p as u32) as u64 % p * inv2a % p) as u32;
             }
         }
+        // the primes of a and the small primes are not sieved: the others
+        // lie in a few runs of indices, walked without a test per prime
+        w.runs = sieved_runs(fb.primes[..kp].partition_point(|&p| p < SMALL_PRIME), kp, q);
         let s = q.len();
         let polys = 1u64 << (s - 1);
         for poly in 0..polys {
@@ -426,19 +451,22 @@ impl<'a> Siqs<'a> {
                 } else {
                     b -= two_bj;
                 }
-                let dj = &w.deltas[j];
-                for i in 0..kp {
-                    let p = fb.primes[i] as u32;
-                    if (p as u64) < SMALL_PRIME || q.contains(&i) {
-                        continue;
-                    }
-                    let d = dj[i];
+                for run in &w.runs {
+                    let steps = &w.deltas[j][run.clone()];
+                    let roots = w.pos1[run.clone()]
+                        .iter_mut()
+                        .zip(w.pos2[run.clone()].iter_mut());
+                    let primes = &fb.primes[run.clone()];
                     if plus {
-                        w.pos1[i] = sub_mod(w.pos1[i], d, p);
-                        w.pos2[i] = sub_mod(w.pos2[i], d, p);
+                        for (((r1, r2), &d), &p) in roots.zip(steps).zip(primes) {
+                            *r1 = sub_mod(*r1, d, p as u32);
+                            *r2 = sub_mod(*r2, d, p as u32);
+                        }
                     } else {
-                        w.pos1[i] = add_mod(w.pos1[i], d, p);
-                        w.pos2[i] = add_mod(w.pos2[i], d, p);
+                        for (((r1, r2), &d), &p) in roots.zip(steps).zip(primes) {
+                            *r1 = add_mod(*r1, d, p as u32);
+                            *r2 = add_mod(*r2, d, p as u32);
+                        }
                     }
                 }
             }
@@ -600,29 +628,28 @@ impl<'a> Siqs<'a> {
         out: &mut Vec<Found>,
     ) {
         let fb = self.fb;
-        let kp = self.sieving_primes();
         let width = w.sieve.len();
         // bytes start at 128 - threshold: a byte reaches 128 exactly when
         // the logarithms sieved into it reach the threshold
         let start = 128u8.wrapping_sub(self.threshold);
         w.sieve.iter_mut().for_each(|v| *v = start);
-        for i in 0..kp {
-            let p = fb.primes[i] as usize;
-            if (p as u64) < SMALL_PRIME || q.contains(&i) {
-                continue;
-            }
-            let lg = self.logs[i];
-            let (r1, r2) = (w.pos1[i] as usize, w.pos2[i] as usize);
-            let mut j = r1;
-            while j < width {
-                w.sieve[j] = w.sieve[j].wrapping_add(lg);
-                j += p;
-            }
-            if r2 != r1 {
-                let mut j = r2;
+        let sieve = &mut w.sieve[..];
+        for run in &w.runs {
+            let roots = w.pos1[run.clone()].iter().zip(&w.pos2[run.clone()]);
+            let primes = fb.primes[run.clone()].iter().zip(&self.logs[run.clone()]);
+            for ((&p, &lg), (&r1, &r2)) in primes.zip(roots) {
+                let p = p as usize;
+                let mut j = r1 as usize;
                 while j < width {
-                    w.sieve[j] = w.sieve[j].wrapping_add(lg);
+                    sieve[j] = sieve[j].wrapping_add(lg);
                     j += p;
+                }
+                if r2 != r1 {
+                    let mut j = r2 as usize;
+                    while j < width {
+                        sieve[j] = sieve[j].wrapping_add(lg);
+                        j += p;
+                    }
                 }
             }
         }
@@ -1427,6 +1454,17 @@ fn sub_mod(x: u32, y: u32, p: u32) -> u32 {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn sieved_runs_leave_out_the_primes_of_a() {
+        assert_eq!(sieved_runs(2, 10, &[5, 3]), vec![2..3, 4..5, 6..10]);
+        assert_eq!(sieved_runs(2, 10, &[2, 9, 12]), vec![3..9]);
+        assert_eq!(
+            sieved_runs(0, 4, &[0, 1, 2, 3]),
+            Vec::<std::ops::Range<usize>>::new()
+        );
+        assert_eq!(sieved_runs(5, 5, &[]), Vec::<std::ops::Range<usize>>::new());
+    }
     use crate::relations::RelationSource;
     use classcert_verifier::math::primes_up_to;
 
