@@ -328,7 +328,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         norm
     });
     if !unreached.is_empty() {
-        progress.note(&format!(
+        progress.say(&format!(
             "no row reaches {} of the dense columns: special-q relations for their ideals",
             unreached.len()
         ));
@@ -382,7 +382,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         while rank.rank < kd && idle_passes < GAP_PASSES {
             let before = rank.rank;
             let gaps = rank.pivotless();
-            progress.note(&format!(
+            progress.say(&format!(
                 "rank {before} of {kd}: special-q relations for the ideals of the {} columns without a pivot",
                 gaps.len()
             ));
