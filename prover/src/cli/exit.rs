@@ -32,8 +32,10 @@ impl Exit {
             ProveError::SearchFailed(_) => Exit::Failed,
             ProveError::SelfCheckFailed(_) => Exit::Internal,
             // the user pointed --resume at the wrong or a damaged directory
+            // (or combine was given directories or rounds that do not agree)
             ProveError::Checkpoint(CheckpointError::Mismatch { .. })
-            | ProveError::Checkpoint(CheckpointError::Corrupt { .. }) => Exit::Usage,
+            | ProveError::Checkpoint(CheckpointError::Corrupt { .. })
+            | ProveError::Checkpoint(CheckpointError::Conflict { .. }) => Exit::Usage,
             // reading or writing it failed during the run
             ProveError::Checkpoint(CheckpointError::Io { .. }) => Exit::Failed,
         }
