@@ -55,6 +55,13 @@
 //! flushed (on Unix; elsewhere the rename is the last step). A crash at any
 //! point leaves either no file under the final name or a complete one.
 //! One process at a time per directory: there is no lock.
+//!
+//! # Merging
+//!
+//! [`combine`] merges directories of the same run (rounds sieved on
+//! several machines with `classcert collect`) into one: every round file
+//! is checked as [`Checkpoint::load`] checks it before anything is written,
+//! missing rounds are copied and identical ones skipped.
 
 use sha2::{Digest, Sha256};
 use std::collections::{BTreeMap, BTreeSet};
