@@ -884,37 +884,26 @@ fn collected_rounds_combine_and_resume_to_the_same_bytes() {
     let o = run(&classcert, &["prove", d, "-q", "-o", &s(&plain)]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
 
+    // `collect` of rounds `range` of D into `into`: it succeeds, and what
+    // it says
+    let collect = |range: &str, into: &PathBuf| -> String {
+        let o = run(
+            &classcert,
+            &["collect", d, "--rounds", range, "--into", &s(into), "-q"],
+        );
+        assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+        stdout(&o)
+    };
     // rounds 0..2 on one machine, 2..3 on another
-    let o = run(
-        &classcert,
-        &["collect", d, "--rounds", "0..2", "--into", &s(&a), "-q"],
-    );
-    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
-    assert!(
-        stdout(&o).starts_with("wrote 2 rounds into"),
-        "{}",
-        stdout(&o)
-    );
-    let o = run(
-        &classcert,
-        &["collect", d, "--rounds", "2..3", "--into", &s(&b), "-q"],
-    );
-    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
-    assert!(
-        stdout(&o).starts_with("wrote 1 round into"),
-        "{}",
-        stdout(&o)
-    );
+    let out = collect("0..2", &a);
+    assert!(out.starts_with("wrote 2 rounds into"), "{out}");
+    let out = collect("2..3", &b);
+    assert!(out.starts_with("wrote 1 round into"), "{out}");
     // collecting an overlapping range again writes only what is missing
-    let o = run(
-        &classcert,
-        &["collect", d, "--rounds", "1..3", "--into", &s(&b), "-q"],
-    );
-    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = collect("1..3", &b);
     assert!(
-        stdout(&o).contains("wrote 1 round into") && stdout(&o).contains("1 of rounds 1..3"),
-        "{}",
-        stdout(&o)
+        out.contains("wrote 1 round into") && out.contains("1 of rounds 1..3"),
+        "{out}"
     );
     // the same round sieved on both sides is the same bytes
     assert_eq!(
