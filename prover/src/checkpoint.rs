@@ -55,8 +55,16 @@
 //! flushed (on Unix; elsewhere the rename is the last step). A crash at any
 //! point leaves either no file under the final name or a complete one.
 //! One process at a time per directory: there is no lock.
+//!
+//! # Merging
+//!
+//! [`combine`] merges directories of the same run (rounds sieved on
+//! several machines with `classcert collect`) into one: every round file
+//! is checked as [`Checkpoint::load`] checks it before anything is written,
+//! missing rounds are copied and identical ones skipped.
 
 use sha2::{Digest, Sha256};
+use std::collections::{BTreeMap, BTreeSet};
 use std::fmt;
 use std::fs::{self, File};
 use std::io::{self, Read, Write};
@@ -95,6 +103,11 @@ pub enum CheckpointError {
     /// A file whose digest, name, size or header does not check out: never
     /// used.
     Corrupt { path: PathBuf, why: String },
+    /// [`combine`] cannot take `path`: a directory of another computation
+    /// (or the target itself, or no checkpoint directory at all), or a
+    /// round file that passes its checks but differs from another copy of
+    /// the same round.
+    Conflict { path: PathBuf, why: String },
 }
 
 impl fmt::Display for CheckpointError {
@@ -126,6 +139,9 @@ impl fmt::Display for CheckpointError {
                 "checkpoint file {} is refused, and nothing in it was used: {why}",
                 path.display()
             ),
+            CheckpointError::Conflict { path, why } => {
+                write!(f, "cannot combine {}: {why}", path.display())
+            }
         }
     }
 }
@@ -178,33 +194,22 @@ impl Checkpoint {
             key,
         };
         let mut others = Vec::new();
-        let entries = fs::read_dir(dir).map_err(|e| io_error(dir, "cannot be listed", &e))?;
-        for entry in entries {
-            let entry = entry.map_err(|e| io_error(dir, "cannot be listed", &e))?;
-            let name = entry.file_name();
-            match name.to_str() {
-                Some(n) if is_temporary(n) => {
-                    let path = entry.path();
-                    fs::remove_file(&path).map_err(|e| {
-                        io_error(
-                            &path,
-                            "is a stray temporary file that cannot be removed",
-                            &e,
-                        )
-                    })?;
-                }
-                Some(MANIFEST) => {}
-                _ => others.push(name.to_string_lossy().into_owned()),
+        for name in names_in(dir)? {
+            if is_temporary(&name) {
+                let path = dir.join(&name);
+                fs::remove_file(&path).map_err(|e| {
+                    io_error(
+                        &path,
+                        "is a stray temporary file that cannot be removed",
+                        &e,
+                    )
+                })?;
+            } else if name != MANIFEST {
+                others.push(name);
             }
         }
-        let manifest = dir.join(MANIFEST);
-        match read_at_most(&manifest, MANIFEST_HEAD + MAX_WHAT + DIGEST_LEN) {
-            Ok(bytes) => {
-                let (stored_key, stored_what) =
-                    parse_manifest(&bytes).map_err(|why| CheckpointError::Corrupt {
-                        path: manifest.clone(),
-                        why: format!("{why}; remove the directory to start afresh"),
-                    })?;
+        match read_manifest(dir)? {
+            Some((stored_key, stored_what)) => {
                 if stored_key != key {
                     return Err(CheckpointError::Mismatch {
                         dir: dir.to_path_buf(),
@@ -213,22 +218,9 @@ impl Checkpoint {
                     });
                 }
             }
-            Err(e) if e.kind() == io::ErrorKind::NotFound => {
+            None => {
                 if !others.is_empty() {
-                    others.sort();
-                    let shown = others
-                        .iter()
-                        .take(3)
-                        .map(|s| format!("'{s}'"))
-                        .collect::<Vec<_>>()
-                        .join(", ");
-                    let more = if others.len() > 3 { ", ..." } else { "" };
-                    return Err(CheckpointError::Corrupt {
-                        path: manifest,
-                        why: format!(
-                            "it is missing, but the directory is not empty (it holds {shown}{more}), so it is not a checkpoint directory; give a new or empty directory"
-                        ),
-                    });
+                    return Err(not_a_checkpoint(dir, others));
                 }
                 let what = cut(what, MAX_WHAT);
                 let head = manifest_head(&key, what);
@@ -238,7 +230,6 @@ impl Checkpoint {
                     .finalize();
                 cp.write_atomically(MANIFEST, &[&head, what.as_bytes(), &digest])?;
             }
-            Err(e) => return Err(io_error(&manifest, "cannot be read", &e)),
         }
         Ok(cp)
     }
@@ -326,6 +317,54 @@ fn io_error(path: &Path, doing: &str, e: &io::Error) -> CheckpointError {
     CheckpointError::Io {
         path: path.to_path_buf(),
         why: format!("{doing}: {e}"),
+    }
+}
+
+/// The names of the entries of `dir` (not UTF-8 ones shown lossily).
+fn names_in(dir: &Path) -> Result<Vec<String>, CheckpointError> {
+    let entries = fs::read_dir(dir).map_err(|e| io_error(dir, "cannot be listed", &e))?;
+    entries
+        .map(|entry| {
+            entry
+                .map(|e| e.file_name().to_string_lossy().into_owned())
+                .map_err(|e| io_error(dir, "cannot be listed", &e))
+        })
+        .collect()
+}
+
+/// The key and description of `dir`'s manifest, or None when it has none
+/// (or `dir` does not exist); a manifest that does not check out is
+/// refused.
+fn read_manifest(dir: &Path) -> Result<Option<([u8; 32], String)>, CheckpointError> {
+    let path = dir.join(MANIFEST);
+    match read_at_most(&path, MANIFEST_HEAD + MAX_WHAT + DIGEST_LEN) {
+        Ok(bytes) => parse_manifest(&bytes)
+            .map(Some)
+            .map_err(|why| CheckpointError::Corrupt {
+                path,
+                why: format!("{why}; remove the directory to start afresh"),
+            }),
+        Err(e) if e.kind() == io::ErrorKind::NotFound => Ok(None),
+        Err(e) => Err(io_error(&path, "cannot be read", &e)),
+    }
+}
+
+/// The refusal of a directory that holds `others` (files other than
+/// temporary ones) but no manifest.
+fn not_a_checkpoint(dir: &Path, mut others: Vec<String>) -> CheckpointError {
+    others.sort();
+    let shown = others
+        .iter()
+        .take(3)
+        .map(|s| format!("'{s}'"))
+        .collect::<Vec<_>>()
+        .join(", ");
+    let more = if others.len() > 3 { ", ..." } else { "" };
+    CheckpointError::Corrupt {
+        path: dir.join(MANIFEST),
+        why: format!(
+            "it is missing, but the directory is not empty (it holds {shown}{more}), so it is not a checkpoint directory; give a new or empty directory"
+        ),
     }
 }
 
@@ -470,8 +509,17 @@ fn parse_manifest(bytes: &[u8]) -> Result<([u8; 32], String), String> {
 /// The payload of round file `bytes` read under the name of round `r`, or
 /// why it is refused.
 fn verify_round(mut bytes: Vec<u8>, key: &[u8; 32], r: u64) -> Result<Vec<u8>, String> {
+    check_round(&bytes, key, r)?;
+    bytes.truncate(bytes.len() - DIGEST_LEN);
+    bytes.drain(..ROUND_HEAD);
+    Ok(bytes)
+}
+
+/// Whether round file `bytes`, read under the name of round `r`, checks
+/// out for the run `key`, or why it is refused.
+fn check_round(bytes: &[u8], key: &[u8; 32], r: u64) -> Result<(), String> {
     check_envelope(
-        &bytes,
+        bytes,
         &ROUND_MAGIC,
         "checkpoint round file",
         ROUND_HEAD,
@@ -483,15 +531,208 @@ fn verify_round(mut bytes: Vec<u8>, key: &[u8; 32], r: u64) -> Result<Vec<u8>, S
                 .into(),
         );
     }
-    let stored = be_u64(&bytes, 44);
+    let stored = be_u64(bytes, 44);
     if stored != r {
         return Err(format!(
             "it holds round {stored}, not round {r} as its name says: renamed or copied?"
         ));
     }
-    bytes.truncate(bytes.len() - DIGEST_LEN);
-    bytes.drain(..ROUND_HEAD);
+    Ok(())
+}
+
+/// What [`combine`] did.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Combined {
+    /// Round files copied into the target.
+    pub copied: u64,
+    /// Round files of the sources that the target, or a source named
+    /// before, already held byte for byte (skipped).
+    pub identical: u64,
+    /// Rounds `0 .. prefix` are all in the target now: what a run resumed
+    /// from it reads back.
+    pub prefix: u64,
+    /// Round files in the target now.
+    pub rounds: u64,
+    /// Whether the target was made anew, with the first source's manifest.
+    pub created: bool,
+}
+
+/// Merges the rounds of the checkpoint directories `sources` into the
+/// checkpoint directory `target`, so that a run resumed from `target` reads
+/// rounds sieved elsewhere (each round is a pure function of the run's
+/// key and its number, so any machine writes the same bytes).
+///
+/// Every source must have a manifest with the target's key (the first
+/// source's manifest is copied when `target` is missing or empty). Every
+/// round file of a source is checked as [`Checkpoint::load`] checks it
+/// (size, magic, version, SHA-256, key, round number against the name);
+/// one the target (or a source named before) holds already must be the
+/// same bytes, and is then skipped. All of this is checked before
+/// anything is written, so a refusal ([`CheckpointError::Corrupt`] or
+/// [`CheckpointError::Conflict`], naming the file) leaves the target as it
+/// was. Then the missing rounds are copied, each written atomically as
+/// [`Checkpoint::store`] writes. Sources are only read; files other than
+/// round files and the manifest are ignored.
+pub fn combine(target: &Path, sources: &[impl AsRef<Path>]) -> Result<Combined, CheckpointError> {
+    // the target as it is, read only
+    let mut held = BTreeSet::new();
+    let mut manifest = None;
+    match fs::metadata(target) {
+        Ok(m) if !m.is_dir() => {
+            return Err(CheckpointError::Io {
+                path: target.to_path_buf(),
+                why: "is not a directory".into(),
+            })
+        }
+        Ok(_) => {
+            let names = names_in(target)?;
+            manifest = read_manifest(target)?;
+            if manifest.is_none() {
+                let others: Vec<String> = names.into_iter().filter(|n| !is_temporary(n)).collect();
+                if !others.is_empty() {
+                    return Err(not_a_checkpoint(target, others));
+                }
+            } else {
+                held = names.iter().filter_map(|n| parse_round_name(n)).collect();
+            }
+        }
+        Err(e) if e.kind() == io::ErrorKind::NotFound => {}
+        Err(e) => return Err(io_error(target, "cannot be read", &e)),
+    }
+    let created = manifest.is_none();
+    let itself = fs::canonicalize(target).ok();
+    let mut inputs = Vec::with_capacity(sources.len());
+    for s in sources {
+        let s = s.as_ref();
+        if itself.is_some() && fs::canonicalize(s).ok() == itself {
+            return Err(CheckpointError::Conflict {
+                path: s.to_path_buf(),
+                why: "it is the target directory itself; nothing was copied".into(),
+            });
+        }
+        let Some((key, what)) = read_manifest(s)? else {
+            return Err(CheckpointError::Conflict {
+                path: s.to_path_buf(),
+                why: format!(
+                    "it has no {MANIFEST}, so it is not a checkpoint directory; nothing was copied"
+                ),
+            });
+        };
+        let mut rounds: Vec<u64> = names_in(s)?
+            .iter()
+            .filter_map(|n| parse_round_name(n))
+            .collect();
+        rounds.sort_unstable();
+        inputs.push((s, key, what, rounds));
+    }
+    // whose key the others must have: the target's, else the first source's
+    let owner = if created {
+        inputs.first().map_or(target, |i| i.0)
+    } else {
+        target
+    };
+    let Some((key, what)) = manifest.or_else(|| inputs.first().map(|i| (i.1, i.2.clone()))) else {
+        return Ok(Combined {
+            copied: 0,
+            identical: 0,
+            prefix: 0,
+            rounds: 0,
+            created: false,
+        });
+    };
+    for (s, k, w, _) in &inputs {
+        if *k != key {
+            let same = if *w == what {
+                ", with the same description but another key (something else that fixes the rounds differs, such as the prover version)"
+            } else {
+                ""
+            };
+            return Err(CheckpointError::Conflict {
+                path: s.to_path_buf(),
+                why: format!(
+                    "it holds the rounds of another computation ({w}), not those of {} ({what}){same}; nothing was copied",
+                    owner.display()
+                ),
+            });
+        }
+    }
+    // every round file checked, and compared with the copies before it
+    let mut first: BTreeMap<u64, (PathBuf, [u8; 32])> = BTreeMap::new();
+    let mut identical = 0;
+    for (s, _, _, rounds) in &inputs {
+        for &r in rounds {
+            let path = s.join(round_name(r));
+            let bytes = checked_round_file(&path, &key, r)?;
+            let digest: [u8; 32] = Sha256::digest(&bytes).into();
+            if let Some((other, d)) = first.get(&r) {
+                if *d != digest {
+                    return Err(differs(&path, other, r));
+                }
+                identical += 1;
+                continue;
+            }
+            if held.contains(&r) {
+                let there = target.join(round_name(r));
+                if checked_round_file(&there, &key, r)? != bytes {
+                    return Err(differs(&path, &there, r));
+                }
+                identical += 1;
+                first.insert(r, (there, digest));
+                continue;
+            }
+            first.insert(r, (path, digest));
+        }
+    }
+    let cp = Checkpoint::open(target, key, &what)?;
+    let mut copied = 0;
+    for (&r, (path, digest)) in first.iter().filter(|(r, _)| !held.contains(r)) {
+        let bytes = fs::read(path).map_err(|e| io_error(path, "cannot be read", &e))?;
+        if Sha256::digest(&bytes)[..] != digest[..] {
+            return Err(CheckpointError::Conflict {
+                path: path.clone(),
+                why: format!(
+                    "it changed while the rounds were combined ({copied} rounds were copied before it); combine again"
+                ),
+            });
+        }
+        cp.write_atomically(&round_name(r), &[&bytes])?;
+        copied += 1;
+    }
+    let rounds = names_in(target)?
+        .iter()
+        .filter(|n| parse_round_name(n).is_some())
+        .count() as u64;
+    Ok(Combined {
+        copied,
+        identical,
+        prefix: cp.stored_prefix()?,
+        rounds,
+        created,
+    })
+}
+
+/// The bytes of the round file `path`, checked as round `r` of the run
+/// `key`; a file that fails is refused before anything is copied.
+fn checked_round_file(path: &Path, key: &[u8; 32], r: u64) -> Result<Vec<u8>, CheckpointError> {
+    let bytes = fs::read(path).map_err(|e| io_error(path, "cannot be read", &e))?;
+    check_round(&bytes, key, r).map_err(|why| CheckpointError::Corrupt {
+        path: path.to_path_buf(),
+        why: format!(
+            "{why}; nothing was copied: remove the file (its round can be sieved again) and combine again"
+        ),
+    })?;
     Ok(bytes)
+}
+
+/// Two copies of round `r` that both pass their checks but differ.
+fn differs(path: &Path, other: &Path, r: u64) -> CheckpointError {
+    CheckpointError::Conflict {
+        path: path.to_path_buf(),
+        why: format!(
+            "its round {r} differs from the copy in {}, though both pass their checks (their key and number agree, so one of them was not written by this computation's prover); nothing was copied",
+            other.display()
+        ),
+    }
 }
 
 #[cfg(test)]
@@ -811,5 +1052,171 @@ mod tests {
             panic!("{e:?}")
         };
         assert_eq!(stored, "é".repeat(MAX_WHAT / 2));
+    }
+
+    /// The bytes of every file in `dir`, by name.
+    fn snapshot(dir: &Path) -> BTreeMap<String, Vec<u8>> {
+        fs::read_dir(dir)
+            .unwrap()
+            .map(|e| {
+                let e = e.unwrap();
+                (
+                    e.file_name().into_string().unwrap(),
+                    fs::read(e.path()).unwrap(),
+                )
+            })
+            .collect()
+    }
+
+    #[test]
+    fn combine_copies_the_missing_rounds_and_skips_identical_ones() {
+        let (a, b, t) = (
+            Scratch::new("combine-a"),
+            Scratch::new("combine-b"),
+            Scratch::new("combine-t"),
+        );
+        let ca = Checkpoint::open(&a.0, key("k"), "run k").unwrap();
+        let cb = Checkpoint::open(&b.0, key("k"), "run k, elsewhere").unwrap();
+        for r in [0, 1, 2] {
+            ca.store(r, format!("round {r}").as_bytes()).unwrap();
+        }
+        for r in [2, 3, 5] {
+            cb.store(r, format!("round {r}").as_bytes()).unwrap();
+        }
+        // a crash in b left a temporary file: b is only read
+        fs::write(b.0.join("tmp-1-round-000004.ckpt"), b"half").unwrap();
+        let (before_a, before_b) = (snapshot(&a.0), snapshot(&b.0));
+        let c = combine(&t.0, &[&a.0, &b.0]).unwrap();
+        assert_eq!(
+            c,
+            Combined {
+                copied: 5,
+                identical: 1,
+                prefix: 4,
+                rounds: 5,
+                created: true
+            }
+        );
+        assert_eq!(snapshot(&a.0), before_a);
+        assert_eq!(snapshot(&b.0), before_b);
+        // the target has the first source's manifest and the same files
+        assert_eq!(fs::read(t.0.join(MANIFEST)).unwrap(), before_a[MANIFEST]);
+        for r in [0, 1, 2] {
+            assert_eq!(
+                fs::read(t.0.join(round_name(r))).unwrap(),
+                before_a[&round_name(r)]
+            );
+        }
+        for r in [3, 5] {
+            assert_eq!(
+                fs::read(t.0.join(round_name(r))).unwrap(),
+                before_b[&round_name(r)]
+            );
+        }
+        let ct = Checkpoint::open(&t.0, key("k"), "run k").unwrap();
+        assert_eq!(ct.stored_prefix().unwrap(), 4);
+        assert_eq!(ct.load(5).unwrap().as_deref(), Some(&b"round 5"[..]));
+        // again: nothing to copy, everything identical
+        let again = combine(&t.0, &[&b.0, &a.0]).unwrap();
+        assert_eq!(
+            (again.copied, again.identical, again.created),
+            (0, 6, false)
+        );
+        // the gap filled from a third directory
+        let g = Scratch::new("combine-g");
+        Checkpoint::open(&g.0, key("k"), "run k")
+            .unwrap()
+            .store(4, b"round 4")
+            .unwrap();
+        let filled = combine(&t.0, &[&g.0]).unwrap();
+        assert_eq!((filled.copied, filled.prefix, filled.rounds), (1, 6, 6));
+    }
+
+    #[test]
+    fn combine_refuses_and_copies_nothing() {
+        let (a, b, t) = (
+            Scratch::new("refuse-a"),
+            Scratch::new("refuse-b"),
+            Scratch::new("refuse-t"),
+        );
+        let ca = Checkpoint::open(&a.0, key("k"), "run k").unwrap();
+        ca.store(0, b"zero").unwrap();
+        ca.store(1, b"one").unwrap();
+        let cb = Checkpoint::open(&b.0, key("other"), "run other").unwrap();
+        cb.store(2, b"two").unwrap();
+        // another computation, into a new target: nothing is created
+        let e = combine(&t.0, &[&a.0, &b.0]).unwrap_err();
+        assert!(
+            matches!(e, CheckpointError::Conflict { ref path, .. } if *path == b.0),
+            "{e:?}"
+        );
+        let msg = e.to_string();
+        assert!(
+            msg.contains("run other")
+                && msg.contains("run k")
+                && msg.contains("nothing was copied"),
+            "{msg}"
+        );
+        assert!(!t.0.exists());
+        // the same round with other bytes that pass their checks
+        let c2 = Scratch::new("refuse-c");
+        let cc = Checkpoint::open(&c2.0, key("k"), "run k").unwrap();
+        cc.store(1, b"ONE").unwrap();
+        cc.store(7, b"seven").unwrap();
+        let e = combine(&t.0, &[&a.0, &c2.0]).unwrap_err();
+        let msg = e.to_string();
+        assert!(matches!(e, CheckpointError::Conflict { .. }), "{e:?}");
+        assert!(
+            msg.contains(&c2.0.join(round_name(1)).display().to_string())
+                && msg.contains(&a.0.display().to_string())
+                && msg.contains("differs"),
+            "{msg}"
+        );
+        assert!(!t.0.exists());
+        // ... and against the target's own copy
+        combine(&t.0, &[&a.0]).unwrap();
+        let before = snapshot(&t.0);
+        let e = combine(&t.0, &[&c2.0]).unwrap_err();
+        assert!(
+            e.to_string()
+                .contains(&t.0.join(round_name(1)).display().to_string()),
+            "{e}"
+        );
+        assert_eq!(snapshot(&t.0), before);
+        // one byte changed anywhere in a source's round file
+        fs::remove_file(c2.0.join(round_name(1))).unwrap();
+        let path = c2.0.join(round_name(7));
+        let good = fs::read(&path).unwrap();
+        for i in 0..good.len() {
+            let mut bad = good.clone();
+            bad[i] ^= 0x01;
+            fs::write(&path, &bad).unwrap();
+            let e = combine(&t.0, &[&c2.0]).unwrap_err();
+            assert!(
+                matches!(e, CheckpointError::Corrupt { path: ref p, .. } if *p == path),
+                "byte {i}: {e:?}"
+            );
+            assert_eq!(snapshot(&t.0), before, "byte {i}");
+        }
+        // a round file renamed to another round's name
+        fs::write(&path, &good).unwrap();
+        let t2 = Scratch::new("refuse-t2");
+        assert_eq!(combine(&t2.0, &[&c2.0]).unwrap().copied, 1);
+        fs::rename(&path, c2.0.join(round_name(8))).unwrap();
+        let e = combine(&t.0, &[&c2.0]).unwrap_err();
+        assert!(e.to_string().contains("holds round 7, not round 8"), "{e}");
+        assert_eq!(snapshot(&t.0), before);
+        // the target itself, and a directory that is not a checkpoint
+        let e = combine(&t.0, &[&t.0]).unwrap_err();
+        assert!(e.to_string().contains("target directory itself"), "{e}");
+        let plain = Scratch::new("refuse-plain");
+        fs::create_dir_all(&plain.0).unwrap();
+        fs::write(plain.0.join("notes.txt"), b"x").unwrap();
+        let e = combine(&t.0, &[&plain.0]).unwrap_err();
+        assert!(e.to_string().contains("not a checkpoint directory"), "{e}");
+        // a target with files but no manifest
+        let e = combine(&plain.0, &[&a.0]).unwrap_err();
+        assert!(matches!(e, CheckpointError::Corrupt { .. }), "{e:?}");
+        assert!(!plain.0.join(MANIFEST).exists());
     }
 }

@@ -44,7 +44,7 @@ pub mod setup;
 pub mod show;
 pub mod units;
 
-pub use drivers::{encode_and_check, prove, prove_to_bytes, witness};
+pub use drivers::{collect, encode_and_check, prove, prove_to_bytes, witness};
 pub use setup::{Options, ProveError};
 
 /// Writes a certificate through a temporary file and a rename, so a crash

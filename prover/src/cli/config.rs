@@ -51,15 +51,8 @@ pub struct ProveArgs {
     /// Where to write the certificate (its directory must exist).
     #[arg(short, long)]
     pub output: PathBuf,
-    /// Seed of the deterministic search (the same seed gives the same file).
-    #[arg(long, default_value_t = 1)]
-    pub seed: u64,
-    /// Prime factors of |D|, comma-separated ("2,2,5" or "2^2,5"), to claim maximality without factoring.
-    #[arg(long, value_name = "LIST")]
-    pub factors: Option<String>,
-    /// Euler-product cut-off X, in [69, 50000000] (default: chosen so the error term is at most 0.2).
-    #[arg(long, value_name = "X")]
-    pub euler_x: Option<u64>,
+    #[command(flatten)]
+    pub search: SearchArgs,
     /// Certify this class number with order witnesses (classes of exact
     /// orders d_i, independent, and the analytic bound #Cl < 2H) instead
     /// of computing the class group; D < 0. The group is taken cyclic
@@ -85,6 +78,42 @@ pub struct ProveArgs {
     /// Keep relation rounds in DIR and continue from those already there (created if missing); a run interrupted in any way resumes from its last complete round
     #[arg(long, value_name = "DIR", conflicts_with = "claim_class_number")]
     pub resume: Option<PathBuf>,
+}
+
+/// The options that fix a search, and so the key of its relation rounds:
+/// `prove` and `collect` take them alike.
+#[derive(clap::Args)]
+pub struct SearchArgs {
+    /// Seed of the deterministic search (the same seed gives the same file).
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Prime factors of |D|, comma-separated ("2,2,5" or "2^2,5"), to claim maximality without factoring.
+    #[arg(long, value_name = "LIST")]
+    pub factors: Option<String>,
+    /// Euler-product cut-off X, in [69, 50000000] (default: chosen so the error term is at most 0.2).
+    #[arg(long, value_name = "X")]
+    pub euler_x: Option<u64>,
+}
+
+impl SearchArgs {
+    /// Checks `--euler-x` and `--factors` for `|D|` (see [`euler_x`]) and
+    /// gives the options with the factors parsed.
+    pub fn options(&self, abs_d: &Integer) -> Result<Options, String> {
+        if let Some(x) = self.euler_x {
+            euler_x(x, abs_d)?;
+        }
+        let factors = self
+            .factors
+            .as_deref()
+            .map(|s| factor_list("--factors", s, abs_d, "|D|"))
+            .transpose()?;
+        Ok(Options {
+            seed: self.seed,
+            factors,
+            euler_x: self.euler_x,
+            ..Options::default()
+        })
+    }
 }
 
 /// Checks that `D` is a discriminant the prover handles; the message names
@@ -170,29 +199,51 @@ pub fn output_file(path: &Path) -> Result<(), String> {
     writable_dir(dir).map_err(|e| format!("cannot write {}: {e}", path.display()))
 }
 
-/// `--resume DIR`: a directory (created, parents included, when missing)
-/// that takes new files. Whether it holds this run's rounds is checked
-/// when the run opens it (`classcert_prover::checkpoint`).
-pub fn resume_dir(dir: &Path) -> Result<(), String> {
+/// A directory of relation rounds named by option `flag` (`--resume DIR`,
+/// or `collect --into DIR`): created, parents included, when missing, and
+/// taking new files. Whether it holds this run's rounds is checked when
+/// the run opens it (`classcert_prover::checkpoint`).
+pub fn rounds_dir(flag: &str, dir: &Path) -> Result<(), String> {
     if dir.as_os_str().is_empty() {
-        return Err("--resume: the directory path is empty".into());
+        return Err(format!("{flag}: the directory path is empty"));
     }
     match std::fs::metadata(dir) {
         Ok(m) if !m.is_dir() => {
             return Err(format!(
-                "--resume {0}: {0} exists and is not a directory; give a directory for the relation rounds (it is created if missing)",
+                "{flag} {0}: {0} exists and is not a directory; give a directory for the relation rounds (it is created if missing)",
                 dir.display()
             ))
         }
         Ok(_) => {}
         Err(_) => std::fs::create_dir_all(dir).map_err(|e| {
             format!(
-                "--resume {}: the directory cannot be created: {e}",
+                "{flag} {}: the directory cannot be created: {e}",
                 dir.display()
             )
         })?,
     }
-    writable_dir(dir).map_err(|e| format!("--resume {}: {e}", dir.display()))
+    writable_dir(dir).map_err(|e| format!("{flag} {}: {e}", dir.display()))
+}
+
+/// `--euler-x X` for `|D|`: within the verifier's range, and large enough
+/// that twice the error term stays below log 2 (the verifier's rule).
+fn euler_x(x: u64, abs_d: &Integer) -> Result<(), String> {
+    if !(MIN_X..=MAX_EULER_X).contains(&x) {
+        return Err(format!(
+            "--euler-x {x} is out of range: X must lie in [{MIN_X}, {MAX_EULER_X}] (the verifier's limits)"
+        ));
+    }
+    let enough = Interval::int(abs_d)
+        .ln()
+        .and_then(|ld| error_bound(x, &ld))
+        .is_some_and(|e| e.hi.to_f64() * 2.0 < std::f64::consts::LN_2);
+    if !enough {
+        return Err(format!(
+            "--euler-x {x} is too small for this D: the error term of the Euler product must stay below (log 2)/2; X = {} or more will do",
+            choose_x(abs_d, 0.3)
+        ));
+    }
+    Ok(())
 }
 
 /// The primes of a list, each checked not composite, multiplying to `target`.
@@ -241,36 +292,14 @@ impl ProveConfig {
                     "--unconditional is for |D| <= {UNCONDITIONAL_MAX}: its cost grows like sqrt|D|"
                 ));
             }
-            if a.euler_x.is_some() {
+            if a.search.euler_x.is_some() {
                 return Err(
                     "--euler-x does not apply with --unconditional (an exact series replaces the Euler product)"
                         .into(),
                 );
             }
         }
-        if let Some(x) = a.euler_x {
-            if !(MIN_X..=MAX_EULER_X).contains(&x) {
-                return Err(format!(
-                    "--euler-x {x} is out of range: X must lie in [{MIN_X}, {MAX_EULER_X}] (the verifier's limits)"
-                ));
-            }
-            // twice the error term must stay below log 2 (the verifier's rule)
-            let enough = Interval::int(&abs_d)
-                .ln()
-                .and_then(|ld| error_bound(x, &ld))
-                .is_some_and(|e| e.hi.to_f64() * 2.0 < std::f64::consts::LN_2);
-            if !enough {
-                return Err(format!(
-                    "--euler-x {x} is too small for this D: the error term of the Euler product must stay below (log 2)/2; X = {} or more will do",
-                    choose_x(&abs_d, 0.3)
-                ));
-            }
-        }
-        let factors = a
-            .factors
-            .as_deref()
-            .map(|s| factor_list("--factors", s, &abs_d, "|D|"))
-            .transpose()?;
+        let search = a.search.options(&abs_d)?;
         let claim = match a.claim_class_number.as_deref() {
             None => None,
             Some(s) => {
@@ -316,19 +345,16 @@ impl ProveConfig {
         output_file(&a.output)?;
         // last, so that a refusal above leaves no directory behind
         if let Some(dir) = &a.resume {
-            resume_dir(dir)?;
+            rounds_dir("--resume", dir)?;
         }
         Ok(ProveConfig {
             d,
             output: a.output,
             opts: Options {
-                seed: a.seed,
-                factors,
-                euler_x: a.euler_x,
                 unconditional: a.unconditional,
                 force: a.force,
                 resume: a.resume,
-                ..Options::default()
+                ..search
             },
             claim,
         })

@@ -32,8 +32,10 @@ impl Exit {
             ProveError::SearchFailed(_) => Exit::Failed,
             ProveError::SelfCheckFailed(_) => Exit::Internal,
             // the user pointed --resume at the wrong or a damaged directory
+            // (or combine was given directories or rounds that do not agree)
             ProveError::Checkpoint(CheckpointError::Mismatch { .. })
-            | ProveError::Checkpoint(CheckpointError::Corrupt { .. }) => Exit::Usage,
+            | ProveError::Checkpoint(CheckpointError::Corrupt { .. })
+            | ProveError::Checkpoint(CheckpointError::Conflict { .. }) => Exit::Usage,
             // reading or writing it failed during the run
             ProveError::Checkpoint(CheckpointError::Io { .. }) => Exit::Failed,
         }
@@ -44,14 +46,16 @@ pub const EXIT_HELP: &str = "\
 Exit status:
   0  success
   2  usage: bad arguments, an invalid discriminant, an option out of range,
-     an output path that cannot be written, a --resume DIR that is not a
-     directory or cannot be created, a file that is not a certificate
-     (show) -- all checked before any work starts -- a request this prover
-     cannot serve for this D, or a --resume DIR that holds another
-     computation's rounds or a damaged file
+     an output path that cannot be written, a --resume or --into DIR that
+     is not a directory or cannot be created, a file that is not a
+     certificate (show) -- all checked before any work starts -- a request
+     this prover cannot serve for this D, a --resume or collect directory
+     that holds another computation's rounds or a damaged file, or a
+     combine refused (a source of another computation, a round file that
+     fails its check or differs from another copy; nothing is copied)
   3  the claim is refuted: --claim-class-number was shown false
   4  the computation failed: the search gave up, or writing the file or
-     the --resume directory failed
+     the checkpoint directory failed
   5  internal error: the verifier rejected the prover's own certificate
      (a bug; please report it)
   1 is not used.";

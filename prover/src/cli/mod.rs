@@ -7,6 +7,7 @@ mod config;
 mod demo;
 mod exit;
 mod parse;
+mod rounds;
 mod sink;
 
 use clap::{Parser, Subcommand};
@@ -40,6 +41,30 @@ enum Cmd {
         /// No progress on stderr (warnings are still printed).
         #[arg(short, long)]
         quiet: bool,
+    },
+    /// Sieve a range of D's relation rounds into a checkpoint directory, and stop (no proof).
+    ///
+    /// Each round is the same bytes on any machine, so ranges can be
+    /// collected on several machines and merged with combine; prove
+    /// --resume DIR then reads the rounds 0, 1, 2, ... that DIR holds.
+    #[command(after_help = EXIT_HELP)]
+    Collect {
+        #[command(flatten)]
+        args: rounds::CollectArgs,
+        /// No progress on stderr (warnings are still printed).
+        #[arg(short, long)]
+        quiet: bool,
+    },
+    /// Merge checkpoint directories of the same computation into one.
+    ///
+    /// Every round file is checked (its SHA-256, key and round number);
+    /// rounds the target lacks are copied, identical ones skipped. A source
+    /// of another computation, a damaged round or two copies of a round
+    /// that differ refuse the whole merge: nothing is copied.
+    #[command(after_help = EXIT_HELP)]
+    Combine {
+        #[command(flatten)]
+        args: rounds::CombineArgs,
     },
     /// Print what a certificate claims (without checking it).
     #[command(after_help = EXIT_HELP)]
@@ -86,6 +111,8 @@ pub fn main() -> ExitCode {
             Ok(config) => prove(config, quiet),
             Err(e) => fail(Exit::Usage, &e),
         },
+        Cmd::Collect { args, quiet } => rounds::collect(args, quiet),
+        Cmd::Combine { args } => rounds::combine_dirs(args),
         Cmd::Show { file, json } => show_file(&file, json),
         Cmd::Demo { dir, quiet } => demo::run(dir, quiet),
     }

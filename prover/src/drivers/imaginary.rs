@@ -15,7 +15,7 @@ use crate::progress::Progress;
 use crate::relations::forms::FormSearch;
 use crate::relations::siqs::{Params, SiqsSource};
 use crate::relations::{RelationSource, Sparse};
-use crate::setup::{essential_count, setup, Options, ProveError};
+use crate::setup::{essential_count, setup, Options, ProveError, Setup};
 use classcert_format::*;
 use classcert_verifier::math::Form;
 use classcert_verifier::math::Interval;
@@ -32,7 +32,7 @@ const SECOND_SET_ATTEMPTS: u64 = 20_000;
 /// 3.10 s and 2.38 s; 36 digits 7.4 s and 3.1 s; 40 digits 30.1 s and
 /// 15.5 s. Below the switch (every discriminant of the certificate tests)
 /// the form search keeps the certificates it made before.
-const SIEVE_MIN_BITS: u32 = 105;
+pub const SIEVE_MIN_BITS: u32 = 105;
 
 /// The sieve collects relations until they outnumber the factor-base
 /// ideals they name by this many per thousand sieving primes (and by
@@ -97,22 +97,54 @@ fn to_entries(rel: &Sparse) -> Vec<(u32, Integer)> {
         .collect()
 }
 
-/// The certificate body for `D < 0` (`D` already validated).
-pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
+/// The setup every driver shares, with a factor base sized for the sieve
+/// from [`SIEVE_MIN_BITS`] on, and the sieve's parameters there (None
+/// below): what fixes the key of the sieve's rounds, so that `prove` and
+/// `collect` agree on it.
+fn sieve_setup(d: &Integer, opts: &Options) -> Result<(Setup, Option<Params>), ProveError> {
     let abs_d = Integer::from(d.abs_ref());
     let want = if use_sieve(&abs_d) {
         Params::sieving_primes_for(d)
     } else {
         0
     };
-    let mut setup = setup(d, opts, want)?;
+    let setup = setup(d, opts, want)?;
+    let params = use_sieve(&abs_d).then(|| Params::for_discriminant(d, setup.fb.len()));
+    Ok((setup, params))
+}
+
+/// `classcert collect`: sieves the rounds `rounds` of `D`'s sieve that
+/// `dir` lacks and stores them there, exactly as `prove --resume dir`
+/// would (`D < 0` already validated); no proof. Returns the rounds
+/// written and those already there.
+pub fn collect_rounds(
+    d: &Integer,
+    opts: &Options,
+    dir: &std::path::Path,
+    rounds: std::ops::Range<u64>,
+) -> Result<(u64, u64), ProveError> {
+    let (mut setup, params) = sieve_setup(d, opts)?;
+    let Some(params) = params else {
+        return Err(ProveError::Unsupported(format!(
+            "rounds are collected only where the sieve is used, from {SIEVE_MIN_BITS} bits of |D| (about 32 digits); here |D| has {} bits",
+            d.significant_bits()
+        )));
+    };
+    let progress = std::mem::replace(&mut setup.progress, Progress::new(false));
+    let sieve = SiqsSource::new(d, &setup.fb, params, opts.seed);
+    Ok(sieve.fill(dir, rounds, &progress)?)
+}
+
+/// The certificate body for `D < 0` (`D` already validated).
+pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
+    let abs_d = Integer::from(d.abs_ref());
+    // the sieve's own primes are the essential block; the form search
+    // keeps a small one
+    let (mut setup, params) = sieve_setup(d, opts)?;
     let progress = std::mem::replace(&mut setup.progress, Progress::new(false));
     let fb = &setup.fb;
     let n = fb.len();
     let ceiling = setup.ceiling.clone();
-    // the sieve's own primes are the essential block; the form search
-    // keeps a small one
-    let params = use_sieve(&abs_d).then(|| Params::for_discriminant(d, n));
     let sieving = params.is_some();
 
     let k = match &params {

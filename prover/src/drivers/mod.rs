@@ -31,6 +31,27 @@ pub fn prove(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     }
 }
 
+/// `classcert collect`: for `D < 0` on the sieve's path, the rounds
+/// `rounds` of its sieve that `dir` lacks, sieved and stored as
+/// `prove --resume dir` stores them; no proof, and no cost limit (the work
+/// is the range asked for). Returns the rounds written and those already
+/// there.
+pub fn collect(
+    d: &Integer,
+    opts: &Options,
+    dir: &std::path::Path,
+    rounds: std::ops::Range<u64>,
+) -> Result<(u64, u64), ProveError> {
+    validate(d)?;
+    if *d > 0 {
+        return Err(ProveError::Unsupported(
+            "rounds are collected for D < 0 only (the sieve of real orders keeps no rounds yet)"
+                .into(),
+        ));
+    }
+    imaginary::collect_rounds(d, opts, dir, rounds)
+}
+
 /// Proves `D`, encodes the certificate file, and runs the verifier on the
 /// bytes (decoding included) before handing them out.
 pub fn prove_to_bytes(d: &Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {

@@ -1290,15 +1290,11 @@ impl<'a> SiqsSource<'a> {
         let r = first / FAMILIES_PER_ROUND;
         if let Some(c) = &self.checkpoint {
             if r < self.stored {
-                let stored = c.load(r).and_then(|b| {
-                    let path = c.dir().join(crate::checkpoint::round_name(r));
-                    let b = b.ok_or_else(|| CheckpointError::Corrupt {
-                        path: path.clone(),
+                let stored = read_round(&self.siqs, c, r).and_then(|found| {
+                    found.ok_or_else(|| CheckpointError::Corrupt {
+                        path: c.dir().join(crate::checkpoint::round_name(r)),
                         why: "the round vanished while the run was reading it".into(),
-                    })?;
-                    self.siqs
-                        .decode_round(&b, FAMILIES_PER_ROUND)
-                        .map_err(|why| CheckpointError::Corrupt { path, why })
+                    })
                 });
                 match stored {
                     Ok(found) => {
@@ -1330,6 +1326,45 @@ impl<'a> SiqsSource<'a> {
         }
         self.collector.absorb(&self.siqs, found);
         true
+    }
+
+    /// `classcert collect`: sieves the rounds of `rounds` that `dir`
+    /// lacks and stores them there, as a run with `--resume dir` would, and
+    /// hands out no relation. A round already there is checked as a
+    /// resumed run checks it (the file, then every finding by its norm);
+    /// a directory of another run or a round that fails is refused before
+    /// any sieving. Returns the rounds written and those already there.
+    pub fn fill(
+        &self,
+        dir: &std::path::Path,
+        rounds: std::ops::Range<u64>,
+        progress: &crate::progress::Progress,
+    ) -> Result<(u64, u64), CheckpointError> {
+        let (key, what) = self.siqs.run_identity();
+        let c = Checkpoint::open(dir, key, &what)?;
+        let mut missing = Vec::new();
+        for r in rounds.clone() {
+            if read_round(&self.siqs, &c, r)?.is_none() {
+                missing.push(r);
+            }
+        }
+        let kept = rounds.end - rounds.start - missing.len() as u64;
+        progress.phase(&format!(
+            "sieving {} rounds of {} families into {} ({kept} of rounds {}..{} are there already)",
+            missing.len(),
+            FAMILIES_PER_ROUND,
+            dir.display(),
+            rounds.start,
+            rounds.end
+        ));
+        for (done, &r) in missing.iter().enumerate() {
+            let found = self
+                .siqs
+                .round(r * FAMILIES_PER_ROUND, FAMILIES_PER_ROUND, self.threads);
+            c.store(r, &encode_round(&found))?;
+            progress.tick(done as u64 + 1, Some(missing.len() as u64));
+        }
+        Ok((missing.len() as u64, kept))
     }
 
     fn relation(&mut self) -> Option<FoundRelation> {
@@ -1380,6 +1415,24 @@ impl RelationSource for SiqsSource<'_> {
         self.siqs
             .elimination_from(ideal, from..from + ELIMINATION_FAMILIES)
     }
+}
+
+/// Round `r` of `c`, read back and checked by its norms (None when it is
+/// not stored); a round that fails is refused like a damaged file.
+fn read_round(
+    siqs: &Siqs,
+    c: &Checkpoint,
+    r: u64,
+) -> Result<Option<Vec<Vec<Found>>>, CheckpointError> {
+    let Some(bytes) = c.load(r)? else {
+        return Ok(None);
+    };
+    siqs.decode_round(&bytes, FAMILIES_PER_ROUND)
+        .map(Some)
+        .map_err(|why| CheckpointError::Corrupt {
+            path: c.dir().join(crate::checkpoint::round_name(r)),
+            why,
+        })
 }
 
 /// `job(workspace, t)` for `t` in `0..count` on up to `threads` threads,
