@@ -123,6 +123,18 @@ impl Characters {
         &self.det
     }
 
+    /// A character that is an isomorphism `Z^n / Λ(a) → Z/|det a|`, when
+    /// one of them is: its values `c_j` on the unit vectors (`v ↦ v·c mod
+    /// |det a|`). A character of order `δ` has image `Z/δ` (its `c` and `δ`
+    /// are coprime), so one with `δ = |det a|` is onto a group as large as
+    /// the cokernel, hence injective; the cokernel is then cyclic.
+    pub fn cyclic(&self) -> Option<&[Integer]> {
+        self.chars
+            .iter()
+            .find(|(d, _)| *d == self.det)
+            .map(|(_, c)| c.as_slice())
+    }
+
     /// `|image| = Π δ_s / det(I)` with `I = ⟨δ_s e_s, images of e_j⟩ ⊆ Z^t`.
     fn image_size(&self, n: usize) -> Option<Integer> {
         let mut image = self.zero_lattice();

@@ -25,9 +25,11 @@ pub mod derived;
 pub mod dixon;
 pub mod echelon;
 pub mod hnf;
+pub mod lll;
 pub mod matrix;
 pub mod modp;
 pub mod sge;
+pub mod shortcomb;
 pub mod smith;
 pub mod tracked;
 
