@@ -1,5 +1,6 @@
 //! Measures the sieve's yield for one discriminant and one parameter
-//! choice (for tuning `Params::for_discriminant`):
+//! choice (for tuning `Params::for_discriminant`, and `Params::for_real`
+//! when `D > 0`):
 //!   sieve_rate D ROUNDS [PRIMES M [BOUND]]
 //! prints families, full and partial values found and combined relations
 //! per second of one thread. The factor base reaches Bach's bound
@@ -26,16 +27,26 @@ fn main() {
         .map(|b| b.parse().expect("bound"))
         .unwrap_or((6.0 * l * l) as u64);
     let fb = FactorBase::new(&d, &primes_up_to(bound), bound, &[]);
-    let mut params = Params::for_discriminant(&d, fb.len());
+    let real = d > 0;
+    let mut params = if real {
+        Params::for_real(&d, fb.len())
+    } else {
+        Params::for_discriminant(&d, fb.len())
+    };
     if args.len() >= 4 {
         let base = Params {
             primes: args[2].parse().expect("primes"),
             m: args[3].parse().expect("m"),
             ..params.clone()
         };
-        // a and s follow m as in for_discriminant
+        // a and s follow m as in for_discriminant and for_real
         let half = d.significant_bits() as f64 / 2.0;
-        let a_bits = (half - (2.0 * base.m as f64).log2()).max(8.0);
+        let a_bits = if real {
+            half - 0.5 - (base.m as f64).log2()
+        } else {
+            half - (2.0 * base.m as f64).log2()
+        }
+        .max(8.0);
         params = Params {
             a_bits: a_bits.round() as u32,
             s: ((a_bits / 11.0).round() as u32).max(2),

@@ -175,14 +175,21 @@ impl Params {
     /// the `bench_d N real` discriminants at 25–40 digits: at 30 digits 250,
     /// 300 and 400 primes gave certificates of the same size (see
     /// `drivers/real.rs`); 400 primes at 40 digits left special-q
-    /// eliminations without a relation.
+    /// eliminations without a relation. The row for 190 bits was measured
+    /// on the 60-digit discriminant (198 bits; one thread, full relations
+    /// per second: 700 primes 33, 1500 primes 308, 2500 primes 874, 3600
+    /// primes 1248; 700 primes left a special-q elimination at p = 12281
+    /// without a relation; 1100 and 1500 primes took 84 s and 36 s for the
+    /// whole proof and left 256 and 290 dense columns in the essential
+    /// block, which decide the certificate's size).
     pub fn for_real(d: &Integer, n: usize) -> Params {
         // (bits of D, sieving primes, half-width)
-        const TABLE: [(u32, usize, u32); 4] = [
+        const TABLE: [(u32, usize, u32); 5] = [
             (70, 300, 1 << 14),
             (100, 400, 1 << 14),
             (116, 500, 1 << 15),
             (133, 700, 1 << 15),
+            (190, 1500, 1 << 15),
         ];
         let bits = d.significant_bits();
         let row = TABLE
@@ -419,6 +426,11 @@ impl<'a> Siqs<'a> {
         }
         let m = self.params.m as u64;
         let kp = self.sieving_primes();
+        // a special prime with its companions may make one prime more
+        // than the parameters' s
+        if w.deltas.len() < q.len() {
+            w.deltas.resize(q.len(), vec![0; kp]);
+        }
         for i in 0..kp {
             let p = fb.primes[i];
             if p < SMALL_PRIME || q.contains(&i) {
