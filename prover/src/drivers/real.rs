@@ -25,10 +25,11 @@
 //! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
 //! of their logarithms ([`crate::units::unit_gcd`]).
 
-use super::common::{eliminations, RELATION_ATTEMPTS};
+use super::common::{eliminations, ELIMINATION_ATTEMPTS, ELIMINATION_CHUNK, RELATION_ATTEMPTS};
 use crate::linalg::derived::Derived;
 use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
 use crate::linalg::sge::{Eliminated, Sge};
+use crate::linalg::shortcomb::Block;
 use crate::linalg::{cyclic_generators, smith, tracked};
 use crate::progress::Progress;
 use crate::relations::elements::ElementSearch;
@@ -85,6 +86,58 @@ const KERNEL_PER_ROUND: usize = 32;
 
 /// Columns beyond the generators that may be left to the echelon block.
 const DENSE_SLACK: usize = 4;
+
+/// `D` of at least this many bits (about 45 digits, where the sieve's
+/// table gains rows) takes the dense block's rows in short combinations
+/// ([`ShortAlgebra`]), harvests the large primes' eliminations from the
+/// sieve's relations and keeps only the raw relations the certificate
+/// names. Below it (every size measured before) the echelon form keeps the
+/// certificates it made before.
+pub const SHORT_MIN_BITS: u32 = 150;
+
+/// Rows beyond the dense block's width whose combinations reach its
+/// Hermite rows ([`Block`]), at least: each is stated in the certificate,
+/// and more of them shorten every coefficient. Measured at 50 digits (146
+/// columns): 15, 20, 30, 45 and 60 gave about 262, 263, 270, 280 and 298 KB
+/// for the block's rows and combinations.
+const SHORT_EXTRA: usize = 24;
+
+/// A wider block takes one more row per this many columns, when that is
+/// more than [`SHORT_EXTRA`]. Measured at 60 digits (290 columns, the
+/// `bench_d 60 real` discriminant): 24, 48, 64 and 96 more rows gave 826,
+/// 743, 763 and 830 KB for the combinations of its Hermite rows (the
+/// coefficients over the chosen independent rows stay near 17 bits
+/// whatever the number).
+const SHORT_EXTRA_PER: usize = 6;
+
+/// Rows on the essential block the short path gathers before its last
+/// solve, once `h* R*` is confirmed, per essential column; 0 keeps the
+/// rule that stops when the dense block no longer shrinks. Each row the
+/// dense block keeps costs a combination of about as many terms as it has
+/// columns, so its share of the certificate goes as the square of its
+/// width; more rows leave more columns a light unit pivot. Measured at 60
+/// digits (1500 columns; the dense block after 5472, 9472, 13472, 17472,
+/// 21472, 25472 and 29472 rows: 293, 265, 246, 243, 220, 224 and 210
+/// columns; certificates of 2.55 MB when the block stopped shrinking at
+/// 6222 rows, 2.35 MB at 10722 rows and 2.03 MB at 29472).
+fn spare_rows_per_column(bits: u32) -> usize {
+    if bits >= 190 {
+        20
+    } else {
+        0
+    }
+}
+
+/// The block's kernel vectors offered to the unit search: the last of its
+/// reduced lattice, which are the long ones (the short ones are trivial
+/// units).
+const KERNEL_UNITS: usize = 2;
+
+/// Hermite rows represented first and then taken in as rows of large
+/// height ([`Block::represent`]). Measured at 50 digits with 30 more rows:
+/// 0, 2, 4 and 8 left the later coefficients at about 70, 25, 16 and 14
+/// bits.
+const HEIGHTS: usize = 6;
 
 /// The essential block solved: unit pivots first, by the structured
 /// elimination both drivers share ([`Sge`]; least Markowitz cost keeps the
@@ -199,11 +252,334 @@ impl Algebra {
             .all(|&c| self.dense.pivots[c].is_some())
     }
 
+    /// The echelon form Hermite-reduced (each pivot named once reduced),
+    /// and what the certificate's lattice section is built from:
+    /// generators (dense columns with a pivot above 1), the rows of `H`,
+    /// the eliminations (dense columns from the last back, then the unit
+    /// pivots, last first) and the derived relations.
+    fn finish(self) -> Finished {
+        let mut ech = self.dense;
+        let mut derived = self.derived;
+        ech.reduce(&mut |p| derived.name(p));
+        let gens: Vec<usize> = self
+            .dense_cols
+            .iter()
+            .copied()
+            .filter(|&c| ech.diagonal(c) > 1)
+            .collect();
+        let pivot = |c: usize| ech.pivots[c].clone().expect("full rank");
+        let mut h_rows: Vec<Row> = Vec::new();
+        for &g in &gens {
+            let mut row = pivot(g);
+            for &c in self.dense_cols.iter().filter(|&&c| c > g) {
+                if gens.contains(&c) {
+                    continue;
+                }
+                if let Some(e) = row.v.get(&c).cloned() {
+                    row.sub_mul(&e, &pivot(c));
+                }
+            }
+            h_rows.push(row);
+        }
+        let elimination_rows: Vec<(usize, Row)> = self
+            .dense_cols
+            .iter()
+            .rev()
+            .filter(|c| !gens.contains(c))
+            .map(|&c| (c, pivot(c)))
+            .chain(self.unit_pivots.iter().rev().cloned())
+            .collect();
+        Finished {
+            gens,
+            h_rows,
+            elimination_rows,
+            derived,
+        }
+    }
+
     fn h_star(&self) -> Integer {
         self.dense_cols
             .iter()
             .map(|&c| self.dense.diagonal(c))
             .product()
+    }
+}
+
+/// The essential block solved for the sieve's larger sizes: unit pivots
+/// by the structured elimination as in [`Algebra`], then the dense block
+/// as a [`Block`]: its Hermite rows and its kernel vectors in short
+/// combinations of a few of its rows, which are named.
+struct ShortAlgebra {
+    unit_pivots: Vec<(usize, Row)>,
+    dense_cols: Vec<usize>,
+    derived: Derived,
+    /// `None` when the dense block's rows do not have full rank (or no
+    /// choice of them had a cyclic cokernel).
+    block: Option<Block>,
+    /// The rows the block uses, named (each combination a single term).
+    used: Vec<Row>,
+    /// Kernel vectors over raw and derived relations: the rows that
+    /// vanished in the elimination, then the block's.
+    kernel: Vec<Vector>,
+    vanished: usize,
+}
+
+/// `Σ coef·rows[pos].combo` (the rows named, so one term each).
+fn combine(rows: &[&Row], c: &[(usize, Integer)]) -> Vector {
+    let mut out = Vector::new();
+    for (pos, coef) in c {
+        axpy(&mut out, coef, &rows[*pos].combo);
+    }
+    out
+}
+
+impl ShortAlgebra {
+    fn solve(k: usize, raw: usize, rows: Vec<Row>) -> ShortAlgebra {
+        let rows: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
+        let mut derived = Derived::new(raw);
+        let Eliminated {
+            sge,
+            mut active,
+            vanished,
+        } = match tracked::eliminate(k, &rows, &mut derived) {
+            Some(e) => e,
+            None => Sge::run_with(k, rows, &mut |p| derived.name(p)),
+        };
+        let dense_cols = sge.remaining();
+        let mut kernel: Vec<Vector> = vanished
+            .into_iter()
+            .map(|r| r.combo)
+            .filter(|c| !c.is_empty())
+            .collect();
+        let vanished = kernel.len();
+        let unit_pivots = sge
+            .pivots
+            .into_iter()
+            .map(|(c, p)| {
+                if p.v[&c] < 0 {
+                    (c, p.lin(&Integer::from(-1), &p, &Integer::new()))
+                } else {
+                    (c, p)
+                }
+            })
+            .collect();
+        // rows with short combinations and small entries first: those
+        // chosen are stated in full
+        let weight = |r: &Row| -> (usize, Integer) {
+            (r.combo.len(), r.v.values().map(|x| x.clone().abs()).sum())
+        };
+        active.sort_by_cached_key(weight);
+        let dense: Option<Vec<Vec<i64>>> = active
+            .iter()
+            .map(|r| {
+                dense_cols
+                    .iter()
+                    .map(|c| r.v.get(c).map_or(Some(0), |x| x.to_i64()))
+                    .collect()
+            })
+            .collect();
+        let kd = dense_cols.len();
+        let extra = SHORT_EXTRA
+            .max(kd / SHORT_EXTRA_PER)
+            .min(active.len().saturating_sub(kd));
+        let block = dense.and_then(|m| Block::new(&m, kd, extra));
+        let mut used = Vec::new();
+        if let Some(b) = &block {
+            for &i in &b.used {
+                let mut r = active[i].clone();
+                derived.name(&mut r);
+                used.push(r);
+            }
+            let refs: Vec<&Row> = used.iter().collect();
+            // The reduced lattice's vectors are short, and a short kernel
+            // vector is the trivial unit: its logarithm, a sum of
+            // coefficients times heights of some 2^6, lies far below R.
+            // One direction is as long as R over those heights, and its
+            // last vectors are the ones that reach units: the last
+            // [`KERNEL_UNITS`], last first.
+            if let Some(ks) = b.kernel() {
+                kernel.extend(
+                    ks.iter()
+                        .rev()
+                        .take(KERNEL_UNITS)
+                        .map(|c| combine(&refs, c)),
+                );
+            }
+        }
+        ShortAlgebra {
+            unit_pivots,
+            dense_cols,
+            derived,
+            block,
+            used,
+            kernel,
+            vanished,
+        }
+    }
+
+    fn full_rank(&self) -> bool {
+        self.block.is_some()
+    }
+
+    fn h_star(&self) -> Integer {
+        self.block
+            .as_ref()
+            .map_or_else(Integer::new, |b| b.index.clone())
+    }
+
+    /// Kernel vector `j` over the raw relations.
+    fn kernel_vector(&mut self, j: usize) -> Vector {
+        self.derived.expand(&self.kernel[j])
+    }
+
+    /// As [`Algebra::cheapest`].
+    fn cheapest(&mut self, range: std::ops::Range<usize>, count: usize) -> Vec<usize> {
+        let mut order: Vec<(u64, usize)> = range
+            .map(|j| {
+                let bits: u64 = self
+                    .kernel_vector(j)
+                    .values()
+                    .map(|e| u64::from(e.significant_bits()) + 1)
+                    .sum();
+                (bits, j)
+            })
+            .collect();
+        order.sort_unstable();
+        order.into_iter().take(count).map(|(_, j)| j).collect()
+    }
+
+    /// The generators, the rows of `H` over the essential block, the
+    /// eliminations (dense columns from the last back, then the unit
+    /// pivots, last first) and the derived relations they rest on. The
+    /// Hermite rows taken in as rows of large height are named too, in
+    /// order.
+    fn finish(mut self) -> Result<Finished, ProveError> {
+        let failed = || ProveError::SearchFailed("the dense block's combinations failed".into());
+        let mut block = self.block.take().ok_or_else(failed)?;
+        let herm = block.hermite().ok_or_else(failed)?;
+        let kd = self.dense_cols.len();
+        let combos = block.represent(&herm, HEIGHTS).ok_or_else(failed)?;
+        let mut targets: Vec<Row> = Vec::with_capacity(kd);
+        for (j, (h, c)) in herm.iter().zip(&combos).enumerate() {
+            let v: Vector = h
+                .iter()
+                .enumerate()
+                .filter(|(_, x)| !x.is_zero())
+                .map(|(i, x)| (self.dense_cols[i], x.clone()))
+                .collect();
+            let refs: Vec<&Row> = self.used.iter().chain(&targets).collect();
+            let mut row = Row {
+                v,
+                combo: combine(&refs, c),
+            };
+            if j < HEIGHTS {
+                self.derived.name(&mut row);
+            }
+            targets.push(row);
+        }
+        let gpos: Vec<usize> = (0..kd).filter(|&j| herm[j][j] > 1).collect();
+        let gens: Vec<usize> = gpos.iter().map(|&j| self.dense_cols[j]).collect();
+        let h_rows: Vec<Row> = gpos.iter().map(|&j| targets[j].clone()).collect();
+        let elimination_rows: Vec<(usize, Row)> = (0..kd)
+            .rev()
+            .filter(|j| !gpos.contains(j))
+            .map(|j| (self.dense_cols[j], targets[j].clone()))
+            .chain(self.unit_pivots.iter().rev().cloned())
+            .collect();
+        Ok(Finished {
+            gens,
+            h_rows,
+            elimination_rows,
+            derived: self.derived,
+        })
+    }
+}
+
+/// What the certificate's lattice section is built from.
+struct Finished {
+    gens: Vec<usize>,
+    h_rows: Vec<Row>,
+    elimination_rows: Vec<(usize, Row)>,
+    derived: Derived,
+}
+
+/// The essential block solved, by the echelon form or in short
+/// combinations.
+enum Solved {
+    Echelon(Algebra),
+    Short(ShortAlgebra),
+}
+
+impl Solved {
+    fn full_rank(&self) -> bool {
+        match self {
+            Solved::Echelon(a) => a.full_rank(),
+            Solved::Short(a) => a.full_rank(),
+        }
+    }
+
+    fn kernel_len(&self) -> usize {
+        match self {
+            Solved::Echelon(a) => a.kernel_len(),
+            Solved::Short(a) => a.kernel.len(),
+        }
+    }
+
+    /// How many of the kernel vectors are rows that vanished (offered
+    /// first).
+    fn vanished(&self) -> usize {
+        match self {
+            Solved::Echelon(a) => a.dense.kernel.len(),
+            Solved::Short(a) => a.vanished,
+        }
+    }
+
+    fn kernel_vector(&mut self, j: usize) -> Vector {
+        match self {
+            Solved::Echelon(a) => a.kernel_vector(j),
+            Solved::Short(a) => a.kernel_vector(j),
+        }
+    }
+
+    fn cheapest(&mut self, range: std::ops::Range<usize>, count: usize) -> Vec<usize> {
+        match self {
+            Solved::Echelon(a) => a.cheapest(range, count),
+            Solved::Short(a) => a.cheapest(range, count),
+        }
+    }
+
+    fn h_star(&self) -> Integer {
+        match self {
+            Solved::Echelon(a) => a.h_star(),
+            Solved::Short(a) => a.h_star(),
+        }
+    }
+
+    fn forget_expansions(&mut self) {
+        match self {
+            Solved::Echelon(a) => a.derived.forget_expansions(),
+            Solved::Short(a) => a.derived.forget_expansions(),
+        }
+    }
+
+    fn dense_len(&self) -> usize {
+        match self {
+            Solved::Echelon(a) => a.dense_cols.len(),
+            Solved::Short(a) => a.dense_cols.len(),
+        }
+    }
+
+    /// Dense columns whose pivot is above 1.
+    fn dense_gens(&self) -> usize {
+        match self {
+            Solved::Echelon(a) => a
+                .dense_cols
+                .iter()
+                .filter(|&&c| a.dense.diagonal(c) > 1)
+                .count(),
+            // every column of the block costs combinations: none is cheap
+            Solved::Short(_) => 0,
+        }
     }
 }
 
@@ -218,6 +594,114 @@ fn covers(rows: &[Row], k: usize) -> bool {
         }
     }
     seen.into_iter().all(|s| s)
+}
+
+/// Raw relation `j` on the essential block `0..k`: its ideals beyond the
+/// block replaced by their eliminations, largest first, with the
+/// combination of raw relations that gives it.
+fn substitute(j: usize, raws: &[Raw], elim_of: &[Option<usize>], k: usize) -> Row {
+    let mut v: Vector = raws[j]
+        .entries
+        .iter()
+        .map(|(i, e)| (*i, Integer::from(*e)))
+        .collect();
+    let mut combo = Vector::from([(j, Integer::from(1))]);
+    while let Some((&c, e)) = v.iter().next_back() {
+        if c < k {
+            break;
+        }
+        let e = e.clone();
+        let Some(r) = elim_of[c] else { break };
+        let rv: Vector = raws[r]
+            .entries
+            .iter()
+            .map(|(i, x)| (*i, Integer::from(*x)))
+            .collect();
+        let m = Integer::from(-&e);
+        axpy(&mut v, &m, &rv);
+        axpy(&mut combo, &m, &Vector::from([(r, Integer::from(1))]));
+    }
+    Row { v, combo }
+}
+
+/// The ideal a relation of the sieve eliminates, if any: its largest
+/// index, when that lies beyond the essential block `0..k` and its
+/// exponent there is `±1` (its support then lies below it, and the
+/// eliminations are checked in increasing order).
+fn eliminates(rel: &FoundRelation, k: usize) -> Option<usize> {
+    let (&i, &e) = rel.exponents.iter().next_back()?;
+    (i >= k && e.abs() == 1).then_some(i)
+}
+
+/// `rel` with the sign that makes its exponent at `i` `+1`: `−ᾱ = (−x +
+/// y√D)/2` generates the conjugate ideal, whose exponents are the negated
+/// ones.
+fn oriented(mut rel: FoundRelation, i: usize) -> FoundRelation {
+    if rel.exponents.get(&i) == Some(&-1) {
+        rel.exponents.values_mut().for_each(|e| *e = -*e);
+        if let Some(el) = rel.element.as_mut() {
+            el.x = -el.x.clone();
+        }
+    }
+    rel
+}
+
+/// The terms of every combination in `lattice`: its eliminations', its
+/// derived relations' and its rows of `H`.
+fn all_terms(lattice: &mut Lattice) -> Vec<&mut Vec<(u32, Integer)>> {
+    let mut out = Vec::new();
+    let relations = lattice
+        .eliminations
+        .iter_mut()
+        .map(|e| &mut e.relation)
+        .chain(lattice.derived_relations.iter_mut().flatten());
+    for r in relations {
+        if let Witness::Combination { terms } = &mut r.witness {
+            out.push(terms);
+        }
+    }
+    if let Witness::Combinations { rows } = &mut lattice.relation_witness {
+        out.extend(rows.iter_mut());
+    }
+    out
+}
+
+/// Drops the raw relations that no combination names and renumbers the
+/// rest, and the derived relations after them (the order is kept, so terms
+/// stay increasing). The sieve hands out more relations than the
+/// certificate rests on: those spent on the unit search, and those that
+/// only made the structured elimination's choice.
+fn drop_unnamed_raws(lattice: &mut Lattice) {
+    let Some(raw) = lattice.raw_relations.take() else {
+        return;
+    };
+    let r = raw.len();
+    let mut named = vec![false; r];
+    for terms in all_terms(lattice) {
+        for (i, _) in terms.iter() {
+            if let Some(slot) = named.get_mut(*i as usize) {
+                *slot = true;
+            }
+        }
+    }
+    let mut new_index = vec![0u32; r];
+    let mut kept = Vec::new();
+    for (i, rel) in raw.into_iter().enumerate() {
+        if named[i] {
+            new_index[i] = kept.len() as u32;
+            kept.push(rel);
+        }
+    }
+    let shift = (r - kept.len()) as u32;
+    for terms in all_terms(lattice) {
+        for (i, _) in terms.iter_mut() {
+            *i = match new_index.get(*i as usize) {
+                Some(&j) => j,
+                None => *i - shift,
+            };
+        }
+    }
+    lattice.raw_relations = Some(kept);
 }
 
 fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
@@ -235,6 +719,8 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         None => essential_count(fb, d),
     };
     let sieving = params.is_some();
+    // the larger sieve sizes: short combinations, eliminations harvested
+    let short = sieving && d.significant_bits() >= SHORT_MIN_BITS;
     let first_batch = match &params {
         Some(_) => k * SIEVE_FIRST_PERCENT / 100,
         None => k.max(8),
@@ -254,9 +740,11 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     };
     let mut raws: Vec<Raw> = Vec::new();
     let mut elim_of: Vec<Option<usize>> = vec![None; n];
-    for (i, rel) in (k..n).zip(eliminations(source, fb, k, &progress)?) {
-        elim_of[i] = Some(raws.len());
-        raws.push(Raw::from_found(rel)?);
+    if !short {
+        for (i, rel) in (k..n).zip(eliminations(source, fb, k, &progress)?) {
+            elim_of[i] = Some(raws.len());
+            raws.push(Raw::from_found(rel)?);
+        }
     }
     progress.phase("relations on the essential block, until h* R* is confirmed");
     // ramified primes: (p) = P^2, witness α = p
@@ -272,32 +760,10 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     }
 
     // The essential block: substitute the eliminations, then echelon form.
-    let substitute = |j: usize, raws: &[Raw]| -> Row {
-        let mut v: Vector = raws[j]
-            .entries
-            .iter()
-            .map(|(i, e)| (*i, Integer::from(*e)))
-            .collect();
-        let mut combo = Vector::from([(j, Integer::from(1))]);
-        while let Some((&c, e)) = v.iter().next_back() {
-            if c < k {
-                break;
-            }
-            let e = e.clone();
-            let Some(r) = elim_of[c] else { break };
-            let rv: Vector = raws[r]
-                .entries
-                .iter()
-                .map(|(i, x)| (*i, Integer::from(*x)))
-                .collect();
-            let m = Integer::from(-&e);
-            axpy(&mut v, &m, &rv);
-            axpy(&mut combo, &m, &Vector::from([(r, Integer::from(1))]));
-        }
-        Row { v, combo }
-    };
-    let mut rows: Vec<Row> = ((n - k)..raws.len())
-        .map(|j| substitute(j, &raws))
+    // (the eliminations come first when they are found first)
+    let first_row = if short { 0 } else { n - k };
+    let mut rows: Vec<Row> = (first_row..raws.len())
+        .map(|j| substitute(j, &raws, &elim_of, k))
         .collect();
     let factors = |raws: &[Raw]| -> Vec<Factor> {
         raws.iter()
@@ -324,6 +790,11 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let mut batch = first_batch;
     // the sieve path: the dense block's size after the previous solve
     let mut last_dense: Option<usize> = None;
+    let spare_rows = if short {
+        spare_rows_per_column(d.significant_bits()) * k
+    } else {
+        0
+    };
     let alg = loop {
         let found = source.relations(batch, RELATION_ATTEMPTS).relations;
         if found.len() < batch {
@@ -334,10 +805,69 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 "relation search exhausted its attempts".into(),
             ));
         }
-        for rel in found {
-            raws.push(Raw::from_found(rel)?);
-            rows.push(substitute(raws.len() - 1, &raws));
-            progress.tick(raws.len() as u64, None);
+        if short && raws.len() <= k {
+            // The first batch: each relation whose largest ideal lies
+            // beyond the essential block with exponent ±1 eliminates it (the
+            // first such one, in order); a special-q relation for each
+            // ideal left.
+            let first = raws.len();
+            // the lightest candidate for each ideal (the first on a tie):
+            // its entries are stated twice, as a raw relation and as the
+            // elimination
+            let mut best: BTreeMap<usize, usize> = BTreeMap::new();
+            for (t, rel) in found.iter().enumerate() {
+                if let Some(i) = eliminates(rel, k) {
+                    let e = best.entry(i).or_insert(t);
+                    if rel.exponents.len() < found[*e].exponents.len() {
+                        *e = t;
+                    }
+                }
+            }
+            let mut rest = Vec::with_capacity(found.len());
+            for (t, rel) in found.into_iter().enumerate() {
+                match eliminates(&rel, k).filter(|i| best.get(i) == Some(&t)) {
+                    Some(i) => {
+                        elim_of[i] = Some(raws.len());
+                        raws.push(Raw::from_found(oriented(rel, i))?);
+                    }
+                    None => rest.push(rel),
+                }
+            }
+            let missing: Vec<usize> = (k..n).filter(|&i| elim_of[i].is_none()).collect();
+            progress.phase(&format!(
+                "{} relations eliminate {} of the {} ideals beyond the essential block: special-q relations for the other {}",
+                raws.len() - first + rest.len(),
+                n - k - missing.len(),
+                n - k,
+                missing.len()
+            ));
+            for (t, chunk) in missing.chunks(ELIMINATION_CHUNK).enumerate() {
+                progress.tick((t * ELIMINATION_CHUNK) as u64, Some(missing.len() as u64));
+                for (&i, e) in chunk
+                    .iter()
+                    .zip(source.eliminations_for(chunk, ELIMINATION_ATTEMPTS))
+                {
+                    let Some(e) = e else {
+                        return Err(ProveError::SearchFailed(format!(
+                            "no elimination relation found for p = {}",
+                            fb.primes[i]
+                        )));
+                    };
+                    elim_of[i] = Some(raws.len());
+                    raws.push(Raw::from_found(e)?);
+                }
+            }
+            progress.phase("relations on the essential block, until h* R* is confirmed");
+            for rel in rest {
+                raws.push(Raw::from_found(rel)?);
+                rows.push(substitute(raws.len() - 1, &raws, &elim_of, k));
+            }
+        } else {
+            for rel in found {
+                raws.push(Raw::from_found(rel)?);
+                rows.push(substitute(raws.len() - 1, &raws, &elim_of, k));
+                progress.tick(raws.len() as u64, None);
+            }
         }
         batch = (k / 4).max(4);
         if raws.len() > max_relations + n {
@@ -351,7 +881,11 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         if sieving && !covers(&rows, k) {
             continue;
         }
-        let mut alg = Algebra::solve(k, raws.len(), rows.clone());
+        let mut alg = if short {
+            Solved::Short(ShortAlgebra::solve(k, raws.len(), rows.clone()))
+        } else {
+            Solved::Echelon(Algebra::solve(k, raws.len(), rows.clone()))
+        };
         if !alg.full_rank() || alg.kernel_len() == 0 {
             continue;
         }
@@ -386,7 +920,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 // 30 to 45 times their coefficient bits at 30 and 40
                 // digits, every one of them, and are reduced only if the
                 // vanished rows do not do.
-                let vanished = alg.dense.kernel.len();
+                let vanished = alg.vanished();
                 let mut offered = 0;
                 for range in [0..vanished, vanished..alg.kernel_len()] {
                     if confirmed || offered == KERNEL_PER_ROUND {
@@ -420,54 +954,44 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 }
                 confirmed = unit.as_ref().is_some_and(below_ceiling);
             }
-            alg.derived.forget_expansions();
+            alg.forget_expansions();
             if unit.is_none() {
                 continue;
             }
         }
+        if spare_rows > 0 && confirmed {
+            if rows.len() < spare_rows {
+                batch = spare_rows - rows.len();
+                progress.phase(&format!(
+                    "h* R* confirmed: {batch} more relations to shrink the dense block of {} columns",
+                    alg.dense_len()
+                ));
+                continue;
+            }
+            break alg;
+        }
         // Columns left to the echelon block carry long combinations into
         // the certificate; more relations give more unit pivots.
-        let dense_gens = alg
-            .dense_cols
-            .iter()
-            .filter(|&&c| alg.dense.diagonal(c) > 1)
-            .count();
+        let dense_gens = alg.dense_gens();
         // the sieve's relations leave a few dozen columns whatever their
         // number: stop once the block no longer shrinks
-        let stalled = sieving && last_dense.is_some_and(|l| alg.dense_cols.len() >= l);
-        last_dense = Some(alg.dense_cols.len());
-        let dense_ok = alg.dense_cols.len() <= dense_gens + DENSE_SLACK
-            || raws.len() > dense_budget + n
-            || stalled;
+        let stalled = sieving && last_dense.is_some_and(|l| alg.dense_len() >= l);
+        last_dense = Some(alg.dense_len());
+        let dense_ok =
+            alg.dense_len() <= dense_gens + DENSE_SLACK || raws.len() > dense_budget + n || stalled;
         if confirmed && dense_ok {
             break alg;
         }
     };
-    let mut ech = alg.dense;
-    let mut derived = alg.derived;
-    ech.reduce(&mut |p| derived.name(p));
-
-    // Generators: dense columns whose pivot is > 1.
-    let gens: Vec<usize> = alg
-        .dense_cols
-        .iter()
-        .copied()
-        .filter(|&c| ech.diagonal(c) > 1)
-        .collect();
-    let pivot = |c: usize| ech.pivots[c].clone().expect("full rank");
-    let mut h_rows: Vec<Row> = Vec::new();
-    for &g in &gens {
-        let mut row = pivot(g);
-        for &c in alg.dense_cols.iter().filter(|&&c| c > g) {
-            if gens.contains(&c) {
-                continue;
-            }
-            if let Some(e) = row.v.get(&c).cloned() {
-                row.sub_mul(&e, &pivot(c));
-            }
-        }
-        h_rows.push(row);
-    }
+    let Finished {
+        gens,
+        h_rows,
+        elimination_rows,
+        derived,
+    } = match alg {
+        Solved::Echelon(alg) => alg.finish(),
+        Solved::Short(alg) => alg.finish()?,
+    };
     let h_g: Vec<Vec<Integer>> = h_rows
         .iter()
         .map(|r| {
@@ -478,14 +1002,6 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         .collect();
     let sm = smith(&h_g).ok_or_else(|| ProveError::SearchFailed("Smith form failed".into()))?;
     let mut eliminations = Vec::new();
-    let elimination_rows: Vec<(usize, Row)> = alg
-        .dense_cols
-        .iter()
-        .rev()
-        .filter(|c| !gens.contains(c))
-        .map(|&c| (c, pivot(c)))
-        .chain(alg.unit_pivots.iter().rev().cloned())
-        .collect();
     // the derived relations these combinations rest on
     let kept = derived.keep(
         elimination_rows
@@ -566,7 +1082,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         invariants,
         generators,
     };
-    let lattice = Lattice {
+    let mut lattice = Lattice {
         generators: gens.iter().map(|&g| g as u32).collect(),
         relations: h_g,
         relation_witness: Witness::Combinations {
@@ -587,6 +1103,9 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
                 .collect()
         }),
     };
+    if short {
+        drop_unnamed_raws(&mut lattice);
+    }
     let units = Units {
         steps,
         norm: if chain.norm_negative { -1 } else { 1 },
