@@ -507,7 +507,7 @@ struct Finished {
 /// combinations.
 enum Solved {
     Echelon(Algebra),
-    Short(ShortAlgebra),
+    Short(Box<ShortAlgebra>),
 }
 
 impl Solved {
@@ -882,7 +882,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             continue;
         }
         let mut alg = if short {
-            Solved::Short(ShortAlgebra::solve(k, raws.len(), rows.clone()))
+            Solved::Short(Box::new(ShortAlgebra::solve(k, raws.len(), rows.clone())))
         } else {
             Solved::Echelon(Algebra::solve(k, raws.len(), rows.clone()))
         };
