@@ -118,7 +118,7 @@ pub(crate) fn compute_with(
         if ch == 0 {
             continue;
         }
-        let lnp = Interval::u64(p).ln()?;
+        let lnp = Interval::ln_int(p)?;
         let mut n = p;
         let mut m = 1u64;
         let mut sign = ch;

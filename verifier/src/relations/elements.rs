@@ -42,19 +42,30 @@ pub(crate) fn check_raw(
     k: usize,
     rel: &Relation,
 ) -> Check<bool> {
-    let bad = |why: String| {
-        reject(
-            Reason::RelationWitnessInvalid,
-            format!("raw relation {k}: {why}"),
-        )
-    };
     let Witness::Element { x, y } = &rel.witness else {
         return reject(
             Reason::WitnessKind,
             format!("raw relation {k} must carry an element witness"),
         );
     };
-    if rel.entries.len() > MAX_RELATION_ENTRIES {
+    let entries: Vec<(u32, &Integer)> = rel.entries.iter().map(|(i, e)| (*i, e)).collect();
+    check_element(d, ideal, &format!("raw relation {k}"), &entries, x, y)
+}
+
+/// Checks that `α = (x + y sqrt D)/2` generates the ideal (*) of
+/// `entries` (sparse, increasing indices); returns whether `N(α) < 0`.
+/// Either sign of `D`: for `D < 0` an elimination may carry its element
+/// (a sieved relation, `docs/certificates.md` section 2).
+pub(crate) fn check_element(
+    d: &Integer,
+    ideal: &dyn Fn(u32) -> Option<(u64, u64)>,
+    what: &str,
+    entries: &[(u32, &Integer)],
+    x: &Integer,
+    y: &Integer,
+) -> Check<bool> {
+    let bad = |why: String| reject(Reason::RelationWitnessInvalid, format!("{what}: {why}"));
+    if entries.len() > MAX_RELATION_ENTRIES {
         return reject(Reason::OverLimit, "a relation has too many entries");
     }
     if x.significant_bits() > MAX_ENTRY_BITS || y.significant_bits() > MAX_ENTRY_BITS {
@@ -70,12 +81,12 @@ pub(crate) fn check_raw(
     }
     let negative = norm < 0;
     let mut prev: Option<u32> = None;
-    for (i, e) in &rel.entries {
-        if prev.is_some_and(|q| q >= *i) || e.is_zero() {
+    for &(i, e) in entries {
+        if prev.is_some_and(|q| q >= i) || e.is_zero() {
             return bad("entries must be nonzero and in increasing index order".into());
         }
-        prev = Some(*i);
-        let Some((p, b)) = ideal(*i) else {
+        prev = Some(i);
+        let Some((p, b)) = ideal(i) else {
             return bad(format!("index {i} is outside the factor base"));
         };
         // |e| log p <= log |N| keeps p^|e| no larger than the norm.
@@ -87,11 +98,25 @@ pub(crate) fn check_raw(
         if bits > u64::from(norm.significant_bits()) {
             return bad(format!("p = {p} to the power {e} exceeds the norm"));
         }
-        let pe = Integer::from((&p_int).pow(abs_e));
-        if !norm.is_divisible(&pe) {
-            return bad(format!("N(α) is not divisible by {p}^{abs_e}"));
+        // one word-sized division per power when p fits a word (the
+        // bound above caps abs_e by the norm's bits)
+        match u32::try_from(p) {
+            Ok(p32) => {
+                for _ in 0..abs_e {
+                    if !norm.is_divisible_u(p32) {
+                        return bad(format!("N(α) is not divisible by {p}^{abs_e}"));
+                    }
+                    norm.div_exact_u_mut(p32);
+                }
+            }
+            Err(_) => {
+                let pe = Integer::from((&p_int).pow(abs_e));
+                if !norm.is_divisible(&pe) {
+                    return bad(format!("N(α) is not divisible by {p}^{abs_e}"));
+                }
+                norm /= pe;
+            }
         }
-        norm /= pe;
         if !d.is_divisible(&p_int) {
             // split p: α must not lie in the other prime above p
             let yb = Integer::from(y * b);
