@@ -117,26 +117,42 @@ pub(crate) fn check_element(
                 norm /= pe;
             }
         }
-        if !d.is_divisible(&p_int) {
-            // split p: α must not lie in the other prime above p
-            let yb = Integer::from(y * b);
-            let t = if *e > 0 {
-                Integer::from(x + &yb)
-            } else {
-                Integer::from(x - &yb)
-            };
-            let half = t >> 1u32;
-            if half.is_divisible(&p_int) {
-                return bad(format!(
-                    "α lies in the prime ideal above {p} that the relation does not name"
-                ));
-            }
+        // split p: α must not lie in the other prime above p
+        if !d.is_divisible(&p_int) && in_prime(x, y, b, p, *e > 0) {
+            return bad(format!(
+                "α lies in the prime ideal above {p} that the relation does not name"
+            ));
         }
     }
     if norm.abs() != 1 {
         return bad("N(α) has a factor outside the relation".into());
     }
     Ok(negative)
+}
+
+/// Whether `p | (x + y b)/2` (`plus`) or `p | (x - y b)/2`, fact 3. Both
+/// `x ± y b` are even (`x ≡ y D` and `b ≡ D (mod 2)`, the latter from
+/// `4p | b² - D`), so the test is `x ± y b ≡ 0 (mod 2p)`, in words when
+/// `2p` fits one.
+fn in_prime(x: &Integer, y: &Integer, b: u64, p: u64, plus: bool) -> bool {
+    match p.checked_mul(2).and_then(|m| u32::try_from(m).ok()) {
+        Some(m) => {
+            let m64 = u64::from(m);
+            let xm = u64::from(x.mod_u(m));
+            let yb = u64::from(y.mod_u(m)) * (b % m64) % m64;
+            let t = if plus { xm + yb } else { xm + m64 - yb };
+            t % m64 == 0
+        }
+        None => {
+            let yb = Integer::from(y * b);
+            let t = if plus {
+                Integer::from(x + &yb)
+            } else {
+                Integer::from(x - &yb)
+            };
+            (t >> 1u32).is_divisible(&Integer::from(p))
+        }
+    }
 }
 
 /// `log|α|` for `α = (x + y sqrt D)/2 ≠ 0`, at `prec` bits. When `x` and
