@@ -124,8 +124,8 @@ pub(crate) fn compute_with(
         let mut sign = ch;
         loop {
             let idx = bounds.partition_point(|&b| b <= n);
-            let a_term = Interval::u64(1).div(&Interval::u64(m.checked_mul(n)?))?;
-            let c_term = lnp.div(&Interval::u64(n).sqrt()?)?;
+            let a_term = Interval::recip_int(m.checked_mul(n)?)?;
+            let c_term = lnp.div(&Interval::sqrt_int(n))?;
             let (a_term, c_term) = if sign < 0 {
                 (a_term.neg(), c_term.neg())
             } else {

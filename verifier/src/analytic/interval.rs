@@ -198,6 +198,37 @@ impl Interval {
         Some(Interval { lo, hi })
     }
 
+    /// `1/n` for an integer `n ≥ 1`, the same interval as
+    /// `Interval::u64(1).div(&Interval::u64(n))` with one division: unless
+    /// `n` is a power of two, `1/n` has no finite binary expansion, so it
+    /// is never a float and the rounding up is one float above the
+    /// rounding down (MPFR rounds correctly).
+    pub fn recip_int(n: u64) -> Option<Interval> {
+        if n == 0 {
+            return None;
+        }
+        let f = Float::with_val(PREC, n);
+        let lo = down(PREC, 1 / &f);
+        let mut hi = lo.clone();
+        if !n.is_power_of_two() {
+            hi.next_up();
+        }
+        Some(Interval { lo, hi })
+    }
+
+    /// `√n` for an integer `n`, the same interval as
+    /// `Interval::u64(n).sqrt()` with one square root: unless `n` is a
+    /// square, `√n` is irrational and the rounding up is one float above
+    /// the rounding down.
+    pub fn sqrt_int(n: u64) -> Interval {
+        let lo = down(PREC, Float::with_val(PREC, n).sqrt_ref());
+        let mut hi = lo.clone();
+        if n.isqrt() * n.isqrt() != n {
+            hi.next_up();
+        }
+        Interval { lo, hi }
+    }
+
     /// Natural logarithm of a positive interval.
     pub fn ln(&self) -> Option<Interval> {
         if self.lo <= 0 || !self.lo.is_finite() || !self.hi.is_finite() {
@@ -389,6 +420,29 @@ mod tests {
             for b in &xs {
                 assert_eq!(a.mul(b), general(a, b));
             }
+        }
+    }
+
+    #[test]
+    fn integer_roots_and_reciprocals_are_the_general_ones() {
+        let large = [
+            u64::MAX,
+            u64::MAX - 58,
+            1 << 40,
+            (1 << 32) - 1,
+            4_294_967_296,
+        ];
+        for n in (0..30_000u64)
+            .chain(large)
+            .chain((1..3000u64).map(|k| k * k))
+        {
+            assert_eq!(
+                Some(Interval::sqrt_int(n)),
+                Interval::u64(n).sqrt(),
+                "n = {n}"
+            );
+            let general = Interval::u64(1).div(&Interval::u64(n));
+            assert_eq!(Interval::recip_int(n), general, "n = {n}");
         }
     }
 
