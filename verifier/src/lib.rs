@@ -91,6 +91,7 @@ pub mod math {
     /// 6: resultants, discriminants, norms of `a - bθ`, distinct-degree
     /// factorisation and Rabin's irreducibility test.
     pub mod poly {
+        pub use crate::field::fppoly::Fp;
         pub use crate::field::zpoly::{
             add, degree, derivative, discriminant, divrem_monic, eval, mul, norm_linear, normalise,
             resultant, sub,

@@ -4,6 +4,7 @@
 //! patterns, Rabin's irreducibility test). The design note is
 //! `general-fields.md`.
 
+pub mod fppoly;
 pub mod zpoly;
 
 /// A small deterministic generator for the tests (SplitMix64, common
