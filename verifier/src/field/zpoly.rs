@@ -114,7 +114,7 @@ pub fn eval(a: &[Integer], x: &Integer) -> Integer {
 }
 
 /// The pseudo-remainder `r` with `lc(b)^(deg a - deg b + 1)·a = q·b + r`,
-/// `deg r < deg b`, for `deg a ≥ deg b ≥ 0` (Cohen, GTM 138, Alg. 3.1.2).
+/// `deg r < deg b`, for `deg a ≥ deg b ≥ 0` (Cohen, GTM 138, Alg. 3.1.2; the number from memory).
 /// At most `len a · len b` multiplications.
 fn pseudo_rem(a: &[Integer], b: &[Integer]) -> Vec<Integer> {
     let (Some(da), Some(db)) = (degree(a), degree(b)) else {
@@ -240,7 +240,7 @@ mod tests {
     }
 
     /// The determinant by fraction-free Gaussian elimination (Bareiss 1968;
-    /// Cohen, GTM 138, Algorithm 2.2.6), exact over Z.
+    /// Cohen, GTM 138, Algorithm 2.2.6; the number from memory), exact over Z.
     fn det_bareiss(mut m: Vec<Vec<Integer>>) -> Integer {
         let n = m.len();
         let mut sign = 1;
