@@ -210,11 +210,25 @@ pub fn decode_document_with(
     // as such and any other difference as a non-canonical encoding.
     let body_bytes = document.encode()?;
     let id = sha256(&body_bytes);
-    let re = cbor::from_value(&cbor::map(vec![
+    // The file's canonical bytes: the map's head, then each key and value
+    // in the order `cbor::map` puts them, the body's being the bytes just
+    // made (encoding the body a second time would give the same bytes).
+    let file = cbor::map(vec![
         ("format", cbor::uint(FORMAT_VERSION)),
-        ("body", document.to_value()),
+        ("body", Value::Null),
         ("body-sha256", Value::Bytes(claimed.clone())),
-    ]))?;
+    ]);
+    let mut re = Vec::with_capacity(bytes.len());
+    re.push(FILE_HEAD);
+    if let Value::Map(entries) = &file {
+        for (k, v) in entries {
+            re.extend(cbor::from_value(k)?);
+            match k {
+                Value::Text(t) if t == "body" => re.extend_from_slice(&body_bytes),
+                _ => re.extend(cbor::from_value(v)?),
+            }
+        }
+    }
     if re != bytes {
         return Err(FileError::Decode(DecodeError::NonCanonical(
             "the bytes differ from the canonical encoding of their content",

@@ -41,6 +41,7 @@
 
 mod analytic;
 mod arith;
+mod field;
 mod ideals;
 mod lattice;
 pub mod limits;
@@ -85,6 +86,16 @@ pub mod math {
     pub mod primality {
         pub use crate::primality::bpsw::{primality_evidence, Evidence};
         pub use crate::primality::{check, ProofError, Status, Used};
+    }
+    /// Polynomials over Z and over `F_p` for number fields of degree 3 to
+    /// 6: resultants, discriminants, norms of `a - bθ`, distinct-degree
+    /// factorisation and Rabin's irreducibility test.
+    pub mod poly {
+        pub use crate::field::fppoly::Fp;
+        pub use crate::field::zpoly::{
+            add, degree, derivative, discriminant, divrem_monic, eval, mul, norm_linear, normalise,
+            resultant, sub,
+        };
     }
     /// Units in compact representation: the chain check, which the prover
     /// also uses to confirm the chain it built.

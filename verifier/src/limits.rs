@@ -18,6 +18,9 @@ pub const MAX_RELATION_ENTRIES: usize = 4096;
 /// Total compositions the relation checks may cost (each exponent bit
 /// costs at most two).
 pub const MAX_COMPOSITIONS: u64 = 40_000_000;
+/// Forms kept in the tables of powers for large exponents
+/// (`relations/forms.rs`), all tables together; past it, square-and-multiply.
+pub const MAX_TABLE_FORMS: usize = 1 << 15;
 /// Euler-trace checkpoints.
 pub const MAX_CHECKPOINTS: usize = 64;
 /// Factors in a maximality claim.

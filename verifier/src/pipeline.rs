@@ -25,6 +25,7 @@ use crate::ideals::quadratic::{QuadraticIdeal, QuadraticOrder};
 use crate::lattice::claim::{check_claim, ClaimOk};
 use crate::lattice::{check_lattice, LatticeOk};
 use crate::limits::MAX_SIEVE;
+use crate::order::ConductorOk;
 use crate::order::{check_conductor, check_discriminant, check_maximality, MaximalityOk, OrderOk};
 use crate::registry::{Hypothesis, Theorem};
 use crate::relations::{check_raw_relations, RawOk, Witnesses};
@@ -136,12 +137,59 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
     }
     let cond = check_conductor(&body.conductor_small, order.d(), trial_bound)?;
     let maximality = check_maximality(&body.maximality, order.d())?;
+    // The analytic bound needs only the order and the Euler trace: it runs
+    // on a second thread while the relations are checked, and is joined
+    // after them, so a rejection names the same first failure as before.
+    let (bound, checked) = std::thread::scope(|scope| {
+        let analytic = scope
+            .spawn(|| analytic::check_bound(&body.euler, &order, &cond, &maximality, &mut || {}));
+        let checked = check_algebra(body, &order, &cond, &maximality, statement, progress);
+        progress("analytic bound");
+        while !analytic.is_finished() {
+            progress("analytic bound");
+            std::thread::sleep(std::time::Duration::from_millis(20));
+        }
+        (analytic.join(), checked)
+    });
+    let (gen, raw, elements, lat, claim, units) = checked?;
+    let Ok(bound) = bound else {
+        return reject(
+            Reason::AnalyticInconsistent,
+            "the analytic check stopped before its end",
+        );
+    };
+    let analytic = check_conclusion(bound?, lat.h_star(), units.unit())?;
+    Ok(from_relations(
+        order, maximality, gen, raw, elements, lat, claim, units, analytic,
+    ))
+}
+
+/// What [`check_algebra`] hands on.
+type Algebra<'a> = (
+    GenerationOk<QuadraticIdeal>,
+    RawOk<'a>,
+    Option<&'static Theorem>,
+    LatticeOk,
+    ClaimOk,
+    UnitsOk,
+);
+
+/// The factor base, relations, lattice, claim and units of a full
+/// certificate.
+fn check_algebra<'a>(
+    body: &'a Body,
+    order: &OrderOk,
+    cond: &ConductorOk,
+    maximality: &MaximalityOk,
+    statement: generation::Statement,
+    progress: &mut dyn FnMut(&str),
+) -> Check<Algebra<'a>> {
     progress("factor base");
-    let arith = QuadraticOrder::new(order.d(), &cond);
+    let arith = QuadraticOrder::new(order.d(), cond);
     let gen = generation::check_generation(
         &arith,
         statement,
-        &maximality,
+        maximality,
         &body.factor_base,
         cond.trial_primes(),
     )?;
@@ -158,6 +206,7 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
     let forms = gen.ideals().iter().map(|i| &i.form).collect();
     let mut witnesses = Witnesses::new(&raw, forms, order.d());
     let lat = check_lattice(&body.lattice, gen.ideals().len(), &mut witnesses)?;
+    let elements = witnesses.theorem();
     let claim = check_claim(
         &body.claim,
         &body.lattice,
@@ -168,14 +217,7 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
     )?;
     progress("units");
     let units = check_units(&body.units, order.d(), order.is_real())?;
-    progress("analytic bound");
-    let bound = analytic::check_bound(&body.euler, &order, &cond, &maximality, &mut || {
-        progress("analytic bound")
-    })?;
-    let analytic = check_conclusion(bound, lat.h_star(), units.unit())?;
-    Ok(from_relations(
-        order, maximality, gen, raw, lat, claim, units, analytic,
-    ))
+    Ok((gen, raw, elements, lat, claim, units))
 }
 
 /// Checks an order-witness certificate (`D < 0` only).
@@ -237,13 +279,14 @@ fn from_relations(
     maximality: MaximalityOk,
     gen: GenerationOk<QuadraticIdeal>,
     raw: RawOk,
+    elements: Option<&'static Theorem>,
     lat: LatticeOk,
     claim: ClaimOk,
     units: UnitsOk,
     analytic: AnalyticOk,
 ) -> Verified {
     let mut theorems = vec![gen.theorem()];
-    let optional = [raw.theorem(), lat.theorem(), units.theorem()];
+    let optional = [raw.theorem(), elements, lat.theorem(), units.theorem()];
     for t in optional.into_iter().flatten() {
         push_unique(&mut theorems, t);
     }

@@ -12,15 +12,16 @@ use crate::linalg::modp::Lu;
 use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::{cyclic_generators, det_crt, smith, Hnf, RankModP};
 use crate::progress::Progress;
+use crate::relations::carried::{CarriedRow, Carrier};
 use crate::relations::forms::FormSearch;
 use crate::relations::siqs::{Params, SiqsSource};
-use crate::relations::{RelationSource, Sparse};
+use crate::relations::{Element, FoundRelation, RelationSource, Sparse};
 use crate::setup::{essential_count, setup, Options, ProveError, Setup};
 use classcert_format::*;
 use classcert_verifier::math::Form;
 use classcert_verifier::math::Interval;
 use rug::Integer;
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashMap};
 
 /// Candidates per relation while a second full-rank set is sought (tiny
 /// factor bases may have none to give).
@@ -184,6 +185,15 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // the count the sieve aims at, for progress lines
     let wanted: std::cell::Cell<Option<u64>> = std::cell::Cell::new(None);
     let max_relations = 50 * (k as u64) + 2000;
+    // The sieve's elements by exponent vector, until the structured
+    // elimination takes them along with its rows.
+    let elements: std::cell::RefCell<HashMap<Sparse, Element>> = Default::default();
+    let keep = |rel: FoundRelation| -> Sparse {
+        if let Some(el) = rel.element {
+            elements.borrow_mut().insert(rel.exponents.clone(), el);
+        }
+        rel.exponents
+    };
     let next_relation = |source: &mut dyn RelationSource| -> Result<Sparse, ProveError> {
         if found.get() > max_relations {
             return Err(ProveError::SearchFailed(format!(
@@ -201,7 +211,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         };
         found.set(found.get() + 1);
         progress.tick(found.get(), wanted.get());
-        Ok(rel.exponents)
+        Ok(keep(rel))
     };
     // The relation restricted to the essential block, by substituting the
     // eliminations (largest index first); used only to test for full rank.
@@ -268,7 +278,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
                         fb.primes[i]
                     )));
                 };
-                elim[i] = Some(e.exponents);
+                elim[i] = Some(keep(e));
             }
         }
     } else {
@@ -298,12 +308,29 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
         "structured elimination of {} relations over {n} ideals",
         rels.len()
     ));
+    // Each row carries its relation's element, if any, through the
+    // elimination (`relations/carried.rs`).
+    let carrier = Carrier {
+        d,
+        primes: &fb.primes,
+    };
+    let rows: Vec<CarriedRow> = {
+        let mut elements = elements.borrow_mut();
+        rels.into_iter()
+            .map(|v| {
+                let el = elements.remove(&v);
+                carrier.row(v, el)
+            })
+            .collect()
+    };
     // the sieve's relations: heavier pivots, a smaller dense block
     let Eliminated { sge, active, .. } = if sieving {
-        Sge::run_heavier(n, rels, SIEVE_PIVOT_WEIGHT, &mut |_| {})
+        Sge::run_heavier(n, rows, SIEVE_PIVOT_WEIGHT, &mut |_| {})
     } else {
-        Sge::run(n, rels)
+        Sge::run(n, rows)
     };
+    // a later relation is brought onto the dense block without its element
+    let reduce = |v: Sparse| sge.reduce(carrier.row(v, None)).map(|r| r.v);
     let cols = sge.remaining();
     let kd = cols.len();
     progress.say(&format!(
@@ -326,7 +353,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
     // then smaller (Hadamard's bound is the product of the row lengths), so
     // fewer primes compute them. Which rows make up the sets does not
     // change the result, the Hermite form of the whole relation lattice.
-    let mut active: Vec<Vec<i64>> = active.iter().map(|v| dense(v, &cols)).collect();
+    let mut active: Vec<Vec<i64>> = active.iter().map(|r| dense(&r.v, &cols)).collect();
     // Relations naming the ideals of given dense columns, from special-q
     // families after the last one used for each column.
     let mut next_family: BTreeMap<usize, u64> = BTreeMap::new();
@@ -338,7 +365,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
                 continue;
             };
             *from = t + 1;
-            if let Some(v) = sge.reduce(rel.exponents) {
+            if let Some(v) = reduce(rel.exponents) {
                 out.push(dense(&v, &cols));
             }
         }
@@ -432,7 +459,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             };
         }
         while rank.rank < kd {
-            let Some(v) = sge.reduce(next_relation(source)?) else {
+            let Some(v) = reduce(next_relation(source)?) else {
                 continue;
             };
             let dv = dense(&v, &cols);
@@ -473,7 +500,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             }
             let mut added = 0;
             while added < CONFIRM_BATCH {
-                let Some(v) = sge.reduce(next_relation(source)?) else {
+                let Some(v) = reduce(next_relation(source)?) else {
                     continue;
                 };
                 others.push(dense(&v, &cols));
@@ -500,7 +527,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             while rank2.rank < kd && tries < 20 * kd as u32 + 200 {
                 tries += 1;
                 let fresh = source.relations(1, SECOND_SET_ATTEMPTS).relations.pop();
-                let Some(v) = fresh.and_then(|v| sge.reduce(v.exponents)) else {
+                let Some(v) = fresh.and_then(|v| reduce(v.exponents)) else {
                     continue;
                 };
                 let dv = dense(&v, &cols);
@@ -553,7 +580,7 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             hnf.insert(v.into_iter().map(Integer::from).collect());
         }
         while !confirmed(&hnf) {
-            let Some(v) = sge.reduce(next_relation(source)?) else {
+            let Some(v) = reduce(next_relation(source)?) else {
                 continue;
             };
             hnf.insert(dense(&v, &cols).into_iter().map(Integer::from).collect());
@@ -584,15 +611,31 @@ pub fn prove_imaginary(d: &Integer, opts: &Options) -> Result<Body, ProveError> 
             },
         });
     }
-    // unit pivots, last eliminated first
+    // unit pivots, last eliminated first; a pivot row that still carries
+    // its element gives it as the witness
+    let mut by_element = 0usize;
     for (c, prow) in sge.pivots.iter().rev() {
+        let witness = match &prow.element {
+            Some(el) => Witness::Element {
+                x: el.x.clone(),
+                y: el.y.clone(),
+            },
+            None => Witness::FormReduction,
+        };
+        by_element += usize::from(prow.element.is_some());
         eliminations.push(Elimination {
             pivot: *c as u32,
             relation: Relation {
-                entries: to_entries(prow),
-                witness: Witness::FormReduction,
+                entries: to_entries(&prow.v),
+                witness,
             },
         });
+    }
+    if by_element > 0 {
+        progress.say(&format!(
+            "{by_element} of {} eliminations carry their element",
+            eliminations.len()
+        ));
     }
     // Generators of the cyclic factors: rows of V^{-1}, reduced modulo H_G.
     let mut generators = Vec::new();

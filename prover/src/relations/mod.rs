@@ -26,6 +26,7 @@
 //! reads one from elsewhere must check every relation (by its norm, or by
 //! reducing the form) before using it.
 
+pub mod carried;
 pub mod elements;
 pub mod forms;
 pub mod siqs;
@@ -39,8 +40,11 @@ use std::ops::Range;
 /// A sparse exponent vector over factor-base indices.
 pub type Sparse = BTreeMap<usize, i64>;
 
-/// The version written into every batch header.
-pub const BATCH_FORMAT_VERSION: u64 = 1;
+/// The version written into every batch header. Version 2: the sieve's
+/// relations carry their elements for `D < 0` too (version 1 batches had
+/// none there, and a run resumed from them would not give the bytes of a
+/// fresh one, so they are refused).
+pub const BATCH_FORMAT_VERSION: u64 = 2;
 
 /// The element `(x + y sqrt D)/2` whose principal ideal a relation states.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -449,11 +453,13 @@ mod tests {
             "range longer than the relations"
         );
         batch.header.end = 3;
-        batch.header.version = 2;
-        assert!(
-            RelationBatch::from_cbor(&batch.to_cbor().unwrap()).is_err(),
-            "unknown version"
-        );
+        for version in [1, BATCH_FORMAT_VERSION + 1] {
+            batch.header.version = version;
+            assert!(
+                RelationBatch::from_cbor(&batch.to_cbor().unwrap()).is_err(),
+                "version {version}: the previous one and an unknown one"
+            );
+        }
         batch.header.version = BATCH_FORMAT_VERSION;
         let mut bytes = batch.to_cbor().unwrap();
         bytes.push(0);

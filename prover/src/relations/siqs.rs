@@ -238,9 +238,6 @@ pub struct Siqs<'a> {
     pmax: u64,
     large_bound: u64,
     threshold: u8,
-    /// `D > 0`: relations carry elements, and the threshold is
-    /// [`real_threshold`].
-    real: bool,
 }
 
 /// What one family needs per prime, and the sieve array (one per thread).
@@ -325,7 +322,6 @@ impl<'a> Siqs<'a> {
             pmax,
             large_bound,
             threshold,
-            real: *d > 0,
         }
     }
 
@@ -555,7 +551,7 @@ impl<'a> Siqs<'a> {
                     el
                 });
                 let rel = FoundRelation { exponents, element };
-                debug_assert!(!self.real || self.element_holds(&rel), "{rel:?}");
+                debug_assert!(self.element_holds(&rel), "{rel:?}");
                 return Some((t, rel));
             }
         }
@@ -821,16 +817,18 @@ impl<'a> Siqs<'a> {
         }
     }
 
-    /// `D > 0`: the element `α = (u + √D)/2` of a value (`None` for
-    /// `D < 0`, whose relations are checked by reducing forms).
+    /// The element `α = (u + √D)/2` of a value, for either sign of `D`:
+    /// for `D > 0` it feeds the units, and for `D < 0` an elimination that
+    /// is a single sieved relation carries it, so the verifier checks it by
+    /// its norm instead of composing forms (`sieving.md`, section 1).
     pub fn element(&self, f: &Found) -> Option<Element> {
-        self.real.then(|| Element {
+        Some(Element {
             x: f.u.clone(),
             y: Integer::from(1),
         })
     }
 
-    /// `D > 0`: the element of the relation `combo` made of two partial
+    /// The element of the relation `combo` made of two partial
     /// values `α_j = (u_j + √D)/2` (vectors `r_j`) with the same large
     /// prime `ℓ`.
     ///
@@ -1095,12 +1093,12 @@ impl Siqs<'_> {
 }
 
 /// Hands out relations from rounds of families, combining partial values
-/// with the same large prime, in a fixed order. For `D > 0` every relation
-/// carries its element ([`Siqs::element`], [`Siqs::combined_element`]).
+/// with the same large prime, in a fixed order. Every relation carries its
+/// element ([`Siqs::element`], [`Siqs::combined_element`]).
 pub struct Collector {
     /// The first partial seen for each large prime: its vector, orientation
-    /// and (`D > 0` only) `u`.
-    partials: BTreeMap<u64, (Sparse, i64, Option<Integer>)>,
+    /// and `u`.
+    partials: BTreeMap<u64, (Sparse, i64, Integer)>,
     emitted: BTreeSet<Sparse>,
     queue: VecDeque<FoundRelation>,
     pub next_family: u64,
@@ -1140,7 +1138,7 @@ impl Collector {
                         exponents: v,
                         element: siqs.element(&f),
                     };
-                    debug_assert!(!siqs.real || siqs.element_holds(&rel), "{rel:?}");
+                    debug_assert!(siqs.element_holds(&rel), "{rel:?}");
                     self.queue.push_back(rel);
                     continue;
                 }
@@ -1156,34 +1154,22 @@ impl Collector {
                         if combo.is_empty() {
                             continue;
                         }
-                        let element = match u1 {
-                            None => None,
-                            Some(u1) => {
-                                let el = siqs.combined_element(
-                                    (u1, v1),
-                                    (&f.u, &v),
-                                    f.large,
-                                    *s1 == s,
-                                    &combo,
-                                );
-                                debug_assert!(el.is_some(), "no element for ℓ = {}", f.large);
-                                if el.is_none() {
-                                    continue;
-                                }
-                                el
-                            }
-                        };
+                        let element =
+                            siqs.combined_element((u1, v1), (&f.u, &v), f.large, *s1 == s, &combo);
+                        debug_assert!(element.is_some(), "no element for ℓ = {}", f.large);
+                        if element.is_none() {
+                            continue;
+                        }
                         let rel = FoundRelation {
                             exponents: combo,
                             element,
                         };
-                        debug_assert!(!siqs.real || siqs.element_holds(&rel), "{rel:?}");
+                        debug_assert!(siqs.element_holds(&rel), "{rel:?}");
                         self.combined += 1;
                         self.queue.push_back(rel);
                     }
                     None => {
-                        let u = siqs.real.then(|| f.u.clone());
-                        self.partials.insert(f.large, (v, s, u));
+                        self.partials.insert(f.large, (v, s, f.u.clone()));
                     }
                 }
             }
@@ -1815,7 +1801,7 @@ mod real_tests {
     /// one: the product of the prime forms to its exponents reduces to the
     /// principal form (the definition of a relation, common practice).
     #[test]
-    fn imaginary_relations_stay_plain_and_hold() {
+    fn imaginary_relations_carry_elements_that_hold() {
         let p = prime_1_mod_4_above(Integer::from(Integer::u_pow_u(10, 23)) * 5u32 / 2u32);
         let d = Integer::from(-4) * p;
         let fb = factor_base(&d);
@@ -1826,8 +1812,11 @@ mod real_tests {
         assert_eq!(rels.len(), 200);
         rels.extend(src.eliminations(k..k + 20, 0).relations);
         assert_eq!(rels.len(), 220);
+        // the element check (the verifier's, by norms and residues) against
+        // the definition, composing the prime forms
+        let siqs = &src.siqs;
         for rel in rels {
-            assert!(rel.element.is_none());
+            assert!(siqs.element_holds(&rel), "{rel:?}");
             assert!(
                 composes_to_principal(&d, &fb, &rel.exponents),
                 "{:?}",

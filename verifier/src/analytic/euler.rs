@@ -118,14 +118,14 @@ pub(crate) fn compute_with(
         if ch == 0 {
             continue;
         }
-        let lnp = Interval::u64(p).ln()?;
+        let lnp = Interval::ln_int(p)?;
         let mut n = p;
         let mut m = 1u64;
         let mut sign = ch;
         loop {
             let idx = bounds.partition_point(|&b| b <= n);
-            let a_term = Interval::u64(1).div(&Interval::u64(m.checked_mul(n)?))?;
-            let c_term = lnp.div(&Interval::u64(n).sqrt()?)?;
+            let a_term = Interval::recip_int(m.checked_mul(n)?)?;
+            let c_term = lnp.div(&Interval::sqrt_int(n))?;
             let (a_term, c_term) = if sign < 0 {
                 (a_term.neg(), c_term.neg())
             } else {

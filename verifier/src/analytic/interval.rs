@@ -130,6 +130,15 @@ impl Interval {
 
     pub fn mul(&self, o: &Interval) -> Interval {
         let p = self.prec_with(o);
+        // both nonnegative: the least product is lo·lo and the largest
+        // hi·hi, and directed rounding is monotone, so this is the general
+        // case's result with two products instead of eight
+        if self.lo >= 0 && o.lo >= 0 {
+            return Interval {
+                lo: down(p, &self.lo * &o.lo),
+                hi: up(p, &self.hi * &o.hi),
+            };
+        }
         let pairs = [
             (&self.lo, &o.lo),
             (&self.lo, &o.hi),
@@ -170,6 +179,54 @@ impl Interval {
         } else {
             None
         }
+    }
+
+    /// `ln x` for an integer `x`, the same interval as
+    /// `Interval::u64(x).ln()` at half the cost: for `x ≥ 2`, `ln x` is
+    /// irrational (were `ln x = a/b`, `e^a = x^b` would make `e` algebraic,
+    /// against Hermite's theorem, 1873; common practice), so it is never a
+    /// float, and MPFR's correct rounding (its documented guarantee for
+    /// every function and rounding mode) puts the rounding up exactly one
+    /// float above the rounding down.
+    pub fn ln_int(x: u64) -> Option<Interval> {
+        if x < 2 {
+            return Interval::u64(x).ln();
+        }
+        let lo = down(PREC, Float::with_val(PREC, x).ln_ref());
+        let mut hi = lo.clone();
+        hi.next_up();
+        Some(Interval { lo, hi })
+    }
+
+    /// `1/n` for an integer `n ≥ 1`, the same interval as
+    /// `Interval::u64(1).div(&Interval::u64(n))` with one division: unless
+    /// `n` is a power of two, `1/n` has no finite binary expansion, so it
+    /// is never a float and the rounding up is one float above the
+    /// rounding down (MPFR rounds correctly).
+    pub fn recip_int(n: u64) -> Option<Interval> {
+        if n == 0 {
+            return None;
+        }
+        let f = Float::with_val(PREC, n);
+        let lo = down(PREC, 1 / &f);
+        let mut hi = lo.clone();
+        if !n.is_power_of_two() {
+            hi.next_up();
+        }
+        Some(Interval { lo, hi })
+    }
+
+    /// `√n` for an integer `n`, the same interval as
+    /// `Interval::u64(n).sqrt()` with one square root: unless `n` is a
+    /// square, `√n` is irrational and the rounding up is one float above
+    /// the rounding down.
+    pub fn sqrt_int(n: u64) -> Interval {
+        let lo = down(PREC, Float::with_val(PREC, n).sqrt_ref());
+        let mut hi = lo.clone();
+        if n.isqrt() * n.isqrt() != n {
+            hi.next_up();
+        }
+        Interval { lo, hi }
     }
 
     /// Natural logarithm of a positive interval.
@@ -325,6 +382,77 @@ mod tests {
         let l = Interval::u64(10).ln().unwrap();
         assert!(l.lo < l.hi);
         assert!((l.mid_f64() - std::f64::consts::LN_10).abs() < 1e-15);
+    }
+
+    #[test]
+    fn products_of_nonnegative_intervals_are_the_general_ones() {
+        // the shortcut against the four-product definition
+        let general = |a: &Interval, b: &Interval| {
+            let ends = [
+                (&a.lo, &b.lo),
+                (&a.lo, &b.hi),
+                (&a.hi, &b.lo),
+                (&a.hi, &b.hi),
+            ];
+            let lo = ends
+                .iter()
+                .map(|(x, y)| down(PREC, *x * *y))
+                .reduce(min)
+                .unwrap();
+            let hi = ends
+                .iter()
+                .map(|(x, y)| up(PREC, *x * *y))
+                .reduce(max)
+                .unwrap();
+            Interval { lo, hi }
+        };
+        let xs: Vec<Interval> = (0..40u64)
+            .map(|k| {
+                Interval::u64(k * 7 + 3)
+                    .ln()
+                    .unwrap()
+                    .div(&Interval::u64(k + 1))
+                    .unwrap()
+            })
+            .chain([Interval::zero(), Interval::pi()])
+            .collect();
+        for a in &xs {
+            for b in &xs {
+                assert_eq!(a.mul(b), general(a, b));
+            }
+        }
+    }
+
+    #[test]
+    fn integer_roots_and_reciprocals_are_the_general_ones() {
+        let large = [
+            u64::MAX,
+            u64::MAX - 58,
+            1 << 40,
+            (1 << 32) - 1,
+            4_294_967_296,
+        ];
+        for n in (0..30_000u64)
+            .chain(large)
+            .chain((1..3000u64).map(|k| k * k))
+        {
+            assert_eq!(
+                Some(Interval::sqrt_int(n)),
+                Interval::u64(n).sqrt(),
+                "n = {n}"
+            );
+            let general = Interval::u64(1).div(&Interval::u64(n));
+            assert_eq!(Interval::recip_int(n), general, "n = {n}");
+        }
+    }
+
+    #[test]
+    fn integer_logs_are_the_general_ones() {
+        // the shortcut against the definition: the same two floats
+        let large = [u64::MAX, u64::MAX - 58, 1 << 40, 999_999_999_989];
+        for x in (0..30_000u64).chain(large) {
+            assert_eq!(Interval::ln_int(x), Interval::u64(x).ln(), "x = {x}");
+        }
     }
 
     #[test]

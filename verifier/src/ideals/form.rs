@@ -6,8 +6,9 @@
 //! which is what makes "reduces to the principal form" a proof that a
 //! product of prime forms is principal.
 
-use rug::ops::RemRounding;
-use rug::Integer;
+use rug::ops::{NegAssign, RemRounding};
+use rug::{Assign, Integer};
+use std::cmp::Ordering;
 
 /// A form; callers keep `a > 0` and `b^2 - 4ac = D` (checked on entry by
 /// [`Form::new`]).
@@ -16,6 +17,15 @@ pub struct Form {
     pub a: Integer,
     pub b: Integer,
     pub c: Integer,
+}
+
+/// Integers reused across the steps of one reduction.
+#[derive(Default)]
+struct Scratch {
+    two_a: Integer,
+    q: Integer,
+    r: Integer,
+    t: Integer,
 }
 
 /// Arithmetic refused (only on inputs that break the invariants).
@@ -72,7 +82,9 @@ impl Form {
         if self.a <= 0 {
             return Err(FormError);
         }
-        self.normalize();
+        // scratch integers, reused by every step (no allocation per step)
+        let mut s = Scratch::default();
+        self.normalize(&mut s);
         let mut steps = 0u32;
         while self.a > self.c {
             steps += 1;
@@ -80,33 +92,35 @@ impl Form {
                 return Err(FormError);
             }
             std::mem::swap(&mut self.a, &mut self.c);
-            self.b = -std::mem::take(&mut self.b);
-            self.normalize();
+            self.b.neg_assign();
+            self.normalize(&mut s);
         }
         if self.a == self.c && self.b < 0 {
-            self.b = -std::mem::take(&mut self.b);
+            self.b.neg_assign();
         }
         Ok(self)
     }
 
     /// Brings `b` into `(-a, a]` by `b ← b - 2aq`, with `c ← c - (b + r) q / 2`
     /// (Cohen Alg. 5.4.2, step 2); needs `a > 0`.
-    fn normalize(&mut self) {
-        if self.b <= self.a && self.b > -Integer::from(&self.a) {
-            return;
+    fn normalize(&mut self, s: &mut Scratch) {
+        match self.b.cmp_abs(&self.a) {
+            Ordering::Less => return,
+            Ordering::Equal if self.b > 0 => return,
+            _ => {}
         }
-        let two_a = Integer::from(&self.a << 1u32);
-        let (mut q, mut r) = <(Integer, Integer)>::from(self.b.div_rem_floor_ref(&two_a));
-        if r > self.a {
-            r -= &two_a;
-            q += 1u32;
+        s.two_a.assign(&self.a << 1u32);
+        (&mut s.q, &mut s.r).assign(self.b.div_rem_floor_ref(&s.two_a));
+        if s.r > self.a {
+            s.r -= &s.two_a;
+            s.q += 1u32;
         }
         // c -= (b + r) q / 2, then b = r
-        self.b += &r;
-        self.b *= &q;
-        self.b >>= 1u32;
-        self.c -= &self.b;
-        self.b = r;
+        s.t.assign(&self.b + &s.r);
+        s.t *= &s.q;
+        s.t >>= 1u32;
+        self.c -= &s.t;
+        std::mem::swap(&mut self.b, &mut s.r);
     }
 
     /// The reduced form of the composition (Cohen Alg. 5.4.7).

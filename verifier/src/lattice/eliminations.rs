@@ -129,6 +129,47 @@ mod tests {
         let mut known = vec![true, false];
         let e = check_eliminations(&[el(0, &[(0, 1)])], &mut known, &mut mk()).unwrap_err();
         assert_eq!(e.reason, Reason::EliminationStructure);
+        // The same relation by an element, as a sieved one carries it:
+        // α = (1 + sqrt -23)/2 has norm (1 + 23)/4 = 6 and lies in
+        // P_2 = (2, (1 + sqrt -23)/2) and P_3 = (3, (1 + sqrt -23)/2), since
+        // (x - y b)/2 = 0 (worked by hand; common practice), so
+        // (α) = P_2 P_3, which the forms above confirm.
+        let by_element = |entries: &[(u32, i64)], x: i64| {
+            let mut e = el(1, entries);
+            e.relation.witness = Witness::Element {
+                x: Integer::from(x),
+                y: Integer::from(1),
+            };
+            e
+        };
+        let mut known = vec![true, false];
+        let mut w = mk();
+        assert!(w.theorem().is_none());
+        assert!(
+            check_eliminations(&[by_element(&[(0, 1), (1, 1)], 1)], &mut known, &mut w).is_ok()
+        );
+        assert!(
+            w.theorem().is_some(),
+            "the element check's theorem is named"
+        );
+        // its conjugate, -ᾱ = (-1 + sqrt -23)/2, generates P̄_2 P̄_3
+        let mut known = vec![true, false];
+        let r = check_eliminations(
+            &[by_element(&[(0, -1), (1, -1)], -1)],
+            &mut known,
+            &mut mk(),
+        );
+        assert!(r.is_ok());
+        // a wrong sign: α lies in P_3, not in its conjugate
+        let mut known = vec![true, false];
+        let e = check_eliminations(&[by_element(&[(0, 1), (1, -1)], 1)], &mut known, &mut mk())
+            .unwrap_err();
+        assert_eq!(e.reason, Reason::RelationWitnessInvalid);
+        // a norm that does not match: (3 + sqrt -23)/2 has norm 8
+        let mut known = vec![true, false];
+        let e = check_eliminations(&[by_element(&[(0, 1), (1, 1)], 3)], &mut known, &mut mk())
+            .unwrap_err();
+        assert_eq!(e.reason, Reason::RelationWitnessInvalid);
     }
 
     fn relation(entries: &[(u32, i64)], witness: Witness) -> Relation {

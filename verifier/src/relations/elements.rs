@@ -42,19 +42,30 @@ pub(crate) fn check_raw(
     k: usize,
     rel: &Relation,
 ) -> Check<bool> {
-    let bad = |why: String| {
-        reject(
-            Reason::RelationWitnessInvalid,
-            format!("raw relation {k}: {why}"),
-        )
-    };
     let Witness::Element { x, y } = &rel.witness else {
         return reject(
             Reason::WitnessKind,
             format!("raw relation {k} must carry an element witness"),
         );
     };
-    if rel.entries.len() > MAX_RELATION_ENTRIES {
+    let entries: Vec<(u32, &Integer)> = rel.entries.iter().map(|(i, e)| (*i, e)).collect();
+    check_element(d, ideal, &format!("raw relation {k}"), &entries, x, y)
+}
+
+/// Checks that `α = (x + y sqrt D)/2` generates the ideal (*) of
+/// `entries` (sparse, increasing indices); returns whether `N(α) < 0`.
+/// Either sign of `D`: for `D < 0` an elimination may carry its element
+/// (a sieved relation, `docs/certificates.md` section 2).
+pub(crate) fn check_element(
+    d: &Integer,
+    ideal: &dyn Fn(u32) -> Option<(u64, u64)>,
+    what: &str,
+    entries: &[(u32, &Integer)],
+    x: &Integer,
+    y: &Integer,
+) -> Check<bool> {
+    let bad = |why: String| reject(Reason::RelationWitnessInvalid, format!("{what}: {why}"));
+    if entries.len() > MAX_RELATION_ENTRIES {
         return reject(Reason::OverLimit, "a relation has too many entries");
     }
     if x.significant_bits() > MAX_ENTRY_BITS || y.significant_bits() > MAX_ENTRY_BITS {
@@ -70,12 +81,12 @@ pub(crate) fn check_raw(
     }
     let negative = norm < 0;
     let mut prev: Option<u32> = None;
-    for (i, e) in &rel.entries {
-        if prev.is_some_and(|q| q >= *i) || e.is_zero() {
+    for &(i, e) in entries {
+        if prev.is_some_and(|q| q >= i) || e.is_zero() {
             return bad("entries must be nonzero and in increasing index order".into());
         }
-        prev = Some(*i);
-        let Some((p, b)) = ideal(*i) else {
+        prev = Some(i);
+        let Some((p, b)) = ideal(i) else {
             return bad(format!("index {i} is outside the factor base"));
         };
         // |e| log p <= log |N| keeps p^|e| no larger than the norm.
@@ -87,31 +98,61 @@ pub(crate) fn check_raw(
         if bits > u64::from(norm.significant_bits()) {
             return bad(format!("p = {p} to the power {e} exceeds the norm"));
         }
-        let pe = Integer::from((&p_int).pow(abs_e));
-        if !norm.is_divisible(&pe) {
-            return bad(format!("N(α) is not divisible by {p}^{abs_e}"));
-        }
-        norm /= pe;
-        if !d.is_divisible(&p_int) {
-            // split p: α must not lie in the other prime above p
-            let yb = Integer::from(y * b);
-            let t = if *e > 0 {
-                Integer::from(x + &yb)
-            } else {
-                Integer::from(x - &yb)
-            };
-            let half = t >> 1u32;
-            if half.is_divisible(&p_int) {
-                return bad(format!(
-                    "α lies in the prime ideal above {p} that the relation does not name"
-                ));
+        // one word-sized division per power when p fits a word (the
+        // bound above caps abs_e by the norm's bits)
+        match u32::try_from(p) {
+            Ok(p32) => {
+                for _ in 0..abs_e {
+                    if !norm.is_divisible_u(p32) {
+                        return bad(format!("N(α) is not divisible by {p}^{abs_e}"));
+                    }
+                    norm.div_exact_u_mut(p32);
+                }
             }
+            Err(_) => {
+                let pe = Integer::from((&p_int).pow(abs_e));
+                if !norm.is_divisible(&pe) {
+                    return bad(format!("N(α) is not divisible by {p}^{abs_e}"));
+                }
+                norm /= pe;
+            }
+        }
+        // split p: α must not lie in the other prime above p
+        if !d.is_divisible(&p_int) && in_prime(x, y, b, p, *e > 0) {
+            return bad(format!(
+                "α lies in the prime ideal above {p} that the relation does not name"
+            ));
         }
     }
     if norm.abs() != 1 {
         return bad("N(α) has a factor outside the relation".into());
     }
     Ok(negative)
+}
+
+/// Whether `p | (x + y b)/2` (`plus`) or `p | (x - y b)/2`, fact 3. Both
+/// `x ± y b` are even (`x ≡ y D` and `b ≡ D (mod 2)`, the latter from
+/// `4p | b² - D`), so the test is `x ± y b ≡ 0 (mod 2p)`, in words when
+/// `2p` fits one.
+fn in_prime(x: &Integer, y: &Integer, b: u64, p: u64, plus: bool) -> bool {
+    match p.checked_mul(2).and_then(|m| u32::try_from(m).ok()) {
+        Some(m) => {
+            let m64 = u64::from(m);
+            let xm = u64::from(x.mod_u(m));
+            let yb = u64::from(y.mod_u(m)) * (b % m64) % m64;
+            let t = if plus { xm + yb } else { xm + m64 - yb };
+            t % m64 == 0
+        }
+        None => {
+            let yb = Integer::from(y * b);
+            let t = if plus {
+                Integer::from(x + &yb)
+            } else {
+                Integer::from(x - &yb)
+            };
+            (t >> 1u32).is_divisible(&Integer::from(p))
+        }
+    }
 }
 
 /// `log|α|` for `α = (x + y sqrt D)/2 ≠ 0`, at `prec` bits. When `x` and

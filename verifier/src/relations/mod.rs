@@ -22,7 +22,7 @@ use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, Check, Reason};
 use classcert_format::{Relation, Witness};
 use combinations::Checked;
-use forms::Budget;
+use forms::{Budget, Powers};
 use rug::Integer;
 
 /// Token: every raw relation holds by its element witness, and every
@@ -104,11 +104,14 @@ pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
 
 /// How the relations of the lattice are shown to hold.
 pub(crate) enum Witnesses<'a> {
-    /// By reduction of products of prime forms (`D < 0`).
+    /// By reduction of products of prime forms (`D < 0`), or by an
+    /// element (`elements` counts those checked so).
     Forms {
         forms: Vec<&'a Form>,
         d: &'a Integer,
         budget: Budget,
+        powers: Powers,
+        elements: usize,
     },
     /// As combinations of checked raw and derived relations.
     Raw { pool: Checked<'a>, work: u64 },
@@ -126,7 +129,21 @@ impl<'a> Witnesses<'a> {
                 forms,
                 d,
                 budget: Budget::new(MAX_COMPOSITIONS),
+                powers: Powers::default(),
+                elements: 0,
             },
+        }
+    }
+
+    /// The registry entry element witnesses rest on, when a relation shown
+    /// by form reduction otherwise carried one (`D < 0`); the raw relations
+    /// of `D > 0` name it through [`RawOk::theorem`].
+    pub(crate) fn theorem(&self) -> Option<&'static Theorem> {
+        match self {
+            Witnesses::Forms { elements, .. } if *elements > 0 => {
+                registry::lookup(registry::ELEMENT_RELATIONS)
+            }
+            _ => None,
         }
     }
 
@@ -148,8 +165,38 @@ impl<'a> Witnesses<'a> {
         what: &str,
     ) -> Check<bool> {
         match (self, witness) {
-            (Witnesses::Forms { forms, d, budget }, Witness::FormReduction) => {
-                forms::is_principal(forms, entries, d, budget)
+            (
+                Witnesses::Forms {
+                    forms,
+                    d,
+                    budget,
+                    powers,
+                    ..
+                },
+                Witness::FormReduction,
+            ) => forms::is_principal(forms, entries, d, budget, powers),
+            // A sieved relation's element: its norm and one residue per
+            // prime show it (section 2), without form arithmetic.
+            (
+                Witnesses::Forms {
+                    forms, d, elements, ..
+                },
+                Witness::Element { x, y },
+            ) => {
+                let ideal = |i: u32| {
+                    let f = forms.get(i as usize)?;
+                    Some((f.a.to_u64()?, f.b.to_u64()?))
+                };
+                let mut sparse = Vec::with_capacity(entries.len());
+                for (i, e) in entries {
+                    let Ok(i) = u32::try_from(*i) else {
+                        return reject(Reason::OverLimit, format!("{what}: index {i}"));
+                    };
+                    sparse.push((i, *e));
+                }
+                elements::check_element(d, &ideal, what, &sparse, x, y)?;
+                *elements += 1;
+                Ok(true)
             }
             (Witnesses::Raw { pool, work }, Witness::Combination { terms }) => {
                 let sum = combinations::combine(*pool, terms, work)?;
@@ -157,7 +204,7 @@ impl<'a> Witnesses<'a> {
             }
             (Witnesses::Forms { .. }, _) => reject(
                 Reason::WitnessKind,
-                format!("{what}: D < 0 relations are shown by form reduction"),
+                format!("{what}: D < 0 relations are shown by form reduction or by an element"),
             ),
             (Witnesses::Raw { .. }, _) => reject(
                 Reason::WitnessKind,
