@@ -22,7 +22,7 @@ kind=""
 if [ "${1:-}" = "--real" ]; then kind=real; shift; fi
 runs=${1:-3}; shift || true
 digits=${*:-20 30}
-cargo build --release -q -p classcert-prover -p classcert-verifier --examples
+cargo build --release -q -p classcert-prover -p classcert-verifier --bins --examples
 tmp=$(mktemp -d)
 median() { sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'; }
 echo "| digits | D | prove s (median of $runs) | verify s | verify/prove | certificate bytes | factor base | eliminations | raw relations | dense block | prove peak MiB | verify peak MiB | threads |"
