@@ -37,6 +37,7 @@ pub mod drivers;
 pub mod factor;
 pub mod fb;
 pub mod linalg;
+pub mod polynomial;
 pub mod progress;
 pub mod relations;
 pub mod rng;
