@@ -164,6 +164,108 @@ pub fn parse(input: &str) -> Result<Vec<Integer>, ParseError> {
     Ok(coeffs)
 }
 
+/// Degrees a defining polynomial may have for a proof over a number field.
+/// Degree 2 goes to the quadratic path, by its discriminant.
+pub const DEGREES: std::ops::RangeInclusive<usize> = 3..=6;
+
+/// How many primes not dividing `disc(F)` the irreducibility test tries.
+const PATTERN_PRIMES: usize = 60;
+
+/// Why a polynomial cannot define the field of a proof.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Refusal {
+    /// Degree outside [`DEGREES`]; the degree found.
+    Degree(usize),
+    /// Degree 2: prove the quadratic order of this discriminant instead.
+    Quadratic(Integer),
+    /// The leading coefficient, when it is not 1.
+    NotMonic(Integer),
+    /// `disc(F) = 0`: `F` has a repeated factor.
+    Repeated,
+    /// Every prime tried left these proper degrees for a factor over Q.
+    NotShownIrreducible(Vec<usize>),
+}
+
+impl std::fmt::Display for Refusal {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Refusal::Degree(d) => write!(f, "degree {d}: number fields of degree 3 to 6 are supported"),
+            Refusal::Quadratic(d) => write!(f, "degree 2: prove the quadratic order of discriminant {d} instead"),
+            Refusal::NotMonic(c) => write!(f, "the leading coefficient is {c}: the polynomial must be monic"),
+            Refusal::Repeated => write!(f, "the discriminant is 0: the polynomial has a repeated factor"),
+            Refusal::NotShownIrreducible(ds) => write!(
+                f,
+                "not shown irreducible: modulo each of {PATTERN_PRIMES} primes the factorisation allows a factor over Q of degree {ds:?}; the polynomial is probably reducible"
+            ),
+        }
+    }
+}
+
+/// Checks that `F` (coefficients from the constant term up, as [`parse`]
+/// gives them) can define a number field for a proof: degree in
+/// [`DEGREES`], monic, `disc(F) ≠ 0`, and irreducible over Q, shown by the
+/// degrees of `F mod p`: a factor of `F` over Q of degree `k` reduces to a
+/// product of irreducible factors mod `p` whose degrees sum to `k`, so once
+/// the sub-sums of the patterns at several `p ∤ disc(F)` have no proper
+/// degree in common, `F` is irreducible (common practice; H. Cohen, GTM 138,
+/// section 3.5, from memory). Some irreducible polynomials split modulo
+/// every prime (`x^4 + 1`); they are refused here until a finer test exists.
+/// Returns `disc(F)`.
+pub fn check_defining(f: &[Integer]) -> Result<Integer, Refusal> {
+    use classcert_verifier::math::poly::{discriminant, Fp};
+    use classcert_verifier::math::primes_up_to;
+    let n = f.len().saturating_sub(1);
+    let lead = f.last().cloned().unwrap_or_default();
+    if n == 2 && lead == 1 {
+        return Err(Refusal::Quadratic(
+            f[1].clone() * &f[1] - Integer::from(4) * &f[0],
+        ));
+    }
+    if !DEGREES.contains(&n) {
+        return Err(Refusal::Degree(n));
+    }
+    if lead != 1 {
+        return Err(Refusal::NotMonic(lead));
+    }
+    let disc = discriminant(f).unwrap_or_default();
+    if disc == 0 {
+        return Err(Refusal::Repeated);
+    }
+    // possible[k]: a factor of degree k over Q is still possible.
+    let mut possible: Vec<bool> = (0..=n).map(|k| k > 0 && k < n).collect();
+    let mut tried = 0;
+    // Far more primes than PATTERN_PRIMES unramified ones need: disc(F) has
+    // at most a few hundred prime factors at the supported sizes.
+    for p in primes_up_to(20_000) {
+        if tried == PATTERN_PRIMES || !possible.iter().any(|&b| b) {
+            break;
+        }
+        if disc.is_divisible_u(p as u32) {
+            continue;
+        }
+        let Some(pattern) = Fp::new(p).and_then(|fp| fp.degree_pattern(f)) else {
+            continue;
+        };
+        tried += 1;
+        let mut sums = vec![false; n + 1];
+        sums[0] = true;
+        for d in pattern {
+            for k in (d..=n).rev() {
+                sums[k] |= sums[k - d];
+            }
+        }
+        for (k, b) in possible.iter_mut().enumerate() {
+            *b &= sums[k];
+        }
+    }
+    let left: Vec<usize> = (0..=n).filter(|&k| possible[k]).collect();
+    if left.is_empty() {
+        Ok(disc)
+    } else {
+        Err(Refusal::NotShownIrreducible(left))
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -214,5 +316,48 @@ mod tests {
         }
         let shown = parse("x^3 - y").unwrap_err().render("x^3 - y");
         assert_eq!(shown, "x^3 - y\n      ^ expected a number or 'x'");
+    }
+
+    fn check(text: &str) -> Result<Integer, Refusal> {
+        check_defining(&parse(text).unwrap())
+    }
+
+    #[test]
+    fn defining_polynomials_accepted_with_their_discriminants() {
+        // disc(x^3 + a x + b) = -4a^3 - 27b^2 (common practice)
+        assert_eq!(check("x^3 - 2"), Ok(Integer::from(-108)));
+        assert_eq!(check("x^3 - 11"), Ok(Integer::from(-27 * 121)));
+        assert_eq!(check("x^3 - 2*x + 5"), Ok(Integer::from(32 - 27 * 25)));
+        // the simplest cubic field, disc 49 (common practice)
+        assert_eq!(check("x^3 - x^2 - 2x + 1"), Ok(Integer::from(49)));
+        // x^5 - x - 1 is irreducible with disc 2869 = 19 * 151 (from memory)
+        assert_eq!(check("x^5 - x - 1"), Ok(Integer::from(2869)));
+        // the 7th cyclotomic polynomial: disc (-1)^(6*5/2) 7^5 = -16807 (common practice)
+        assert_eq!(check("x^6+x^5+x^4+x^3+x^2+x+1"), Ok(Integer::from(-16807)));
+    }
+
+    #[test]
+    fn refusals_name_their_reason() {
+        assert_eq!(check("x^2 - 5"), Err(Refusal::Quadratic(Integer::from(20))));
+        assert_eq!(
+            check("x^2 + x + 1"),
+            Err(Refusal::Quadratic(Integer::from(-3)))
+        );
+        assert_eq!(check("x - 1"), Err(Refusal::Degree(1)));
+        assert_eq!(check("x^7 - 2"), Err(Refusal::Degree(7)));
+        assert_eq!(check("2x^3 - 1"), Err(Refusal::NotMonic(Integer::from(2))));
+        assert_eq!(check("x^3 - 3x + 2"), Err(Refusal::Repeated)); // (x - 1)^2 (x + 2)
+                                                                   // (x^2 + 1)(x^2 + x + 1): a quadratic factor over Q
+        assert_eq!(
+            check("x^4 + x^3 + 2x^2 + x + 1"),
+            Err(Refusal::NotShownIrreducible(vec![2]))
+        );
+        // (x - 2)(x^2 + 2x + 4) = x^3 - 8
+        assert_eq!(
+            check("x^3 - 8"),
+            Err(Refusal::NotShownIrreducible(vec![1, 2]))
+        );
+        let shown = check("x^3 - 8").unwrap_err().to_string();
+        assert!(shown.contains("probably reducible"), "{shown}");
     }
 }
