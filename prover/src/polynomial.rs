@@ -189,14 +189,30 @@ pub enum Refusal {
 impl std::fmt::Display for Refusal {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            Refusal::Degree(d) => write!(f, "degree {d}: number fields of degree 3 to 6 are supported"),
-            Refusal::Quadratic(d) => write!(f, "degree 2: prove the quadratic order of discriminant {d} instead"),
-            Refusal::NotMonic(c) => write!(f, "the leading coefficient is {c}: the polynomial must be monic"),
-            Refusal::Repeated => write!(f, "the discriminant is 0: the polynomial has a repeated factor"),
-            Refusal::NotShownIrreducible(ds) => write!(
+            Refusal::Degree(d) => write!(
                 f,
-                "not shown irreducible: modulo each of {PATTERN_PRIMES} primes the factorisation allows a factor over Q of degree {ds:?}; the polynomial is probably reducible"
+                "degree {d}: number fields of degree 3 to 6 are supported"
             ),
+            Refusal::Quadratic(d) => write!(
+                f,
+                "degree 2: prove the quadratic order of discriminant {d} instead"
+            ),
+            Refusal::NotMonic(c) => write!(
+                f,
+                "the leading coefficient is {c}: the polynomial must be monic"
+            ),
+            Refusal::Repeated => write!(
+                f,
+                "the discriminant is 0: the polynomial has a repeated factor"
+            ),
+            Refusal::NotShownIrreducible(ds) => {
+                let ds: Vec<String> = ds.iter().map(|d| d.to_string()).collect();
+                write!(
+                    f,
+                    "not shown irreducible: modulo each of {PATTERN_PRIMES} primes the factorisation allows a factor over Q of degree {}; the polynomial is probably reducible",
+                    ds.join(" or ")
+                )
+            }
         }
     }
 }
@@ -358,6 +374,9 @@ mod tests {
             Err(Refusal::NotShownIrreducible(vec![1, 2]))
         );
         let shown = check("x^3 - 8").unwrap_err().to_string();
-        assert!(shown.contains("probably reducible"), "{shown}");
+        assert!(
+            shown.contains("of degree 1 or 2; the polynomial is probably reducible"),
+            "{shown}"
+        );
     }
 }
