@@ -2,7 +2,7 @@
 //! `x^3-2*x+5`, `X^4 + 3x^2 - x + 1`. Integer coefficients only, in one
 //! variable `x` (either case), terms in any order, like terms added.
 //!
-//! The grammar, after spaces are dropped:
+//! The grammar (spaces may stand between tokens, never inside a number):
 //!
 //! ```text
 //! poly  := ['+' | '-'] term (('+' | '-') term)*
@@ -49,6 +49,14 @@ pub fn parse(input: &str) -> Result<Vec<Integer>, ParseError> {
     };
     let end = input.len();
     let at = |i: usize| chars.get(i).map_or(end, |&(o, _)| o);
+    // The run of ASCII digits from `i`: where it ends, and its text.
+    let digits = |i: usize| {
+        let stop = (i..chars.len())
+            .find(|&k| !chars[k].1.is_ascii_digit())
+            .unwrap_or(chars.len());
+        let text: String = chars[i..stop].iter().map(|&(_, c)| c).collect();
+        (stop, text)
+    };
     let mut coeffs: Vec<Integer> = Vec::new();
     let mut i = 0;
     skip(&mut i);
@@ -80,12 +88,10 @@ pub fn parse(input: &str) -> Result<Vec<Integer>, ParseError> {
         first = false;
         // Coefficient.
         let start = i;
-        while i < chars.len() && chars[i].1.is_ascii_digit() {
-            i += 1;
-        }
+        let (stop, text) = digits(i);
+        i = stop;
         let coeff = if i > start {
-            let digits: String = chars[start..i].iter().map(|&(_, c)| c).collect();
-            Some(digits.parse::<Integer>().map_err(|_| ParseError {
+            Some(text.parse::<Integer>().map_err(|_| ParseError {
                 at: at(start),
                 what: "bad number",
             })?)
@@ -107,17 +113,15 @@ pub fn parse(input: &str) -> Result<Vec<Integer>, ParseError> {
                 i += 1;
                 skip(&mut i);
                 let s = i;
-                while i < chars.len() && chars[i].1.is_ascii_digit() {
-                    i += 1;
-                }
+                let (stop, text) = digits(i);
+                i = stop;
                 if i == s {
                     return Err(ParseError {
                         at: at(i),
                         what: "expected an exponent after '^'",
                     });
                 }
-                let digits: String = chars[s..i].iter().map(|&(_, c)| c).collect();
-                match digits.parse::<usize>() {
+                match text.parse::<usize>() {
                     Ok(e) if e <= MAX_EXPONENT => e,
                     _ => {
                         return Err(ParseError {
