@@ -67,3 +67,20 @@ pub const MAX_FILE_BYTES: usize = 256 << 20;
 pub const MAX_CBOR_DEPTH: usize = 24;
 /// CBOR items in one file.
 pub const MAX_CBOR_ITEMS: u64 = 50_000_000;
+
+// Number fields: orders and prime ideals.
+/// Smallest degree of the defining polynomial `F` of an order given by a
+/// basis (`field/order.rs`); 2 is allowed so that quadratic fields can be
+/// checked against the quadratic path.
+pub const MIN_FIELD_DEGREE: usize = 2;
+/// Largest degree of the defining polynomial `F` of an order.
+pub const MAX_FIELD_DEGREE: usize = 6;
+/// Bits of a coefficient of `F`, of the common denominator of an order's
+/// basis and of an entry of its Hermite form.
+pub const MAX_ORDER_ENTRY_BITS: u32 = 1024;
+/// Bits of the prime `p` in the `p`-maximality test (its Frobenius powers
+/// cost about `bits(p)·⌈log_p n⌉` squarings of an element, for each of the
+/// `n` basis elements).
+pub const MAX_MAXIMALITY_PRIME_BITS: u32 = 2048;
+/// Bits of a power `a^e` of an element, estimated before it is computed.
+pub const MAX_POWER_BITS: u64 = 1 << 20;
