@@ -15,8 +15,12 @@
 
 use rug::Integer;
 
-/// `v mod p`, entries in `[0, p)`; `p ≥ 1` (the callers check `p ≥ 2`).
+/// `v mod p`, entries in `[0, p)`, for `p ≥ 1`; for `p < 1`, where no
+/// reduction is meant, `v` unchanged (the callers check `p ≥ 2` first).
 pub fn reduce(v: &[Integer], p: &Integer) -> Vec<Integer> {
+    if *p < 1 {
+        return v.to_vec();
+    }
     v.iter().map(|c| Integer::from(c.modulo_ref(p))).collect()
 }
 
@@ -187,6 +191,8 @@ mod tests {
         assert_eq!(echelon(&m(&[&[2, 1]]), &Integer::from(4)), None);
         assert_eq!(in_row_space(&a, &v(&[1, 2]), &p), None);
         assert_eq!(rank(&[], &p), Some(0));
+        assert_eq!(reduce(&v(&[-3, 7]), &p), v(&[2, 2]));
+        assert_eq!(reduce(&v(&[-3, 7]), &Integer::new()), v(&[-3, 7]));
         assert_eq!(kernel(&[], &p), Some(vec![]));
     }
 

@@ -362,7 +362,7 @@ impl FieldOrder {
             .map(|c| u64::from(c.significant_bits()))
             .max()
             .unwrap_or(0);
-        if u64::from(e) * (bits_a + self.table_bits + 6) > MAX_POWER_BITS {
+        if u64::from(e).saturating_mul(bits_a + self.table_bits + 6) > MAX_POWER_BITS {
             return None;
         }
         let mut acc = self.one();

@@ -273,7 +273,10 @@ pub fn check_prime(
 /// `v_P(α)` for a non-zero `α ∈ O` (coordinates, length `n`): the largest
 /// `k ≤ cap` with `α γ^k ∈ p^k O`, found by `α ← αγ/p` while `αγ ∈ pO`.
 /// `None` if `α = 0`, has another length, or `v_P(α) > cap`. At most
-/// `cap + 1` products.
+/// `min(cap, v_P(α)) + 1` products; each step adds at most
+/// `bits(table) + 6` bits to the coordinates (`γ` is reduced mod `p`), and
+/// `v_P(α) ≤ log_p |N(α)|`. `prime` must come from [`check_prime`] on the
+/// same order.
 ///
 /// Why: `O` is `p`-maximal ([`check_prime`] step 2), so its localisation
 /// `O_(p)` is a Dedekind ring whose primes are those above `p`, and an
