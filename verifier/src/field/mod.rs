@@ -5,6 +5,7 @@
 //! `general-fields.md`.
 
 pub mod fppoly;
+pub mod roots;
 pub mod zpoly;
 
 /// A small deterministic generator for the tests (SplitMix64, common
