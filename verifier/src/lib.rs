@@ -97,6 +97,11 @@ pub mod math {
             resultant, sub,
         };
     }
+    /// Number fields: checked root enclosures of `F`, the logarithmic
+    /// embedding, determinants and regulators in intervals.
+    pub mod field {
+        pub use crate::field::roots::{abs_det, check_roots, regulator, RootError, Roots};
+    }
     /// Units in compact representation: the chain check, which the prover
     /// also uses to confirm the chain it built.
     pub mod units {

@@ -84,3 +84,17 @@ pub const MAX_ORDER_ENTRY_BITS: u32 = 1024;
 pub const MAX_MAXIMALITY_PRIME_BITS: u32 = 2048;
 /// Bits of a power `a^e` of an element, estimated before it is computed.
 pub const MAX_POWER_BITS: u64 = 1 << 20;
+
+// Number fields: roots and logarithms.
+/// Degree of a polynomial whose root enclosures are checked.
+pub const MAX_ROOT_DEGREE: usize = 6;
+/// Bits of a coefficient of that polynomial.
+pub const MAX_ROOT_COEFF_BITS: u32 = 1024;
+/// Bits of the mantissa of an end point of a root enclosure.
+pub const MAX_ROOT_ENDPOINT_BITS: u32 = 4096;
+/// Largest `|exponent|` of an end point of a root enclosure.
+pub const MAX_ROOT_EXPONENT: i64 = 4096;
+/// Working precision (bits) of the root checks and the log embeddings.
+pub const MAX_ROOT_PREC: u32 = 8192;
+/// Size `r` of the `r × r` determinants of a regulator (`r = r1 + r2 - 1`).
+pub const MAX_REGULATOR_RANK: usize = 5;

@@ -8,6 +8,7 @@ pub mod fppoly;
 pub mod linmodp;
 pub mod order;
 pub mod prime;
+pub mod roots;
 pub mod zpoly;
 
 /// A small deterministic generator for the tests (SplitMix64, common
