@@ -17,10 +17,12 @@
 #![forbid(unsafe_code)]
 
 pub mod cbor;
+pub mod field;
 pub mod json;
 pub mod model;
 
 pub use cbor::DecodeError;
+pub use field::{Embedding, FieldBody, FieldPrime, FieldUnits};
 pub use model::*;
 
 use ciborium::Value;
@@ -163,6 +165,9 @@ pub fn decode_file(bytes: &[u8]) -> Result<Decoded, FileError> {
         }),
         Document::OrderWitness(_) => Err(FileError::Decode(DecodeError::Schema(
             "an order-witness certificate, not a full one".into(),
+        ))),
+        Document::Field(_) => Err(FileError::Decode(DecodeError::Schema(
+            "a number-field certificate, not a quadratic one".into(),
         ))),
     }
 }

@@ -19,6 +19,15 @@ pub const FORMAT_VERSION: u64 = 1;
 pub enum Order {
     /// `O_D = Z[(D + sqrt D)/2]` for a discriminant `D`.
     Quadratic { discriminant: Integer },
+    /// An order of the number field `K = Q[x]/(F)`, `F` monic and
+    /// irreducible (coefficients from the constant term up): the Z-span of
+    /// `ω_i = (Σ_j basis[i][j] θ^j) / denominator`, with `basis` lower
+    /// triangular in Hermite form.
+    Polynomial {
+        polynomial: Vec<Integer>,
+        basis: Vec<Vec<Integer>>,
+        denominator: Integer,
+    },
 }
 
 /// Who produced the certificate. The verifier never relies on it.
@@ -118,6 +127,9 @@ pub enum Witness {
     /// For the matrix `H` as a whole: row `i` is the combination `rows[i]`
     /// of raw and derived relations, indexed as for [`Witness::Combination`].
     Combinations { rows: Vec<Vec<(u32, Integer)>> },
+    /// Number fields: an element `α` of the order, by its coordinates over
+    /// the order's basis, with `(α) = ∏ P_i^{e_i}` (all `e_i >= 0`).
+    Coordinates { coordinates: Vec<Integer> },
 }
 
 /// One step of a compact representation: the ideal
@@ -372,6 +384,9 @@ pub enum Document {
     Relations(Box<Body>),
     /// An element of exact order `H` (a body with the key `order-witness`).
     OrderWitness(Box<WitnessBody>),
+    /// An order of a number field of degree 3 to 6 (its order has the
+    /// kind `polynomial`).
+    Field(Box<crate::field::FieldBody>),
 }
 
 impl Document {
@@ -379,6 +394,7 @@ impl Document {
         match self {
             Document::Relations(b) => b.to_value(),
             Document::OrderWitness(w) => w.to_value(),
+            Document::Field(f) => f.to_value(),
         }
     }
 
@@ -386,8 +402,9 @@ impl Document {
         cbor::from_value(&self.to_value())
     }
 
-    /// A body with the key `order-witness` is an order witness; any other
-    /// is the full certificate.
+    /// A body whose order has the kind `polynomial` is a number-field
+    /// certificate, a body with the key `order-witness` an order witness;
+    /// any other is the full certificate.
     pub fn from_value(v: &Value) -> Result<Document, DecodeError> {
         let is_witness = match v {
             Value::Map(entries) => entries
@@ -395,7 +412,11 @@ impl Document {
                 .any(|(k, _)| matches!(k, Value::Text(t) if t == "order-witness")),
             _ => false,
         };
-        if is_witness {
+        if crate::field::is_field_body(v) {
+            Ok(Document::Field(Box::new(
+                crate::field::FieldBody::from_value(v)?,
+            )))
+        } else if is_witness {
             Ok(Document::OrderWitness(Box::new(WitnessBody::from_value(
                 v,
             )?)))
@@ -407,7 +428,7 @@ impl Document {
 
 /// A name read from a file, for an error message: quoted, with control
 /// characters escaped, and at most 40 characters of it.
-fn shown(s: &str) -> String {
+pub(crate) fn shown(s: &str) -> String {
     let mut out: String = s.chars().take(40).flat_map(char::escape_default).collect();
     if s.chars().nth(40).is_some() {
         out.push('…');
@@ -417,11 +438,11 @@ fn shown(s: &str) -> String {
 
 // ---------------------------------------------------------------- encode
 
-fn ints(v: &[Integer]) -> Value {
+pub(crate) fn ints(v: &[Integer]) -> Value {
     Value::Array(v.iter().map(cbor::int).collect())
 }
 
-fn matrix(m: &[Vec<Integer>]) -> Value {
+pub(crate) fn matrix(m: &[Vec<Integer>]) -> Value {
     Value::Array(m.iter().map(|r| ints(r)).collect())
 }
 
@@ -429,11 +450,11 @@ fn dyadic(d: &Dyadic) -> Value {
     Value::Array(vec![cbor::int(&d.mantissa), cbor::sint(d.exponent)])
 }
 
-fn bounds(b: &Bounds) -> Value {
+pub(crate) fn bounds(b: &Bounds) -> Value {
     Value::Array(vec![dyadic(&b.lo), dyadic(&b.hi)])
 }
 
-fn sparse(v: &[(u32, Integer)]) -> Value {
+pub(crate) fn sparse(v: &[(u32, Integer)]) -> Value {
     Value::Array(
         v.iter()
             .map(|(i, e)| Value::Array(vec![cbor::uint(u64::from(*i)), cbor::int(e)]))
@@ -453,6 +474,10 @@ fn witness(w: &Witness) -> Value {
         Witness::Combination { terms } => {
             cbor::map(vec![kind("combination"), ("terms", sparse(terms))])
         }
+        Witness::Coordinates { coordinates } => cbor::map(vec![
+            kind("coordinates"),
+            ("coordinates", ints(coordinates)),
+        ]),
         Witness::Combinations { rows } => cbor::map(vec![
             kind("combinations"),
             (
@@ -523,15 +548,26 @@ fn form(f: &Form) -> Value {
     Value::Array(vec![cbor::int(&f.a), cbor::int(&f.b), cbor::int(&f.c)])
 }
 
-fn order_value(o: &Order) -> Value {
-    let Order::Quadratic { discriminant } = o;
-    cbor::map(vec![
-        ("kind", Value::Text("quadratic".into())),
-        ("discriminant", cbor::int(discriminant)),
-    ])
+pub(crate) fn order_value(o: &Order) -> Value {
+    match o {
+        Order::Quadratic { discriminant } => cbor::map(vec![
+            ("kind", Value::Text("quadratic".into())),
+            ("discriminant", cbor::int(discriminant)),
+        ]),
+        Order::Polynomial {
+            polynomial,
+            basis,
+            denominator,
+        } => cbor::map(vec![
+            ("kind", Value::Text("polynomial".into())),
+            ("polynomial", ints(polynomial)),
+            ("basis", matrix(basis)),
+            ("denominator", cbor::int(denominator)),
+        ]),
+    }
 }
 
-fn producer_value(p: &Producer) -> Value {
+pub(crate) fn producer_value(p: &Producer) -> Value {
     cbor::map(vec![
         ("tool", Value::Text(p.tool.clone())),
         ("version", Value::Text(p.version.clone())),
@@ -561,14 +597,14 @@ fn prime_powers_value(f: &[PrimePower]) -> Value {
     )
 }
 
-fn maximality_value(m: &Option<Vec<PrimePower>>) -> Value {
+pub(crate) fn maximality_value(m: &Option<Vec<PrimePower>>) -> Value {
     match m {
         None => Value::Null,
         Some(f) => prime_powers_value(f),
     }
 }
 
-fn euler_value(e: &EulerTrace) -> Value {
+pub(crate) fn euler_value(e: &EulerTrace) -> Value {
     cbor::map(vec![
         ("theorem", Value::Text(e.theorem.clone())),
         ("x", cbor::uint(e.x)),
@@ -585,30 +621,83 @@ fn euler_value(e: &EulerTrace) -> Value {
     ])
 }
 
+pub(crate) fn claim_value(claim: &Claim) -> Value {
+    cbor::map(vec![
+        ("class-number", cbor::int(&claim.class_number)),
+        ("invariants", ints(&claim.invariants)),
+        (
+            "generators",
+            Value::Array(
+                claim
+                    .generators
+                    .iter()
+                    .map(|g| {
+                        let mut m = vec![("exponents", ints(&g.exponents))];
+                        if let Some(f) = &g.form {
+                            m.push(("form", form(f)));
+                        }
+                        cbor::map(m)
+                    })
+                    .collect(),
+            ),
+        ),
+    ])
+}
+
+pub(crate) fn lattice_value(l: &Lattice) -> Value {
+    let smith = cbor::map(vec![
+        ("u", matrix(&l.smith.u)),
+        ("u-inv", matrix(&l.smith.u_inv)),
+        ("v", matrix(&l.smith.v)),
+        ("v-inv", matrix(&l.smith.v_inv)),
+        ("diagonal", ints(&l.smith.diagonal)),
+    ]);
+    let mut lattice = vec![
+        (
+            "generators",
+            Value::Array(
+                l.generators
+                    .iter()
+                    .map(|g| cbor::uint(u64::from(*g)))
+                    .collect(),
+            ),
+        ),
+        ("relations", matrix(&l.relations)),
+        ("relation-witness", witness(&l.relation_witness)),
+        ("smith", smith),
+        (
+            "eliminations",
+            Value::Array(
+                l.eliminations
+                    .iter()
+                    .map(|e| {
+                        Value::Array(vec![cbor::uint(u64::from(e.pivot)), relation(&e.relation)])
+                    })
+                    .collect(),
+            ),
+        ),
+    ];
+    if let Some(raw) = &l.raw_relations {
+        lattice.push((
+            "raw-relations",
+            Value::Array(raw.iter().map(relation).collect()),
+        ));
+    }
+    // absent when empty too: one encoding for "none"
+    if let Some(derived) = l.derived_relations.as_ref().filter(|d| !d.is_empty()) {
+        lattice.push((
+            "derived-relations",
+            Value::Array(derived.iter().map(relation).collect()),
+        ));
+    }
+    cbor::map(lattice)
+}
+
 impl Body {
     pub fn to_value(&self) -> Value {
         let order = order_value(&self.order);
         let producer = producer_value(&self.producer);
-        let claim = cbor::map(vec![
-            ("class-number", cbor::int(&self.claim.class_number)),
-            ("invariants", ints(&self.claim.invariants)),
-            (
-                "generators",
-                Value::Array(
-                    self.claim
-                        .generators
-                        .iter()
-                        .map(|g| {
-                            let mut m = vec![("exponents", ints(&g.exponents))];
-                            if let Some(f) = &g.form {
-                                m.push(("form", form(f)));
-                            }
-                            cbor::map(m)
-                        })
-                        .collect(),
-                ),
-            ),
-        ]);
+        let claim = claim_value(&self.claim);
         let conductor = conductor_value(&self.conductor_small);
         let maximality = maximality_value(&self.maximality);
         let ideals = Value::Array(
@@ -623,56 +712,7 @@ impl Body {
             ("kind", Value::Text("quadratic-forms".into())),
             ("ideals", ideals),
         ]);
-        let l = &self.lattice;
-        let smith = cbor::map(vec![
-            ("u", matrix(&l.smith.u)),
-            ("u-inv", matrix(&l.smith.u_inv)),
-            ("v", matrix(&l.smith.v)),
-            ("v-inv", matrix(&l.smith.v_inv)),
-            ("diagonal", ints(&l.smith.diagonal)),
-        ]);
-        let mut lattice = vec![
-            (
-                "generators",
-                Value::Array(
-                    l.generators
-                        .iter()
-                        .map(|g| cbor::uint(u64::from(*g)))
-                        .collect(),
-                ),
-            ),
-            ("relations", matrix(&l.relations)),
-            ("relation-witness", witness(&l.relation_witness)),
-            ("smith", smith),
-            (
-                "eliminations",
-                Value::Array(
-                    l.eliminations
-                        .iter()
-                        .map(|e| {
-                            Value::Array(vec![
-                                cbor::uint(u64::from(e.pivot)),
-                                relation(&e.relation),
-                            ])
-                        })
-                        .collect(),
-                ),
-            ),
-        ];
-        if let Some(raw) = &l.raw_relations {
-            lattice.push((
-                "raw-relations",
-                Value::Array(raw.iter().map(relation).collect()),
-            ));
-        }
-        // absent when empty too: one encoding for "none"
-        if let Some(derived) = l.derived_relations.as_ref().filter(|d| !d.is_empty()) {
-            lattice.push((
-                "derived-relations",
-                Value::Array(derived.iter().map(relation).collect()),
-            ));
-        }
-        let lattice = cbor::map(lattice);
+        let lattice = lattice_value(&self.lattice);
         let euler = euler_value(&self.euler);
         let mut top = vec![
             ("producer", producer),
@@ -726,21 +766,21 @@ impl Body {
 
 // ---------------------------------------------------------------- decode
 
-fn get_ints(v: &Value, what: &str) -> Result<Vec<Integer>, DecodeError> {
+pub(crate) fn get_ints(v: &Value, what: &str) -> Result<Vec<Integer>, DecodeError> {
     cbor::get_array(v, what)?
         .iter()
         .map(|x| cbor::get_int(x, what))
         .collect()
 }
 
-fn get_matrix(v: &Value, what: &str) -> Result<Vec<Vec<Integer>>, DecodeError> {
+pub(crate) fn get_matrix(v: &Value, what: &str) -> Result<Vec<Vec<Integer>>, DecodeError> {
     cbor::get_array(v, what)?
         .iter()
         .map(|r| get_ints(r, what))
         .collect()
 }
 
-fn pair<'a>(v: &'a Value, what: &str) -> Result<(&'a Value, &'a Value), DecodeError> {
+pub(crate) fn pair<'a>(v: &'a Value, what: &str) -> Result<(&'a Value, &'a Value), DecodeError> {
     match cbor::get_array(v, what)? {
         [a, b] => Ok((a, b)),
         _ => Err(cbor::schema(what, "a pair")),
@@ -755,7 +795,7 @@ fn get_dyadic(v: &Value, what: &str) -> Result<Dyadic, DecodeError> {
     })
 }
 
-fn get_bounds(v: &Value, what: &str) -> Result<Bounds, DecodeError> {
+pub(crate) fn get_bounds(v: &Value, what: &str) -> Result<Bounds, DecodeError> {
     let (lo, hi) = pair(v, what)?;
     Ok(Bounds {
         lo: get_dyadic(lo, what)?,
@@ -763,7 +803,7 @@ fn get_bounds(v: &Value, what: &str) -> Result<Bounds, DecodeError> {
     })
 }
 
-fn get_u32(v: &Value, what: &str) -> Result<u32, DecodeError> {
+pub(crate) fn get_u32(v: &Value, what: &str) -> Result<u32, DecodeError> {
     u32::try_from(cbor::get_u64(v, what)?).map_err(|_| cbor::schema(what, "below 2^32"))
 }
 
@@ -773,7 +813,7 @@ fn get_kind<'a>(v: &'a Value, what: &str) -> Result<(String, MapReader<'a>), Dec
     Ok((kind, m))
 }
 
-fn get_sparse(v: &Value, what: &str) -> Result<Vec<(u32, Integer)>, DecodeError> {
+pub(crate) fn get_sparse(v: &Value, what: &str) -> Result<Vec<(u32, Integer)>, DecodeError> {
     cbor::get_array(v, what)?
         .iter()
         .map(|x| {
@@ -790,6 +830,9 @@ fn get_witness(v: &Value, what: &str) -> Result<Witness, DecodeError> {
         "element" => Witness::Element {
             x: cbor::get_int(m.req("x")?, what)?,
             y: cbor::get_int(m.req("y")?, what)?,
+        },
+        "coordinates" => Witness::Coordinates {
+            coordinates: get_ints(m.req("coordinates")?, what)?,
         },
         "combination" => Witness::Combination {
             terms: get_sparse(m.req("terms")?, what)?,
@@ -875,7 +918,7 @@ fn get_form(v: &Value, what: &str) -> Result<Form, DecodeError> {
     }
 }
 
-fn get_producer(v: &Value) -> Result<Producer, DecodeError> {
+pub(crate) fn get_producer(v: &Value) -> Result<Producer, DecodeError> {
     let mut p = MapReader::new(v, "body.producer")?;
     let producer = Producer {
         tool: cbor::get_text(p.req("tool")?, "producer.tool")?.to_string(),
@@ -886,11 +929,16 @@ fn get_producer(v: &Value) -> Result<Producer, DecodeError> {
     Ok(producer)
 }
 
-fn get_order(v: &Value) -> Result<Order, DecodeError> {
+pub(crate) fn get_order(v: &Value) -> Result<Order, DecodeError> {
     let (kind, mut o) = get_kind(v, "body.order")?;
     let order = match kind.as_str() {
         "quadratic" => Order::Quadratic {
             discriminant: cbor::get_int(o.req("discriminant")?, "order.discriminant")?,
+        },
+        "polynomial" => Order::Polynomial {
+            polynomial: get_ints(o.req("polynomial")?, "order.polynomial")?,
+            basis: get_matrix(o.req("basis")?, "order.basis")?,
+            denominator: cbor::get_int(o.req("denominator")?, "order.denominator")?,
         },
         _ => {
             return Err(DecodeError::Schema(format!(
@@ -934,14 +982,14 @@ fn get_prime_powers(v: &Value, what: &str) -> Result<Vec<PrimePower>, DecodeErro
         .collect()
 }
 
-fn get_maximality(v: &Value) -> Result<Option<Vec<PrimePower>>, DecodeError> {
+pub(crate) fn get_maximality(v: &Value) -> Result<Option<Vec<PrimePower>>, DecodeError> {
     match v {
         Value::Null => Ok(None),
         v => Ok(Some(get_prime_powers(v, "maximality")?)),
     }
 }
 
-fn get_euler(v: &Value) -> Result<EulerTrace, DecodeError> {
+pub(crate) fn get_euler(v: &Value) -> Result<EulerTrace, DecodeError> {
     let mut e = MapReader::new(v, "body.euler")?;
     let euler = EulerTrace {
         theorem: cbor::get_text(e.req("theorem")?, "euler.theorem")?.to_string(),
@@ -963,6 +1011,91 @@ fn get_euler(v: &Value) -> Result<EulerTrace, DecodeError> {
     Ok(euler)
 }
 
+pub(crate) fn get_claim(v: &Value) -> Result<Claim, DecodeError> {
+    let mut c = MapReader::new(v, "body.claim")?;
+    let generators = cbor::get_array(c.req("generators")?, "claim.generators")?
+        .iter()
+        .map(|g| {
+            let mut gm = MapReader::new(g, "claim.generators[]")?;
+            let cg = CyclicGenerator {
+                exponents: get_ints(gm.req("exponents")?, "generator.exponents")?,
+                form: gm
+                    .opt("form")
+                    .map(|f| get_form(f, "generator.form"))
+                    .transpose()?,
+            };
+            gm.finish()?;
+            Ok(cg)
+        })
+        .collect::<Result<Vec<_>, DecodeError>>()?;
+    let claim = Claim {
+        class_number: cbor::get_int(c.req("class-number")?, "claim.class-number")?,
+        invariants: get_ints(c.req("invariants")?, "claim.invariants")?,
+        generators,
+    };
+    c.finish()?;
+    Ok(claim)
+}
+
+pub(crate) fn get_lattice(v: &Value) -> Result<Lattice, DecodeError> {
+    let mut l = MapReader::new(v, "body.lattice")?;
+    let mut s = MapReader::new(l.req("smith")?, "lattice.smith")?;
+    let smith = Smith {
+        u: get_matrix(s.req("u")?, "smith.u")?,
+        u_inv: get_matrix(s.req("u-inv")?, "smith.u-inv")?,
+        v: get_matrix(s.req("v")?, "smith.v")?,
+        v_inv: get_matrix(s.req("v-inv")?, "smith.v-inv")?,
+        diagonal: get_ints(s.req("diagonal")?, "smith.diagonal")?,
+    };
+    s.finish()?;
+    let lattice = Lattice {
+        generators: cbor::get_array(l.req("generators")?, "lattice.generators")?
+            .iter()
+            .map(|g| get_u32(g, "lattice.generators[]"))
+            .collect::<Result<Vec<_>, DecodeError>>()?,
+        relations: get_matrix(l.req("relations")?, "lattice.relations")?,
+        relation_witness: get_witness(l.req("relation-witness")?, "lattice.relation-witness")?,
+        smith,
+        eliminations: cbor::get_array(l.req("eliminations")?, "lattice.eliminations")?
+            .iter()
+            .map(|x| {
+                let (p, r) = pair(x, "elimination")?;
+                Ok(Elimination {
+                    pivot: get_u32(p, "elimination pivot")?,
+                    relation: get_relation(r, "elimination relation")?,
+                })
+            })
+            .collect::<Result<Vec<_>, DecodeError>>()?,
+        raw_relations: l
+            .opt("raw-relations")
+            .map(|v| {
+                cbor::get_array(v, "lattice.raw-relations")?
+                    .iter()
+                    .map(|r| get_relation(r, "raw relation"))
+                    .collect::<Result<Vec<_>, DecodeError>>()
+            })
+            .transpose()?,
+        derived_relations: l
+            .opt("derived-relations")
+            .map(|v| {
+                let list = cbor::get_array(v, "lattice.derived-relations")?;
+                if list.is_empty() {
+                    // "none" is the absent key: one encoding only
+                    return Err(cbor::schema(
+                        "lattice.derived-relations",
+                        "a nonempty array (the key is absent when there are none)",
+                    ));
+                }
+                list.iter()
+                    .map(|r| get_relation(r, "derived relation"))
+                    .collect::<Result<Vec<_>, DecodeError>>()
+            })
+            .transpose()?,
+    };
+    l.finish()?;
+    Ok(lattice)
+}
+
 impl Body {
     pub fn from_value(v: &Value) -> Result<Body, DecodeError> {
         let mut top = MapReader::new(v, "body")?;
@@ -970,28 +1103,7 @@ impl Body {
         let producer = get_producer(top.req("producer")?)?;
         let order = get_order(top.req("order")?)?;
 
-        let mut c = MapReader::new(top.req("claim")?, "body.claim")?;
-        let generators = cbor::get_array(c.req("generators")?, "claim.generators")?
-            .iter()
-            .map(|g| {
-                let mut gm = MapReader::new(g, "claim.generators[]")?;
-                let cg = CyclicGenerator {
-                    exponents: get_ints(gm.req("exponents")?, "generator.exponents")?,
-                    form: gm
-                        .opt("form")
-                        .map(|f| get_form(f, "generator.form"))
-                        .transpose()?,
-                };
-                gm.finish()?;
-                Ok(cg)
-            })
-            .collect::<Result<Vec<_>, DecodeError>>()?;
-        let claim = Claim {
-            class_number: cbor::get_int(c.req("class-number")?, "claim.class-number")?,
-            invariants: get_ints(c.req("invariants")?, "claim.invariants")?,
-            generators,
-        };
-        c.finish()?;
+        let claim = get_claim(top.req("claim")?)?;
 
         let conductor_small = get_conductor(top.req("conductor-small")?)?;
         let maximality = get_maximality(top.req("maximality")?)?;
@@ -1018,61 +1130,7 @@ impl Body {
             .collect::<Result<Vec<_>, DecodeError>>()?;
         fbm.finish()?;
 
-        let mut l = MapReader::new(top.req("lattice")?, "body.lattice")?;
-        let mut s = MapReader::new(l.req("smith")?, "lattice.smith")?;
-        let smith = Smith {
-            u: get_matrix(s.req("u")?, "smith.u")?,
-            u_inv: get_matrix(s.req("u-inv")?, "smith.u-inv")?,
-            v: get_matrix(s.req("v")?, "smith.v")?,
-            v_inv: get_matrix(s.req("v-inv")?, "smith.v-inv")?,
-            diagonal: get_ints(s.req("diagonal")?, "smith.diagonal")?,
-        };
-        s.finish()?;
-        let lattice = Lattice {
-            generators: cbor::get_array(l.req("generators")?, "lattice.generators")?
-                .iter()
-                .map(|g| get_u32(g, "lattice.generators[]"))
-                .collect::<Result<Vec<_>, DecodeError>>()?,
-            relations: get_matrix(l.req("relations")?, "lattice.relations")?,
-            relation_witness: get_witness(l.req("relation-witness")?, "lattice.relation-witness")?,
-            smith,
-            eliminations: cbor::get_array(l.req("eliminations")?, "lattice.eliminations")?
-                .iter()
-                .map(|x| {
-                    let (p, r) = pair(x, "elimination")?;
-                    Ok(Elimination {
-                        pivot: get_u32(p, "elimination pivot")?,
-                        relation: get_relation(r, "elimination relation")?,
-                    })
-                })
-                .collect::<Result<Vec<_>, DecodeError>>()?,
-            raw_relations: l
-                .opt("raw-relations")
-                .map(|v| {
-                    cbor::get_array(v, "lattice.raw-relations")?
-                        .iter()
-                        .map(|r| get_relation(r, "raw relation"))
-                        .collect::<Result<Vec<_>, DecodeError>>()
-                })
-                .transpose()?,
-            derived_relations: l
-                .opt("derived-relations")
-                .map(|v| {
-                    let list = cbor::get_array(v, "lattice.derived-relations")?;
-                    if list.is_empty() {
-                        // "none" is the absent key: one encoding only
-                        return Err(cbor::schema(
-                            "lattice.derived-relations",
-                            "a nonempty array (the key is absent when there are none)",
-                        ));
-                    }
-                    list.iter()
-                        .map(|r| get_relation(r, "derived relation"))
-                        .collect::<Result<Vec<_>, DecodeError>>()
-                })
-                .transpose()?,
-        };
-        l.finish()?;
+        let lattice = get_lattice(top.req("lattice")?)?;
 
         let euler = get_euler(top.req("euler")?)?;
         let units = match top.opt("units") {

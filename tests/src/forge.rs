@@ -62,8 +62,10 @@ pub struct Forgery {
 }
 
 pub fn discriminant(body: &Body) -> Integer {
-    let Order::Quadratic { discriminant } = &body.order;
-    discriminant.clone()
+    match &body.order {
+        Order::Quadratic { discriminant } => discriminant.clone(),
+        Order::Polynomial { .. } => panic!("a quadratic body was expected"),
+    }
 }
 
 /// The reduced form of factor-base ideal `i`.

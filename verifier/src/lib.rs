@@ -76,7 +76,10 @@ pub mod math {
     /// The Euler product of the analytic bound (registry entry
     /// `belabas-friedman-2015-thm1`).
     pub mod euler {
-        pub use crate::analytic::euler::{compute, error_bound, EulerResult, MIN_X};
+        pub use crate::analytic::euler::{
+            compute, error_bound, error_bound_degree, EulerResult, MIN_X,
+        };
+        pub use crate::analytic::field::{euler_field, log_hr};
     }
     /// The unconditional class number series (`erfc-series-class-number`).
     pub mod series {
@@ -165,14 +168,34 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
             ),
             pipeline::verify_order_witness(w, progress),
         ),
+        Document::Field(body) => {
+            return Report {
+                summary: Summary {
+                    certificate_sha256: id,
+                    kind: Some(report::CertificateKind::Relations),
+                    discriminant: None,
+                    polynomial: match &body.order {
+                        Order::Polynomial { polynomial, .. } => Some(polynomial.clone()),
+                        Order::Quadratic { .. } => None,
+                    },
+                    claimed_class_number: Some(body.claim.class_number.clone()),
+                    claimed_invariants: Some(body.claim.invariants.clone()),
+                },
+                outcome: pipeline::verify_field(body, progress),
+            }
+        }
     };
-    let Order::Quadratic { discriminant } = order;
+    let discriminant = match order {
+        Order::Quadratic { discriminant } => Some(discriminant.clone()),
+        Order::Polynomial { .. } => None,
+    };
     let (kind, h, inv) = summary_claims;
     Report {
         summary: Summary {
             certificate_sha256: id,
             kind: Some(kind),
-            discriminant: Some(discriminant.clone()),
+            discriminant,
+            polynomial: None,
             claimed_class_number: Some(h),
             claimed_invariants: Some(inv),
         },

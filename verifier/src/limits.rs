@@ -98,3 +98,16 @@ pub const MAX_ROOT_EXPONENT: i64 = 4096;
 pub const MAX_ROOT_PREC: u32 = 8192;
 /// Size `r` of the `r × r` determinants of a regulator (`r = r1 + r2 - 1`).
 pub const MAX_REGULATOR_RANK: usize = 5;
+
+// Number fields: the polynomial, elements, torsion.
+/// Bits of a coefficient of the defining polynomial `F`.
+pub const MAX_FIELD_COEFF_BITS: u32 = 256;
+/// Primes whose factorisation patterns of `F mod p` may be tried to show
+/// `F` irreducible.
+pub const MAX_IRREDUCIBILITY_PRIMES: usize = 200;
+/// Bits of a coordinate of a relation's element, and of its exponents.
+pub const MAX_ELEMENT_BITS: u32 = 4096;
+/// Unramified primes tried to bound the roots of unity.
+pub const MAX_TORSION_PRIMES: usize = 200;
+/// The largest number of roots of unity accepted (degree 6 allows 18).
+pub const MAX_W: u32 = 64;

@@ -18,24 +18,29 @@
 //! tokens, so it is what was checked.
 
 use crate::analytic::class_number_formula::{check_conclusion, AnalyticOk};
+use crate::analytic::field::{check_field_bound, FieldFacts};
 use crate::analytic::interval::Interval;
 use crate::analytic::{self, Method};
+use crate::ideals::field::{check_field_generation, field_bound, FieldArith};
 use crate::ideals::generation::{self, GenerationOk};
 use crate::ideals::quadratic::{QuadraticIdeal, QuadraticOrder};
 use crate::lattice::claim::{check_claim, ClaimOk};
 use crate::lattice::{check_lattice, LatticeOk};
 use crate::limits::MAX_SIEVE;
+use crate::order::field::{check_field_maximality, check_field_order};
 use crate::order::ConductorOk;
 use crate::order::{check_conductor, check_discriminant, check_maximality, MaximalityOk, OrderOk};
+use crate::registry;
 use crate::registry::{Hypothesis, Theorem};
 use crate::relations::{check_raw_relations, RawOk, Witnesses};
 use crate::report::reason::{reject, Check, Reason};
-use crate::report::view::{Assumption, CertificateKind, GeneratorView, UnitSummary};
+use crate::report::view::{Assumption, CertificateKind, FieldSummary, GeneratorView, UnitSummary};
+use crate::units::field::check_field_units;
 use crate::units::{check_units, UnitsOk};
 use crate::witness::{
     check_h, check_witness_bound, check_witnesses, FactorsOk, WitnessBoundOk, WitnessesOk,
 };
-use classcert_format::{Body, WitnessBody};
+use classcert_format::{Body, FieldBody, WitnessBody};
 use rug::Integer;
 
 /// What is known once every check of one path has passed. Built only in
@@ -55,9 +60,14 @@ pub struct Verified {
     generation_bound: Option<u64>,
     log_h: Interval,
     factor_base_size: Option<usize>,
+    field: Option<FieldSummary>,
 }
 
 impl Verified {
+    /// Number fields: the field, its order and the regulator.
+    pub fn field(&self) -> Option<&FieldSummary> {
+        self.field.as_ref()
+    }
     pub fn kind(&self) -> CertificateKind {
         self.kind
     }
@@ -158,7 +168,7 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
             "the analytic check stopped before its end",
         );
     };
-    let analytic = check_conclusion(bound?, lat.h_star(), units.unit())?;
+    let analytic = check_conclusion(bound?, lat.h_star(), units.unit().map(|u| u.regulator()))?;
     Ok(from_relations(
         order, maximality, gen, raw, elements, lat, claim, units, analytic,
     ))
@@ -207,11 +217,14 @@ fn check_algebra<'a>(
     let mut witnesses = Witnesses::new(&raw, forms, order.d());
     let lat = check_lattice(&body.lattice, gen.ideals().len(), &mut witnesses)?;
     let elements = witnesses.theorem();
+    let labels: Vec<_> = gen.ideals().iter().map(|i| (i.p, i.b)).collect();
+    let forms: Vec<_> = gen.ideals().iter().map(|i| &i.form).collect();
     let claim = check_claim(
         &body.claim,
         &body.lattice,
         &lat,
-        gen.ideals(),
+        &labels,
+        &forms,
         order.d(),
         !order.is_real(),
     )?;
@@ -317,6 +330,7 @@ fn from_relations(
         generation_bound: Some(gen.bound()),
         log_h: bound.log_h().clone(),
         factor_base_size: Some(gen.ideals().len()),
+        field: None,
     }
 }
 
@@ -358,5 +372,132 @@ fn from_order_witness(
         generation_bound: None,
         log_h: bound.bound().log_h().clone(),
         factor_base_size: None,
+        field: None,
     }
+}
+
+/// Checks a number-field certificate (`general-fields.md`): the order and
+/// its maximality, the factor base, the relations and the lattice, the
+/// units, then the analytic bound, in that order.
+pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> Check<Verified> {
+    progress("order");
+    let o = check_field_order(&body.order)?;
+    let maximality = check_field_maximality(&body.maximality, &o)?;
+    let order = o.order();
+    let abs_disc = Integer::from(order.discriminant().abs_ref());
+    let statement = field_bound(&body.generation_theorem, &abs_disc)?;
+    let trial_bound = statement.1.max(body.euler.x);
+    if trial_bound > MAX_SIEVE {
+        return reject(
+            Reason::OverLimit,
+            format!("the prime bound {trial_bound} exceeds {MAX_SIEVE}"),
+        );
+    }
+    let primes = crate::arith::primes_up_to(trial_bound);
+    progress("factor base");
+    let arith = FieldArith { order };
+    let gen = check_field_generation(
+        &arith,
+        statement,
+        &maximality,
+        &body.factor_base,
+        &primes,
+        o.disc_f(),
+        body.euler.x,
+    )?;
+    progress("relations");
+    let raw = check_raw_relations(
+        &arith,
+        gen.ideals(),
+        &body.lattice.raw_relations,
+        &body.lattice.derived_relations,
+        true,
+        &mut || progress("relations"),
+    )?;
+    progress("lattice");
+    let mut witnesses = Witnesses::new(&raw, Vec::new(), order.discriminant());
+    let lat = check_lattice(&body.lattice, gen.ideals().len(), &mut witnesses)?;
+    let labels: Vec<_> = gen
+        .ideals()
+        .iter()
+        .enumerate()
+        .map(|(k, q)| (q.p(), k as u64))
+        .collect();
+    let claim = check_claim(
+        &body.claim,
+        &body.lattice,
+        &lat,
+        &labels,
+        &[],
+        order.discriminant(),
+        false,
+    )?;
+    progress("units");
+    let raw_list = body.lattice.raw_relations.as_deref().unwrap_or_default();
+    let units = check_field_units(&body.units, &body.roots, order, o.disc_f(), raw_list)?;
+    progress("analytic bound");
+    let splitting = |p: u64| gen.splitting(p).map(<[_]>::to_vec);
+    let facts = FieldFacts {
+        polynomial: order.polynomial(),
+        abs_disc: &abs_disc,
+        signature: units.signature(),
+        w: units.w(),
+        splitting: &splitting,
+    };
+    let bound = check_field_bound(&body.euler, &facts, &primes, &mut || {
+        progress("analytic bound")
+    })?;
+    let analytic = check_conclusion(bound, lat.h_star(), Some(units.regulator()))?;
+
+    let mut theorems = vec![gen.theorem()];
+    let ids = [
+        registry::FIELD_ORDER,
+        registry::FIELD_PRIMES,
+        registry::FIELD_RELATIONS,
+        registry::LATTICE_INDEX,
+        registry::FIELD_ROOTS,
+        registry::FIELD_UNITS,
+        registry::FIELD_TORSION,
+    ];
+    for t in ids.iter().filter_map(|id| registry::lookup(id)) {
+        push_unique(&mut theorems, t);
+    }
+    for t in analytic.bound().theorems() {
+        push_unique(&mut theorems, t);
+    }
+    let evidence = maximality.evidence().copied();
+    for t in evidence.iter().flat_map(|e| e.theorems()) {
+        push_unique(&mut theorems, t);
+    }
+    let bpsw = evidence.is_some_and(|e| e.bpsw_assumed);
+    let bound = analytic.into_bound();
+    Ok(Verified {
+        kind: CertificateKind::Relations,
+        class_number: lat.h_star().clone(),
+        invariants: claim.invariants().to_vec(),
+        generators: claim
+            .into_generators()
+            .into_iter()
+            .map(|g| match g {
+                GeneratorView::Ideals(v) => GeneratorView::FieldIdeals(v),
+                g => g,
+            })
+            .collect(),
+        unit: None,
+        maximal: maximality.is_maximal(),
+        assumptions: assumptions(&theorems, bpsw),
+        theorems,
+        w: units.w(),
+        method: bound.method(),
+        generation_bound: Some(gen.bound()),
+        log_h: bound.log_h().clone(),
+        factor_base_size: Some(gen.ideals().len()),
+        field: Some(FieldSummary {
+            polynomial: order.polynomial().to_vec(),
+            signature: units.signature(),
+            discriminant: order.discriminant().clone(),
+            index: order.index().clone(),
+            regulator: units.regulator().clone(),
+        }),
+    })
 }

@@ -16,7 +16,6 @@ use super::BoundOk;
 use crate::arith::kronecker_prime;
 use crate::report::reason::{reject, Check, Reason};
 use crate::report::view::short_number;
-use crate::units::UnitFacts;
 use rug::Integer;
 
 /// The enclosure of `log h(O_D)` (for `D > 0`, of `log h(O_D) R(O_D)`)
@@ -87,7 +86,7 @@ impl AnalyticOk {
 pub(crate) fn check_conclusion(
     bound: BoundOk,
     h_star: &Integer,
-    unit: Option<&UnitFacts>,
+    regulator: Option<&Interval>,
 ) -> Check<AnalyticOk> {
     let log_h = bound.log_h();
     let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
@@ -96,8 +95,8 @@ pub(crate) fn check_conclusion(
     let Some(mut log_hs) = hs.ln() else {
         return bad();
     };
-    if let Some(u) = unit {
-        let Some(log_r) = u.regulator().ln() else {
+    if let Some(r) = regulator {
+        let Some(log_r) = r.ln() else {
             return bad();
         };
         log_hs = log_hs.add(&log_r);
@@ -105,7 +104,7 @@ pub(crate) fn check_conclusion(
     // h* R* = k h R with k >= 1 (R = R* = 1 for D < 0). If
     // log h* R* < lo(log h R) + log 2 then k = 1.
     if log_hs.hi >= log_h.add(&ln2).lo {
-        if unit.is_some() {
+        if regulator.is_some() {
             return reject(
                 Reason::ClassNumberRegulatorNotConfirmed,
                 format!(
@@ -128,7 +127,7 @@ pub(crate) fn check_conclusion(
     if log_hs.hi < log_h.lo {
         return reject(
             Reason::AnalyticInconsistent,
-            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", short_number(h_star), unit.map_or(1.0, |u| u.regulator().mid_f64()), log_h.lo.to_f64()),
+            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", short_number(h_star), regulator.map_or(1.0, |r| r.mid_f64()), log_h.lo.to_f64()),
         );
     }
     Ok(AnalyticOk { bound })
@@ -199,7 +198,7 @@ mod tests {
         let e = check_conclusion(b(), &Integer::from(13), None).unwrap_err();
         assert_eq!(e.reason, Reason::AnalyticInconsistent);
         // D > 0: h* R* against log h R; R* twice too large is not confirmed
-        let unit = |r: u64| UnitFacts::for_tests(Interval::u64(r));
+        let unit = |r: u64| Interval::u64(r);
         assert!(check_conclusion(bound(54, (1, 10)), &Integer::from(27), Some(&unit(2))).is_ok());
         let e =
             check_conclusion(bound(54, (1, 10)), &Integer::from(27), Some(&unit(4))).unwrap_err();

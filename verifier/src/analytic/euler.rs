@@ -49,6 +49,11 @@ pub struct EulerResult {
 /// The error term `E(X)` (times the registry's safety factor) for
 /// `log Δ ∈ log_delta`; the upper end is what matters.
 pub fn error_bound(x: u64, log_delta: &Interval) -> Option<Interval> {
+    error_bound_degree(x, log_delta, 2)
+}
+
+/// [`error_bound`] for a field of degree `n` (the `4.26 (n - 1)` term).
+pub fn error_bound_degree(x: u64, log_delta: &Interval, n: u64) -> Option<Interval> {
     if x < MIN_X {
         return None;
     }
@@ -60,7 +65,10 @@ pub fn error_bound(x: u64, log_delta: &Interval) -> Option<Interval> {
     let t1 = one.add(&Interval::ratio(388, 100)?.div(&lx9)?);
     let t2 = one.add(&Interval::u64(2).div(&log_delta.sqrt()?)?);
     let t2sq = t2.mul(&t2);
-    let t3 = Interval::ratio(426, 100)?.div(&sx.mul(log_delta))?;
+    let mut t3 = Interval::ratio(426, 100)?.div(&sx.mul(log_delta))?;
+    if n > 2 {
+        t3 = t3.mul(&Interval::u64(n - 1));
+    }
     let inner = t1.mul(&t2sq).add(&t3);
     let lead = Interval::ratio(2324, 1000)?
         .mul(log_delta)
@@ -93,7 +101,31 @@ pub(crate) fn compute_with(
     log_delta: &Interval,
     beat: &mut dyn FnMut(),
 ) -> Option<EulerResult> {
-    let error = error_bound(x, log_delta)?;
+    let coef = |p: u64, m: u64| {
+        let c = chi(p);
+        if m % 2 == 0 {
+            i64::from(c * c)
+        } else {
+            i64::from(c)
+        }
+    };
+    compute_general(x, primes, &coef, 2, limits, log_delta, beat)
+}
+
+/// The Euler product for a field `K` of degree `n`, with
+/// `c(p^m) = a(p, m) log p` and `a(p, m) = Σ_{P | p, f_P | m} f_P - 1`
+/// (the coefficients of `log ζ_K - log ζ`; for a quadratic field
+/// `a(p, m) = χ(p)^m`): `coef(p, m)` gives `a(p, m)`, in `[-1, n - 1]`.
+pub(crate) fn compute_general(
+    x: u64,
+    primes: &[u64],
+    coef: &dyn Fn(u64, u64) -> i64,
+    n: u64,
+    limits: &[u64],
+    log_delta: &Interval,
+    beat: &mut dyn FnMut(),
+) -> Option<EulerResult> {
+    let error = error_bound_degree(x, log_delta, n)?;
     // n < X/9  <=>  9n < X  <=>  n < (X - 1)/9 + 1
     let l2 = (x - 1) / 9 + 1;
     let mut bounds: Vec<u64> = limits.to_vec();
@@ -114,32 +146,37 @@ pub(crate) fn compute_with(
         if p >= x {
             break;
         }
-        let ch = chi(p);
-        if ch == 0 {
-            continue;
-        }
-        let lnp = Interval::ln_int(p)?;
-        let mut n = p;
+        let mut q = p;
         let mut m = 1u64;
-        let mut sign = ch;
+        let mut lnp = None;
         loop {
-            let idx = bounds.partition_point(|&b| b <= n);
-            let a_term = Interval::recip_int(m.checked_mul(n)?)?;
-            let c_term = lnp.div(&Interval::sqrt_int(n))?;
-            let (a_term, c_term) = if sign < 0 {
-                (a_term.neg(), c_term.neg())
-            } else {
-                (a_term, c_term)
-            };
-            if let (Some(ba), Some(bc)) = (bucket_a.get_mut(idx), bucket_c.get_mut(idx)) {
-                *ba = ba.add(&a_term);
-                *bc = bc.add(&c_term);
+            let c = coef(p, m);
+            if c != 0 {
+                let ln = match &lnp {
+                    Some(l) => l,
+                    None => lnp.insert(Interval::ln_int(p)?),
+                };
+                let idx = bounds.partition_point(|&b| b <= q);
+                let mut a_term = Interval::recip_int(m.checked_mul(q)?)?;
+                let mut c_term = ln.div(&Interval::sqrt_int(q))?;
+                if c.unsigned_abs() > 1 {
+                    let k = Interval::u64(c.unsigned_abs());
+                    a_term = a_term.mul(&k);
+                    c_term = c_term.mul(&k);
+                }
+                if c < 0 {
+                    a_term = a_term.neg();
+                    c_term = c_term.neg();
+                }
+                if let (Some(ba), Some(bc)) = (bucket_a.get_mut(idx), bucket_c.get_mut(idx)) {
+                    *ba = ba.add(&a_term);
+                    *bc = bc.add(&c_term);
+                }
             }
-            match n.checked_mul(p) {
+            match q.checked_mul(p) {
                 Some(next) if next < x => {
-                    n = next;
+                    q = next;
                     m += 1;
-                    sign *= ch;
                 }
                 _ => break,
             }

@@ -9,6 +9,7 @@
 
 pub(crate) mod class_number_formula;
 pub(crate) mod euler;
+pub(crate) mod field;
 pub(crate) mod interval;
 pub(crate) mod series;
 

@@ -13,6 +13,7 @@ use crate::limits::MAX_FACTOR_BASE;
 use crate::order::{MaximalityOk, OrderOk};
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, Check, Reason};
+#[cfg(test)]
 use classcert_format::PrimeIdeal;
 
 /// The generation statement a certificate names, with its bound. Not yet
@@ -85,7 +86,7 @@ pub(crate) fn check_generation<A: OrderArithmetic>(
     arith: &A,
     statement: Statement,
     maximality: &MaximalityOk,
-    factor_base: &[PrimeIdeal],
+    factor_base: &[A::Entry],
     primes: &[u64],
 ) -> Check<GenerationOk<A::Ideal>> {
     let Statement { theorem, bound } = statement;

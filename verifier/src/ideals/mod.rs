@@ -10,22 +10,25 @@
 //! than new checks. Binary quadratic forms ([`form`]) are the quadratic
 //! orders' own arithmetic of ideal classes.
 
+pub(crate) mod field;
 pub(crate) mod form;
 pub(crate) mod generation;
 pub(crate) mod quadratic;
 
 use crate::report::reason::Check;
-use classcert_format::{PrimeIdeal, Relation};
+use classcert_format::Relation;
 
 /// The arithmetic of an order that the checks need.
 pub(crate) trait OrderArithmetic {
+    /// A factor-base entry as the certificate states it.
+    type Entry;
     /// A factor-base entry once checked to be an invertible prime ideal.
     type Ideal;
 
     /// Checks factor-base entry `index`: a prime ideal of the order,
     /// invertible (prime to the conductor), above a prime the trial
     /// division reached.
-    fn prime_ideal(&self, index: usize, entry: &PrimeIdeal) -> Check<Self::Ideal>;
+    fn prime_ideal(&self, index: usize, entry: &Self::Entry) -> Check<Self::Ideal>;
 
     /// The rational prime below `ideal`.
     fn prime_below(ideal: &Self::Ideal) -> u64;

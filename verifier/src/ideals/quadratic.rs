@@ -38,6 +38,7 @@ impl<'a> QuadraticOrder<'a> {
 }
 
 impl OrderArithmetic for QuadraticOrder<'_> {
+    type Entry = PrimeIdeal;
     type Ideal = QuadraticIdeal;
 
     fn prime_ideal(&self, index: usize, entry: &PrimeIdeal) -> Check<QuadraticIdeal> {

@@ -4,13 +4,18 @@
 //! its reduced form when `D < 0`.
 
 use super::LatticeOk;
-use crate::ideals::quadratic::QuadraticIdeal;
+use crate::ideals::form::Form;
 use crate::limits::MAX_COMPOSITIONS;
 use crate::relations::forms::{product, Budget};
 use crate::report::reason::{reject, Check, Reason};
 use crate::report::view::{short_number, GeneratorView};
 use classcert_format::{Claim, Lattice};
 use rug::Integer;
+
+/// How a generator's prime ideals are named: `(p, b)` for the quadratic
+/// ideal `(p, (b + sqrt D)/2)`, `(p, k)` for the `k`-th factor-base entry
+/// of a number field.
+pub(crate) type IdealLabel = (u64, u64);
 
 /// Token: the claimed group is the lattice's.
 #[derive(Debug)]
@@ -36,7 +41,8 @@ pub(crate) fn check_claim(
     c: &Claim,
     l: &Lattice,
     lat: &LatticeOk,
-    ideals: &[QuadraticIdeal],
+    ideals: &[IdealLabel],
+    forms: &[&Form],
     d: &Integer,
     reduced_forms: bool,
 ) -> Check<ClaimOk> {
@@ -70,7 +76,6 @@ pub(crate) fn check_claim(
         );
     }
     let r = l.generators.len();
-    let forms: Vec<_> = ideals.iter().map(|i| &i.form).collect();
     let mut budget = Budget::new(MAX_COMPOSITIONS);
     let mut out = Vec::with_capacity(c.generators.len());
     for ((i, _), g) in nontrivial.iter().zip(c.generators.iter()) {
@@ -112,7 +117,7 @@ pub(crate) fn check_claim(
             }
             let ideals = entries
                 .iter()
-                .filter_map(|(gi, e)| ideals.get(*gi).map(|q| (q.p, q.b, (*e).clone())))
+                .filter_map(|(gi, e)| ideals.get(*gi).map(|&(p, b)| (p, b, (*e).clone())))
                 .collect();
             out.push(GeneratorView::Ideals(ideals));
             continue;
@@ -123,7 +128,7 @@ pub(crate) fn check_claim(
                 format!("generator {i} has no reduced form"),
             );
         };
-        let Some(acc) = product(&forms, &entries, d, &mut budget)? else {
+        let Some(acc) = product(forms, &entries, d, &mut budget)? else {
             return reject(Reason::GeneratorMismatch, "form arithmetic failed");
         };
         if acc.a != stated.a || acc.b != stated.b || acc.c != stated.c {
@@ -146,7 +151,7 @@ pub(crate) fn check_claim(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::ideals::form::Form;
+    use crate::ideals::quadratic::QuadraticIdeal;
     use crate::lattice::check_lattice;
     use crate::relations::{RawOk, Witnesses};
     use classcert_format::{CyclicGenerator, Smith, Witness};
@@ -194,12 +199,14 @@ mod tests {
                 }),
             }],
         };
-        let ideals = [p2.clone()];
+        let ideals = [(2u64, 1u64)];
+        let forms = [&p2.form];
         let ok = check_claim(
             &claim(3, Some((2, 1, 3))),
             &lattice,
             &lat,
             &ideals,
+            &forms,
             &d,
             true,
         )
@@ -210,6 +217,7 @@ mod tests {
             &lattice,
             &lat,
             &ideals,
+            &forms,
             &d,
             true,
         )
@@ -220,6 +228,7 @@ mod tests {
             &lattice,
             &lat,
             &ideals,
+            &forms,
             &d,
             true,
         )
@@ -231,6 +240,7 @@ mod tests {
             &lattice,
             &lat,
             &ideals,
+            &forms,
             &d,
             false,
         )

@@ -112,10 +112,12 @@ fn row_witness(w: &Witness, i: usize, r: usize) -> Check<Witness> {
                 format!("one combination per row of H is required ({r} rows)"),
             ),
         },
-        Witness::Combination { .. } | Witness::Element { .. } => reject(
-            Reason::WitnessKind,
-            "the rows of H need a combinations or form-reduction witness",
-        ),
+        Witness::Combination { .. } | Witness::Element { .. } | Witness::Coordinates { .. } => {
+            reject(
+                Reason::WitnessKind,
+                "the rows of H need a combinations or form-reduction witness",
+            )
+        }
         Witness::FormReduction => Ok(Witness::FormReduction),
     }
 }

@@ -38,7 +38,12 @@ impl OrderOk {
 }
 
 pub(crate) fn check_discriminant(order: &Order) -> Check<OrderOk> {
-    let Order::Quadratic { discriminant: d } = order;
+    let Order::Quadratic { discriminant: d } = order else {
+        return reject(
+            Reason::UnsupportedOrder,
+            "a quadratic certificate must name a quadratic order",
+        );
+    };
     let abs_d = Integer::from(d.abs_ref());
     if abs_d.significant_bits() > MAX_DISCRIMINANT_BITS {
         return reject(

@@ -47,6 +47,14 @@ pub(crate) struct MaximalityOk {
 }
 
 impl MaximalityOk {
+    /// Maximality shown by `evidence` (number fields: with the
+    /// Pohst–Zassenhaus test, in `order/field.rs`).
+    pub(crate) fn certified(evidence: Factorisation) -> MaximalityOk {
+        MaximalityOk {
+            evidence: Some(evidence),
+        }
+    }
+
     pub(crate) fn is_maximal(&self) -> bool {
         self.evidence.is_some()
     }

@@ -7,6 +7,7 @@
 
 mod conductor;
 mod discriminant;
+pub(crate) mod field;
 mod maximality;
 
 pub(crate) use conductor::{check_conductor, ConductorOk};

@@ -25,6 +25,23 @@ pub fn generator(order: Option<&Integer>, g: &GeneratorView) -> Json {
             ("order", order),
             ("form", Json::Arr(vec![num(a), num(b), num(c)])),
         ]),
+        GeneratorView::FieldIdeals(f) => Json::obj(vec![
+            ("order", order),
+            (
+                "prime_ideals",
+                Json::Arr(
+                    f.iter()
+                        .map(|(p, k, e)| {
+                            Json::obj(vec![
+                                ("p", Json::str(p.to_string())),
+                                ("factor_base_index", Json::Num(k.to_string())),
+                                ("e", num(e)),
+                            ])
+                        })
+                        .collect(),
+                ),
+            ),
+        ]),
         GeneratorView::Ideals(f) => Json::obj(vec![
             ("order", order),
             (
@@ -104,7 +121,10 @@ impl Report {
                         .map(|k| Json::str(kind_name(k)))
                         .unwrap_or(Json::Null),
                 ));
-                e.push(("discriminant", opt(&self.summary.discriminant)));
+                match &self.summary.polynomial {
+                    Some(f) => e.push(("polynomial", Json::str(super::polynomial_text(f)))),
+                    None => e.push(("discriminant", opt(&self.summary.discriminant))),
+                }
                 e.push(("maximal", Json::Bool(false)));
                 e.push(("class_number", Json::Null));
                 e.push(("invariants", Json::Null));
@@ -129,9 +149,33 @@ impl Report {
         e.push(("detail", Json::Null));
         e.push(("certificate_sha256", id));
         e.push(("certificate_kind", Json::str(kind_name(v.kind()))));
-        e.push(("discriminant", opt(&self.summary.discriminant)));
-        e.push(("maximal", Json::Bool(v.maximal())));
-        if v.maximal() {
+        if let Some(k) = v.field() {
+            e.push(("polynomial", Json::str(k.polynomial_text())));
+            e.push(("degree", Json::Num(k.degree().to_string())));
+            e.push((
+                "signature",
+                Json::Arr(vec![
+                    Json::Num(k.signature.0.to_string()),
+                    Json::Num(k.signature.1.to_string()),
+                ]),
+            ));
+            e.push(("maximal", Json::Bool(v.maximal())));
+            e.push((
+                if v.maximal() {
+                    "field_discriminant"
+                } else {
+                    "order_discriminant"
+                },
+                num(&k.discriminant),
+            ));
+            e.push(("index", num(&k.index)));
+            e.push(("regulator", Json::str(k.regulator_text())));
+            e.push(("unit_rank", Json::Num(k.unit_rank().to_string())));
+        } else {
+            e.push(("discriminant", opt(&self.summary.discriminant)));
+            e.push(("maximal", Json::Bool(v.maximal())));
+        }
+        if v.maximal() && v.field().is_none() {
             e.push(("field_discriminant", opt(&self.summary.discriminant)));
             e.push(("conductor", Json::str("1")));
         }

@@ -11,8 +11,8 @@ pub mod view;
 pub use crate::pipeline::Verified;
 pub use reason::{Reason, Rejection};
 pub use view::{
-    decimal, generator_text, ideals_text, invariants_text, prime_powers_text, short_number,
-    Assumption, CertificateKind, GeneratorView, UnitSummary,
+    decimal, generator_text, ideals_text, invariants_text, polynomial_text, prime_powers_text,
+    short_number, Assumption, CertificateKind, FieldSummary, GeneratorView, UnitSummary,
 };
 
 use rug::Integer;
@@ -23,6 +23,8 @@ pub struct Summary {
     pub certificate_sha256: Option<String>,
     pub kind: Option<CertificateKind>,
     pub discriminant: Option<Integer>,
+    /// Number fields: `F`, coefficients from the constant term up.
+    pub polynomial: Option<Vec<Integer>>,
     pub claimed_class_number: Option<Integer>,
     pub claimed_invariants: Option<Vec<Integer>>,
 }

@@ -57,6 +57,12 @@ pub enum Reason {
     OrderWitnessPower,
     OrderWitnessNotExact,
     OrderWitnessDependent,
+    PolynomialInvalid,
+    OrderNotRing,
+    OrderNotMaximal,
+    RootsInvalid,
+    TorsionMismatch,
+    UnitNotUnit,
 }
 
 impl Reason {
@@ -116,6 +122,12 @@ impl Reason {
             OrderWitnessPower => "order-witness-power",
             OrderWitnessNotExact => "order-witness-not-exact",
             OrderWitnessDependent => "order-witness-dependent",
+            PolynomialInvalid => "polynomial-invalid",
+            OrderNotRing => "order-not-ring",
+            OrderNotMaximal => "order-not-maximal",
+            RootsInvalid => "roots-invalid",
+            TorsionMismatch => "torsion-mismatch",
+            UnitNotUnit => "unit-not-unit",
         }
     }
 }

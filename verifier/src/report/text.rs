@@ -38,6 +38,9 @@ pub fn not_proven(v: &Verified) -> Vec<String> {
     if v.unit().is_some() && !v.assumptions().is_empty() {
         out.extend(NOT_PROVEN_REAL.iter().map(|s| s.to_string()));
     }
+    if v.field().is_some() && !v.assumptions().is_empty() {
+        out.push("without GRH, that the units are a basis of the unit group modulo torsion and R the regulator (only that they are independent units)".into());
+    }
     out
 }
 
@@ -68,7 +71,13 @@ impl Report {
             Err(r) => {
                 s.push_str(&format!("REJECTED: {}\n", r.reason.code()));
                 s.push_str(&format!("  certificate   {id}\n"));
-                s.push_str(&format!("  order         D = {disc}\n"));
+                match &self.summary.polynomial {
+                    Some(f) => s.push_str(&format!(
+                        "  field         Q[x]/(F), F = {}\n",
+                        super::polynomial_text(f)
+                    )),
+                    None => s.push_str(&format!("  order         D = {disc}\n")),
+                }
                 s.push_str(&format!("  why           {}\n", r.detail));
                 s.push_str("  Nothing in this certificate should be relied on.\n");
                 return s;
@@ -81,7 +90,28 @@ impl Report {
         } else {
             "order of this discriminant (maximality not claimed)"
         };
-        s.push_str(&format!("  order         D = {disc}, {what}\n"));
+        match v.field() {
+            Some(k) => {
+                s.push_str(&format!(
+                    "  field         Q[x]/(F), F = {}, degree {}, signature ({}, {})\n",
+                    k.polynomial_text(),
+                    k.degree(),
+                    k.signature.0,
+                    k.signature.1
+                ));
+                s.push_str(&format!(
+                    "  order         {}, discriminant {}, index [O : Z[θ]] = {}\n",
+                    if v.maximal() {
+                        "maximal order (factorisation of its discriminant and p-maximality certified)"
+                    } else {
+                        "order (maximality not claimed)"
+                    },
+                    super::short_number(&k.discriminant),
+                    k.index
+                ));
+            }
+            None => s.push_str(&format!("  order         D = {disc}, {what}\n")),
+        }
         s.push_str(&format!(
             "  class group   {}   (class number {})\n",
             invariants_text(v.invariants()),
@@ -112,6 +142,13 @@ impl Report {
                 );
             }
         }
+        if let Some(k) = v.field() {
+            s.push_str(&format!("  regulator     R = {}\n", k.regulator_text()));
+            s.push_str(&format!(
+                "  units         rank {}, as power products of the relations' elements\n",
+                k.unit_rank()
+            ));
+        }
         s.push_str(&format!("  roots of 1    w = {}\n", v.w()));
         let assumptions: Vec<&str> = v.assumptions().iter().map(|a| a.name()).collect();
         if assumptions.is_empty() {
@@ -119,7 +156,11 @@ impl Report {
         } else {
             s.push_str(&format!("  rests on      {}\n", assumptions.join(", ")));
         }
-        let log = if v.unit().is_some() { "hR" } else { "h" };
+        let log = if v.unit().is_some() || v.field().is_some() {
+            "hR"
+        } else {
+            "h"
+        };
         let shown = match (v.kind(), v.generation_bound(), v.factor_base_size()) {
             (CertificateKind::OrderWitness, _, _) => format!(
                 "classes of exact orders {} that are independent",

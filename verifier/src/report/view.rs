@@ -36,6 +36,9 @@ pub enum GeneratorView {
     Form(Integer, Integer, Integer),
     /// `D > 0`: `∏ (p, (b + sqrt D)/2)^e` over `(p, b, e)`.
     Ideals(Vec<(u64, u64, Integer)>),
+    /// Number fields: `∏ P_k^e` over `(p, k, e)`, `P_k` the factor base's
+    /// entry `k`, above `p`.
+    FieldIdeals(Vec<(u64, u64, Integer)>),
 }
 
 /// The unit group of a real quadratic order, as verified.
@@ -56,6 +59,77 @@ impl UnitSummary {
     }
 }
 
+/// A number field and its order, as verified.
+#[derive(Debug, Clone)]
+pub struct FieldSummary {
+    /// `F`, coefficients from the constant term up.
+    pub polynomial: Vec<Integer>,
+    /// `(r1, r2)`.
+    pub signature: (usize, usize),
+    /// `disc(O)` (the field discriminant when the order is maximal).
+    pub discriminant: Integer,
+    /// `[O : Z[θ]]`.
+    pub index: Integer,
+    /// Rigorous enclosure of the regulator.
+    pub regulator: Interval,
+}
+
+impl FieldSummary {
+    pub fn degree(&self) -> usize {
+        self.polynomial.len().saturating_sub(1)
+    }
+
+    pub fn unit_rank(&self) -> usize {
+        (self.signature.0 + self.signature.1).saturating_sub(1)
+    }
+
+    /// The regulator in decimal, with only digits the enclosure settles.
+    pub fn regulator_text(&self) -> String {
+        decimal(&self.regulator)
+    }
+
+    /// `F` as it is usually written, e.g. `x^3 - 2`.
+    pub fn polynomial_text(&self) -> String {
+        polynomial_text(&self.polynomial)
+    }
+}
+
+/// A polynomial over Z written from the leading term down: `x^3 - 2*x + 5`.
+pub fn polynomial_text(f: &[Integer]) -> String {
+    let mut out = String::new();
+    for (k, c) in f.iter().enumerate().rev() {
+        if *c == 0 {
+            continue;
+        }
+        let neg = *c < 0;
+        let abs = Integer::from(c.abs_ref());
+        if out.is_empty() {
+            if neg {
+                out.push('-');
+            }
+        } else {
+            out.push_str(if neg { " - " } else { " + " });
+        }
+        let coeff = if abs == 1 && k > 0 {
+            String::new()
+        } else if k > 0 {
+            format!("{abs}*")
+        } else {
+            abs.to_string()
+        };
+        out.push_str(&coeff);
+        match k {
+            0 => {}
+            1 => out.push('x'),
+            _ => out.push_str(&format!("x^{k}")),
+        }
+    }
+    if out.is_empty() {
+        out.push('0');
+    }
+    out
+}
+
 /// `Z/d_1 x Z/d_2 x …`, or `trivial`.
 pub fn invariants_text(inv: &[Integer]) -> String {
     if inv.is_empty() {
@@ -74,6 +148,19 @@ pub fn generator_text(g: &GeneratorView) -> String {
     match g {
         GeneratorView::Form(a, b, c) => format!("({a}, {b}, {c})"),
         GeneratorView::Ideals(f) => ideals_text(f, " · "),
+        GeneratorView::FieldIdeals(f) if f.is_empty() => "(1)".into(),
+        GeneratorView::FieldIdeals(f) => f
+            .iter()
+            .map(|(p, k, e)| {
+                let ideal = format!("P{k} (above {p})");
+                if *e == 1 {
+                    ideal
+                } else {
+                    format!("{ideal}^{e}")
+                }
+            })
+            .collect::<Vec<_>>()
+            .join(" · "),
     }
 }
 

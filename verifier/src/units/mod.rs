@@ -10,6 +10,7 @@
 //! stated regulator and norm with what the chain shows.
 
 pub(crate) mod compact;
+pub(crate) mod field;
 mod regulator;
 
 pub(crate) use regulator::UnitFacts;

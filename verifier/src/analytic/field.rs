@@ -1,0 +1,198 @@
+//! The analytic bound for a number field of degree `n` (`general-fields.md`,
+//! "Analytic check"; registry entries `belabas-friedman-2015-thm1` and
+//! `class-number-formula-number-fields`).
+//!
+//! The Euler product of [`super::euler`] with `a(p, m) = Σ_{P | p, f_P | m}
+//! f_P - 1`: the splitting of `p` is read off the certified factor base
+//! where it lists `p`, and otherwise (`p ∤ disc(F)`, so `p` is unramified
+//! and prime to the index) off the degrees of the irreducible factors of
+//! `F mod p` (Dedekind–Kummer). Then
+//! `log h R = log κ + log w + log|Δ|/2 - r1 log 2 - r2 log 2π`.
+
+use super::euler::{compute_general, error_bound_degree, EulerResult, MIN_X};
+use super::interval::{stated_contains, Interval};
+use super::{BoundOk, Method};
+use crate::field::fppoly::Fp;
+use crate::limits::{MAX_CHECKPOINTS, MAX_EULER_X};
+use crate::registry;
+use crate::report::reason::{reject, Check, Reason};
+use classcert_format::EulerTrace;
+use rug::Integer;
+
+/// What the analytic bound needs to know of the field.
+pub(crate) struct FieldFacts<'a> {
+    pub(crate) polynomial: &'a [Integer],
+    pub(crate) abs_disc: &'a Integer,
+    pub(crate) signature: (usize, usize),
+    pub(crate) w: u32,
+    /// The `(e, f)` of the primes above `p` when the factor base lists `p`.
+    pub(crate) splitting: &'a dyn Fn(u64) -> Option<Vec<(u32, u32)>>,
+}
+
+/// Recomputes the trace and returns the enclosure of `log h R`.
+pub(crate) fn check_field_bound(
+    e: &EulerTrace,
+    k: &FieldFacts,
+    primes: &[u64],
+    beat: &mut dyn FnMut(),
+) -> Check<BoundOk> {
+    if registry::lookup(&e.theorem).map(|t| t.id) != Some(registry::BELABAS_FRIEDMAN) {
+        return reject(
+            Reason::UnknownTheorem,
+            format!(
+                "\"{}\" is not an analytic theorem for number fields",
+                registry::short_id(&e.theorem)
+            ),
+        );
+    }
+    let x = e.x;
+    if !(MIN_X..=MAX_EULER_X).contains(&x) {
+        return reject(
+            Reason::EulerXOutOfRange,
+            format!("X = {x} must lie in [{MIN_X}, {MAX_EULER_X}]"),
+        );
+    }
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let n = k.polynomial.len().saturating_sub(1) as u64;
+    let Some(log_delta) = Interval::int(k.abs_disc).ln() else {
+        return bad();
+    };
+    let Some(err) = error_bound_degree(x, &log_delta, n) else {
+        return bad();
+    };
+    if Interval::u64(2).mul(&err).hi >= Interval::ln2().lo {
+        return reject(
+            Reason::EulerXTooSmall,
+            format!(
+                "at X = {x} the error term is {:.4}; twice it must stay below log 2",
+                err.hi.to_f64()
+            ),
+        );
+    }
+    if e.checkpoints.len() > MAX_CHECKPOINTS {
+        return reject(Reason::OverLimit, "too many Euler checkpoints");
+    }
+    let limits: Vec<u64> = e.checkpoints.iter().map(|c| c.limit).collect();
+    if limits.windows(2).any(|w| w.first() >= w.get(1)) || limits.iter().any(|&l| l > x) {
+        return reject(
+            Reason::EulerTraceMismatch,
+            "checkpoint limits must increase and not exceed X",
+        );
+    }
+    let Some(res) = euler_field(
+        x,
+        k.polynomial,
+        k.splitting,
+        primes,
+        &limits,
+        &log_delta,
+        beat,
+    ) else {
+        return bad();
+    };
+    for (claimed, mine) in e.checkpoints.iter().zip(res.checkpoints.iter()) {
+        let (Some(a), Some(c)) = (
+            Interval::from_bounds(&claimed.a),
+            Interval::from_bounds(&claimed.c),
+        ) else {
+            return reject(
+                Reason::EulerTraceMismatch,
+                "a checkpoint interval is out of range",
+            );
+        };
+        if !a.contains(&mine.a) || !c.contains(&mine.c) {
+            return reject(
+                Reason::EulerTraceMismatch,
+                format!(
+                    "the partial sums up to {} disagree with the recomputation",
+                    mine.limit
+                ),
+            );
+        }
+    }
+    stated_contains(
+        &e.log_l,
+        &res.log_l,
+        Reason::EulerIntervalUnderstated,
+        "enclosure of log kappa",
+    )?;
+    let Some(log_hr) = log_hr(&res.log_l, k.abs_disc, k.signature, k.w) else {
+        return bad();
+    };
+    Ok(BoundOk {
+        log_h: log_hr,
+        method: Method::EulerProduct { x },
+        theorems: [
+            registry::BELABAS_FRIEDMAN,
+            registry::CLASS_NUMBER_FORMULA_FIELDS,
+        ]
+        .iter()
+        .copied()
+        .filter_map(registry::lookup)
+        .collect(),
+    })
+}
+
+/// The Euler product for `log κ_K` at `X` (`n` = degree of `F`), the
+/// splitting of each `p < X` from `splitting` or, where that has none,
+/// from the degrees of the factors of `F mod p`; shared with the prover.
+pub fn euler_field(
+    x: u64,
+    polynomial: &[Integer],
+    splitting: &dyn Fn(u64) -> Option<Vec<(u32, u32)>>,
+    primes: &[u64],
+    limits: &[u64],
+    log_delta: &Interval,
+    beat: &mut dyn FnMut(),
+) -> Option<EulerResult> {
+    let n = polynomial.len().saturating_sub(1) as u64;
+    // residue degrees of the primes above each p < X
+    let mut degrees: Vec<(u64, Vec<u32>)> = Vec::new();
+    for &p in primes.iter().take_while(|&&p| p < x) {
+        let fs = match splitting(p) {
+            Some(s) => s.iter().map(|&(_, f)| f).collect(),
+            None => Fp::new(p)
+                .and_then(|fp| fp.degree_pattern(polynomial))?
+                .iter()
+                .filter_map(|&f| u32::try_from(f).ok())
+                .collect(),
+        };
+        degrees.push((p, fs));
+    }
+    let coef = |p: u64, m: u64| -> i64 {
+        let Ok(i) = degrees.binary_search_by_key(&p, |d| d.0) else {
+            return 0;
+        };
+        let Some((_, fs)) = degrees.get(i) else {
+            return 0;
+        };
+        let s: u64 = fs
+            .iter()
+            .filter(|&&f| f > 0 && m % u64::from(f) == 0)
+            .map(|&f| u64::from(f))
+            .sum();
+        s as i64 - 1
+    };
+    compute_general(x, primes, &coef, n, limits, log_delta, beat)
+}
+
+/// `log h R = log κ + log w + log|Δ|/2 - r1 log 2 - r2 log 2π`; shared
+/// with the prover.
+pub fn log_hr(
+    log_kappa: &Interval,
+    abs_disc: &Integer,
+    (r1, r2): (usize, usize),
+    w: u32,
+) -> Option<Interval> {
+    let half_log_d = Interval::int(abs_disc).ln()?.div(&Interval::u64(2))?;
+    let log_w = Interval::u64(u64::from(w)).ln()?;
+    let ln2 = Interval::ln2();
+    let ln2pi = Interval::pi().mul(&Interval::u64(2)).ln()?;
+    Some(
+        log_kappa
+            .add(&log_w)
+            .add(&half_log_d)
+            .sub(&ln2.mul(&Interval::u64(r1 as u64)))
+            .sub(&ln2pi.mul(&Interval::u64(r2 as u64))),
+    )
+}

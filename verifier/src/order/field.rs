@@ -1,0 +1,155 @@
+//! The order of a number field `K = Q[x]/(F)` (`general-fields.md`, "The
+//! field and the order"; registry entry `order-ring-and-maximality`).
+//!
+//! 1. `F` is monic of degree 3 to 6 with `disc(F) != 0`, and irreducible:
+//!    a factor of degree `d` would make `d` a sum of some of the degrees of
+//!    the irreducible factors of `F mod p` at every prime `p ∤ disc(F)`;
+//!    the patterns at a few primes leave no such `d` with `0 < d < n`.
+//! 2. The basis spans a ring containing `Z[θ]`, and `disc(O)` is computed
+//!    ([`FieldOrder::new`]).
+//! 3. Maximality, when claimed: the full factorisation of `|disc(O)|`,
+//!    each prime with evidence, and the Pohst–Zassenhaus criterion at each
+//!    `p` with `p² | disc(O)` (at the others `p ∤ [O_K : O]`, because
+//!    `disc(O) = [O_K : O]² disc(O_K)`).
+
+use super::maximality::{check_factorisation, MaximalityOk};
+use crate::arith::primes_up_to;
+use crate::field::fppoly::Fp;
+use crate::field::order::FieldOrder;
+use crate::field::zpoly;
+use crate::limits::{MAX_FIELD_COEFF_BITS, MAX_IRREDUCIBILITY_PRIMES, MAX_PROOF_POWERS};
+use crate::report::reason::{reject, Check, Reason};
+use classcert_format::{Order, PrimePower};
+use rug::Integer;
+
+/// Token: `F` is irreducible, the basis spans an order `O ⊇ Z[θ]`.
+#[derive(Debug)]
+pub(crate) struct FieldOrderOk {
+    order: FieldOrder,
+    disc_f: Integer,
+}
+
+impl FieldOrderOk {
+    pub(crate) fn order(&self) -> &FieldOrder {
+        &self.order
+    }
+
+    /// `disc(F)`.
+    pub(crate) fn disc_f(&self) -> &Integer {
+        &self.disc_f
+    }
+}
+
+/// Checks the polynomial and the order's basis.
+pub(crate) fn check_field_order(order: &Order) -> Check<FieldOrderOk> {
+    let Order::Polynomial {
+        polynomial: f,
+        basis,
+        denominator,
+    } = order
+    else {
+        return reject(
+            Reason::UnsupportedOrder,
+            "a number-field certificate must name an order by its polynomial",
+        );
+    };
+    let n = f.len().saturating_sub(1);
+    if !(3..=6).contains(&n) || f.last() != Some(&Integer::from(1)) {
+        return reject(
+            Reason::PolynomialInvalid,
+            "F must be monic of degree 3 to 6",
+        );
+    }
+    if f.iter()
+        .any(|c| c.significant_bits() > MAX_FIELD_COEFF_BITS)
+    {
+        return reject(
+            Reason::OverLimit,
+            format!("a coefficient of F has more than {MAX_FIELD_COEFF_BITS} bits"),
+        );
+    }
+    let disc_f = match zpoly::discriminant(f) {
+        Some(d) if d != 0 => d,
+        _ => return reject(Reason::PolynomialInvalid, "F has a repeated root"),
+    };
+    if !shown_irreducible(f, n, &disc_f) {
+        return reject(
+            Reason::PolynomialInvalid,
+            format!(
+                "F is not shown irreducible: its factorisation patterns modulo the first {MAX_IRREDUCIBILITY_PRIMES} primes not dividing disc(F) leave a proper factor possible"
+            ),
+        );
+    }
+    match FieldOrder::new(f, basis, denominator) {
+        Ok(order) => Ok(FieldOrderOk { order, disc_f }),
+        Err(e) => reject(Reason::OrderNotRing, e.to_string()),
+    }
+}
+
+/// Whether the degree patterns of `F mod p` leave no factor degree `d`,
+/// `0 < d < n`, possible.
+fn shown_irreducible(f: &[Integer], n: usize, disc_f: &Integer) -> bool {
+    // bit d set: a factor of degree d is still possible
+    let full: u32 = (1 << n) - 2;
+    let mut possible = full;
+    let mut tried = 0;
+    for p in primes_up_to(1 << 16) {
+        if tried >= MAX_IRREDUCIBILITY_PRIMES || possible == 0 {
+            break;
+        }
+        if disc_f.is_divisible_u(p as u32) {
+            continue;
+        }
+        let Some(pattern) = Fp::new(p).and_then(|fp| fp.degree_pattern(f)) else {
+            continue;
+        };
+        tried += 1;
+        // sums of sub-multisets of the pattern, as a bit set
+        let mut sums: u32 = 1;
+        for d in pattern {
+            sums |= sums << d;
+        }
+        possible &= sums;
+    }
+    possible & full == 0
+}
+
+/// Maximality when claimed: `factors` is the full factorisation of
+/// `|disc(O)|`, and `O` is `p`-maximal at every `p` with `p² | disc(O)`.
+/// A field certificate must claim it (non-maximal orders come later).
+pub(crate) fn check_field_maximality(
+    claim: &Option<Vec<PrimePower>>,
+    o: &FieldOrderOk,
+) -> Check<MaximalityOk> {
+    let Some(factors) = claim else {
+        return reject(
+            Reason::UnsupportedOrder,
+            "orders of number fields are certified only as maximal orders for now: the certificate must give the factorisation of |disc(O)|",
+        );
+    };
+    let mut work = MAX_PROOF_POWERS;
+    let abs = Integer::from(o.order.discriminant().abs_ref());
+    let evidence = check_factorisation(
+        factors,
+        &abs,
+        "|disc(O)|",
+        Reason::MaximalityFactorisation,
+        &mut work,
+    )?;
+    for pp in factors.iter().filter(|pp| pp.exponent >= 2) {
+        match o.order.is_p_maximal(&pp.prime) {
+            Ok(true) => {}
+            Ok(false) => {
+                return reject(
+                    Reason::OrderNotMaximal,
+                    format!(
+                        "the order is not maximal at p = {}: the Pohst-Zassenhaus test finds a larger ring",
+                        pp.prime
+                    ),
+                )
+            }
+            Err(e) => return reject(Reason::OverLimit, e.to_string()),
+        }
+    }
+    Ok(MaximalityOk::certified(evidence))
+}
