@@ -13,7 +13,7 @@
 //!   187–201; R. E. Moore, "Interval Analysis", 1966, and "A test for
 //!   existence of solutions to nonlinear systems", SIAM J. Numer. Anal. 14
 //!   (1977)), in rectangular complex interval arithmetic with outward
-//!   rounding, see [`krawczyk`].
+//!   rounding (the argument is at `fn krawczyk` below).
 //!
 //! Then `r1 + 2 r2 = n` finishes the count: the real intervals, the boxes
 //! and the boxes' mirror images are `n` pairwise disjoint sets (a box lies
@@ -414,15 +414,22 @@ pub fn abs_det(m: &[Vec<Interval>]) -> Option<Interval> {
 /// minor without the last place. Any place may be dropped because the
 /// entries of a unit's log vector sum to `log |N(u)| = 0` (H. Cohen, "A
 /// Course in Computational Algebraic Number Theory", GTM 138, Definition
-/// 4.9.2 and the remark after it; the number from memory). `None` unless
-/// every vector has `r + 1` entries whose sum interval holds 0 and the
-/// determinant is bounded away from 0 (the units are independent).
+/// 4.9.2 and the remark after it, the number from memory; stated for any
+/// place as `NumberField.Units.regulator_eq_det` in Mathlib). `None`
+/// unless every vector has `r + 1` entries whose sum interval holds 0 and
+/// the determinant is bounded away from 0 (the units are independent).
 pub fn regulator(logs: &[Vec<Interval>]) -> Option<Interval> {
     let r = logs.len();
+    if r > MAX_REGULATOR_RANK {
+        return None;
+    }
     let mut minor = Vec::with_capacity(r);
     for v in logs {
+        if v.len() != r + 1 {
+            return None;
+        }
         let sum = v.iter().fold(Interval::zero(), |s, x| s.add(x));
-        if v.len() != r + 1 || sum.lo > 0 || sum.hi < 0 {
+        if sum.lo > 0 || sum.hi < 0 {
             return None;
         }
         minor.push(v.iter().take(r).cloned().collect::<Vec<_>>());
