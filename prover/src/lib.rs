@@ -36,6 +36,7 @@ pub mod checkpoint;
 pub mod drivers;
 pub mod factor;
 pub mod fb;
+pub mod field;
 pub mod linalg;
 pub mod polynomial;
 pub mod progress;
