@@ -674,7 +674,7 @@ pub mod modp {
 
     /// `a^(-1)` for `a ≢ 0` (Fermat).
     pub fn inv(a: u64, p: u64) -> u64 {
-        assert!(a % p != 0, "inverse of zero");
+        assert!(!a.is_multiple_of(p), "inverse of zero");
         pow(a % p, p - 2, p)
     }
 

@@ -245,7 +245,7 @@ fn general(order: &Order, p: u64, seed: u64) -> Vec<PrimeIdeal> {
         }
         assert_eq!(a.mul(&e, &e), e, "the idempotent lifts");
         let dim_a = modp::rank(&a.mul_matrix(&e), p);
-        assert!(f > 0 && dim_a % f == 0);
+        assert!(f > 0 && dim_a.is_multiple_of(f));
         let ram = dim_a / f;
         // P/pO = R + (1 - ε)A.
         let one_minus: Vec<u64> = sub_vec(&a.one, &e, p);
@@ -419,7 +419,7 @@ pub(crate) fn factor_with_norm(
             let mut left = vp;
             for (k, q) in group.iter().enumerate() {
                 let v = if k + 1 == group.len() {
-                    if left % q.f != 0 {
+                    if !left.is_multiple_of(q.f) {
                         return None;
                     }
                     left / q.f

@@ -89,7 +89,10 @@ fn squarefree_into(k: Fp, p: u64, f: &[u64], scale: u32, out: &mut Vec<(Vec<u64>
 pub fn equal_degree(g: &[u64], d: usize, p: u64, rng: &mut Rng) -> Vec<Vec<u64>> {
     let k = field(p);
     let n = degree(g);
-    assert!(d >= 1 && n % d == 0, "degree {n} is not a multiple of {d}");
+    assert!(
+        d >= 1 && n.is_multiple_of(d),
+        "degree {n} is not a multiple of {d}"
+    );
     if n == d {
         return vec![g.to_vec()];
     }
@@ -205,8 +208,10 @@ mod tests {
                 let mut f = vec![1 + rng.below(p - 1)];
                 for _ in 0..parts {
                     let d = 1 + rng.below(4) as usize;
-                    let mut g: Vec<u64> = (0..d).map(|_| rng.below(p)).collect();
-                    g.push(1);
+                    let g: Vec<u64> = (0..d)
+                        .map(|_| rng.below(p))
+                        .chain(std::iter::once(1))
+                        .collect();
                     let e = 1 + rng.below(3);
                     for _ in 0..e {
                         f = k.mul(&f, &g);

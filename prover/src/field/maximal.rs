@@ -92,6 +92,9 @@ fn merge(mut fs: Vec<(Integer, u32)>) -> Vec<(Integer, u32)> {
     out
 }
 
+/// Primes with exponents, increasing, and the cofactor left unfactored.
+pub type Factored = (Vec<(Integer, u32)>, Option<Integer>);
+
 /// Factors `|d|` (`d ≠ 0`): the caller's primes first (each must be prime
 /// and divide `d`), then trial division below [`TRIAL_BOUND`], then the
 /// prover's Pollard–Brent rho with `rho_budget` steps on what is left.
@@ -101,7 +104,7 @@ pub fn factor_discriminant(
     d: &Integer,
     listed: &[Integer],
     rho_budget: u64,
-) -> Result<(Vec<(Integer, u32)>, Option<Integer>), MaximalError> {
+) -> Result<Factored, MaximalError> {
     let mut m = Integer::from(d.abs_ref());
     let mut found = Vec::new();
     for q in listed {
@@ -294,7 +297,7 @@ pub fn maximal_order(
     assert_eq!(rest, 1, "the index has only primes p with p^2 | disc(F)");
     let disc = order.discriminant().clone();
     assert_eq!(
-        Integer::from(&disc * index.clone().square()),
+        (&disc * index.clone().square()),
         disc_f,
         "disc(F) = [O : Z[θ]]^2 disc(O)"
     );
