@@ -10,7 +10,7 @@
 //!   lattice given by generators, in the same lower-triangular shape, kept
 //!   modulo a multiple of its determinant (H. Cohen, A Course in
 //!   Computational Algebraic Number Theory, GTM 138, Algorithm 2.4.8, after
-//!   Domich, Kannan and Trotter);
+//!   Domich, Kannan and Trotter; algorithm numbers here from memory);
 //! - [`modp`]: the little linear algebra over `F_p` (`p < 2^63`) the round 2
 //!   algorithm and the decomposition of primes need.
 //!

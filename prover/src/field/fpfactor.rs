@@ -3,8 +3,9 @@
 //! `Fp`, whose arithmetic this reuses):
 //!
 //! 1. squarefree factorisation (H. Cohen, A Course in Computational
-//!    Algebraic Number Theory, GTM 138, Algorithm 3.4.2: repeated gcds with
-//!    the derivative, and `p`-th roots where the derivative vanishes);
+//!    Algebraic Number Theory, GTM 138, Algorithm 3.4.2, the numbers here
+//!    from memory: repeated gcds with the derivative, and `p`-th roots where
+//!    the derivative vanishes);
 //! 2. distinct-degree factorisation (Cohen, Algorithm 3.4.3, the verifier's
 //!    `Fp::distinct_degree`);
 //! 3. equal-degree splitting by the method of D. G. Cantor and

@@ -1,16 +1,16 @@
-//! The maximal order by the Pohst–Zassenhaus round 2 algorithm (H. Cohen,
-//! A Course in Computational Algebraic Number Theory, GTM 138, Algorithm
-//! 6.1.8; the theorem it rests on is Cohen's Theorem 6.1.3, after
-//! Zassenhaus): an order `O` is `p`-maximal iff it equals the ring of
-//! multipliers `O' = {x ∈ K : x I_p ⊆ I_p}` of its `p`-radical
-//! `I_p = {x ∈ O : x^m ∈ pO for some m}`, and otherwise `O' ⊋ O`; so
-//! enlarging to `O'` until it stops gives the `p`-maximal over-order.
+//! The maximal order by the Pohst–Zassenhaus round 2 algorithm (H. Cohen, A
+//! Course in Computational Algebraic Number Theory, GTM 138, Algorithm 6.1.8;
+//! the theorem it rests on is Cohen's Theorem 6.1.3, after Zassenhaus; theorem
+//! and lemma numbers here from memory): an order `O` is `p`-maximal iff it
+//! equals the ring of multipliers `O' = {x ∈ K : x I_p ⊆ I_p}` of its
+//! `p`-radical `I_p = {x ∈ O : x^m ∈ pO for some m}`, and otherwise `O' ⊋ O`;
+//! so enlarging to `O'` until it stops gives the `p`-maximal over-order.
 //!
-//! Only primes with `p^2 | disc(F)` can divide the index `[O_K : Z[θ]]`,
-//! since `disc(Z[θ]) = [O_K : Z[θ]]^2 disc(O_K)`. The discriminant is
-//! factored by trial division, the caller's primes (the `--factors`
-//! option) and Pollard's rho; a cofactor left unfactored is reported, and
-//! the order returned is then maximal at the known primes only.
+//! Only primes with `p^2 | disc(F)` can divide the index `[O_K : Z[θ]]`, since
+//! `disc(Z[θ]) = [O_K : Z[θ]]^2 disc(O_K)`. The discriminant is factored by
+//! trial division, the caller's primes (the `--factors` option) and Pollard's
+//! rho; a cofactor left unfactored is reported, and the order returned is then
+//! maximal at the known primes only.
 //!
 //! Linear algebra is over `F_p` with `p < 2^63`.
 
