@@ -3,14 +3,15 @@
 //! (every prime ideal above every prime `p ≤ B`), in the manner of
 //! J. Buchmann ("A subexponential algorithm for the determination of class
 //! groups and regulators of algebraic number fields", Séminaire de Théorie
-//! des Nombres, Paris 1988–89): small elements have small norms, and small
-//! norms are often smooth.
+//! des Nombres, Paris 1988–89; the reference from memory): small elements
+//! have small norms, and small norms are often smooth.
 //!
 //! Three sources of elements, all deterministic for a given seed:
 //! - small combinations of an LLL-reduced basis of `O` under the `T2` form
 //!   `T2(α) = Σ_σ |σ(α)|^2` (A. K. Lenstra, H. W. Lenstra and L. Lovász,
 //!   Math. Ann. 261 (1982); the prover's `linalg::lll`), which also give
-//!   elements of norm `±1`, kept for the units;
+//!   elements of norm `±1`, kept for the units; then, for more units, the
+//!   reduced bases of `O` under randomly weighted forms `Σ w_j^2 |σ_j(α)|^2`;
 //! - `α = a - bθ` with `gcd(a, b) = 1` by a line sieve over `a` for each
 //!   `b` (as in the number field sieve): a prime `P = (p, θ - r)` of degree
 //!   one with `p ∤ [O : Z[θ]]` contains `a - bθ` iff `a ≡ b r (mod p)`
@@ -18,7 +19,8 @@
 //! - small combinations of an LLL-reduced basis of a factor-base prime
 //!   `P` (and of products `PQ`), whose norms are `N(P)` times a small
 //!   number: every prime of the factor base, whatever its degree, thus gets
-//!   a relation, so the relation lattice can reach full rank.
+//!   a relation (when one is found within `per_ideal` tries), so the
+//!   relation lattice can reach full rank.
 //!
 //! Norms are tested for smoothness by one remainder of the product of the
 //! primes up to `B` and repeated squaring (common practice), and only
@@ -193,7 +195,8 @@ impl SearchOptions {
 /// How many relations each source gave, in the order they ran.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct SearchStats {
-    /// Small combinations of the reduced basis of `O`.
+    /// Small combinations of reduced bases of `O` (under `T2`, then
+    /// under randomly weighted forms).
     pub from_order: usize,
     /// The line sieve over `a - bθ`.
     pub from_sieve: usize,
