@@ -753,7 +753,7 @@ mod tests {
     /// Checks every relation: `N(α) = ±∏ N(P_i)^{v_i}`, each `v_i` equal to
     /// the valuation recomputed by the anti-uniformiser, and units of norm
     /// ±1.
-    fn check(order: &Order, fb: &FactorBase, rels: &[Relation]) {
+    pub(super) fn check(order: &Order, fb: &FactorBase, rels: &[Relation]) {
         for r in rels {
             let norm = order.norm(&r.coords);
             let prod: Integer = r
@@ -925,6 +925,17 @@ mod timing {
                 t.elapsed() - t3
             );
             let units = rels.iter().filter(|r| r.is_unit()).count();
+            super::tests::check(&m.order, &fb, &rels);
+            let mut seen = vec![false; fb.len()];
+            for r in &rels {
+                for &(i, _) in &r.exponents {
+                    seen[i] = true;
+                }
+            }
+            println!(
+                "primes in no relation: {}",
+                seen.iter().filter(|&&b| !b).count()
+            );
             println!(
                 "F = {f:?}: disc(F) = {}, disc(O) = {}, B = {bound}, |FB| = {}, relations {} ({units} units); maximal {:?}, factor base {:?}, relations {:?}",
                 discriminant(&f).unwrap(),
