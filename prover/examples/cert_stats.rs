@@ -26,5 +26,12 @@ fn main() {
             b.lattice.generators.len()
         ),
         Document::OrderWitness(_) => println!("0 0 0 0"),
+        Document::Field(b) => println!(
+            "{} {} {} {}",
+            b.factor_base.len(),
+            b.lattice.eliminations.len(),
+            b.lattice.raw_relations.as_ref().map_or(0, |r| r.len()),
+            b.lattice.generators.len()
+        ),
     }
 }

@@ -46,6 +46,7 @@ pub mod setup;
 pub mod show;
 pub mod units;
 
+pub use drivers::field::{field_to_bytes, prove_field};
 pub use drivers::{collect, encode_and_check, prove, prove_to_bytes, witness};
 pub use setup::{Options, ProveError};
 

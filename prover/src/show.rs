@@ -47,7 +47,7 @@ fn generator_view(b: &Body, g: &CyclicGenerator) -> GeneratorView {
 /// The stated fundamental unit, expanded when it is small enough:
 /// `(x, y)` with `ε = x + y ω`, `ω = (σ + sqrt D)/2`, `σ = D mod 2`.
 pub fn unit_coordinates(b: &Body) -> Option<(Integer, Integer)> {
-    let Order::Quadratic { discriminant: d } = &b.order;
+    let d = &quadratic_d(&b.order);
     let (a, y) = unit_ab(b)?;
     let sigma = u32::from(d.is_odd());
     Some(((a - Integer::from(&y * sigma)) >> 1u32, y))
@@ -56,7 +56,7 @@ pub fn unit_coordinates(b: &Body) -> Option<(Integer, Integer)> {
 /// The stated fundamental unit (of the two signs, the one > 0), expanded when it is small
 /// enough: `(a, b)` with `ε = (a + b sqrt(D))/2`.
 pub fn unit_ab(b: &Body) -> Option<(Integer, Integer)> {
-    let Order::Quadratic { discriminant: d } = &b.order;
+    let d = &quadratic_d(&b.order);
     let units = b.units.as_ref()?;
     // ε = ∏ β_j^{2^{l-j}}
     let l = units.steps.len();
@@ -216,6 +216,10 @@ fn generator_line(view: &GeneratorView, order: &Integer, style: Style) -> String
             "  generator      the prime ideal product {}, of order {order}\n",
             ideals_text(f, style)
         ),
+        GeneratorView::FieldIdeals(_) => format!(
+            "  generator      {}, of order {order}\n",
+            classcert_verifier::report::generator_text(view)
+        ),
     }
 }
 
@@ -285,7 +289,7 @@ pub fn text(c: &Decoded) -> String {
 
 pub fn text_styled(c: &Decoded, style: Style) -> String {
     let b = &c.body;
-    let Order::Quadratic { discriminant } = &b.order;
+    let discriminant = &quadratic_d(&b.order);
     let mut s = String::new();
     s.push_str("classcert certificate (contents as stated; not checked: run classcert-verify)\n");
     header_lines(
@@ -352,7 +356,7 @@ pub fn text_styled(c: &Decoded, style: Style) -> String {
 /// vocabulary).
 pub fn json(c: &Decoded) -> Json {
     let b = &c.body;
-    let Order::Quadratic { discriminant } = &b.order;
+    let discriminant = &quadratic_d(&b.order);
     let abs_d = Integer::from(discriminant.abs_ref());
     let mut out = vec![
         ("schema", Json::str(SCHEMA)),
@@ -448,7 +452,7 @@ fn factorisation_text(f: &[classcert_format::PrimePower]) -> String {
 
 /// `show` for an order-witness certificate.
 pub fn witness_text(w: &classcert_format::WitnessBody, id_hex: &str) -> String {
-    let Order::Quadratic { discriminant } = &w.order;
+    let discriminant = &quadratic_d(&w.order);
     let mut s = String::new();
     s.push_str("classcert order-witness certificate (contents as stated; not checked: run classcert-verify)\n");
     header_lines(
@@ -476,7 +480,7 @@ pub fn witness_text(w: &classcert_format::WitnessBody, id_hex: &str) -> String {
 
 /// `show --json` for an order-witness certificate.
 pub fn witness_json(w: &classcert_format::WitnessBody, id_hex: &str) -> Json {
-    let Order::Quadratic { discriminant } = &w.order;
+    let discriminant = &quadratic_d(&w.order);
     let mut out = vec![
         ("schema", Json::str(SCHEMA)),
         ("kind", Json::str("claims")),
@@ -509,6 +513,103 @@ pub fn witness_json(w: &classcert_format::WitnessBody, id_hex: &str) -> Json {
     out.push(("analytic", analytic_json(&w.euler)));
     out.push(("w", Json::Num(roots_of_unity(discriminant).to_string())));
     out.push(("producer", producer_json(&w.producer)));
+    Json::obj(out)
+}
+
+/// `D` of a quadratic order. A decoded [`Body`] or order witness always
+/// has one (the decoder reads a body whose order is a polynomial as a
+/// number-field certificate); 0 stands in for anything else.
+fn quadratic_d(o: &Order) -> Integer {
+    match o {
+        Order::Quadratic { discriminant } => discriminant.clone(),
+        Order::Polynomial { .. } => Integer::new(),
+    }
+}
+
+/// `show` for a number-field certificate: what it states, unchecked.
+pub fn field_text(b: &classcert_format::FieldBody, id_hex: &str) -> String {
+    let mut s = String::new();
+    s.push_str("classcert number-field certificate (contents as stated; not checked: run classcert-verify)\n");
+    s.push_str(&format!("  certificate    {id_hex}\n"));
+    if let Order::Polynomial {
+        polynomial,
+        basis,
+        denominator,
+    } = &b.order
+    {
+        s.push_str(&format!(
+            "  field          Q[x]/(F), F = {}\n",
+            classcert_verifier::report::polynomial_text(polynomial)
+        ));
+        let rows: Vec<String> = basis
+            .iter()
+            .map(|r| {
+                format!(
+                    "[{}]",
+                    r.iter()
+                        .map(|c| c.to_string())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                )
+            })
+            .collect();
+        s.push_str(&format!(
+            "  order basis    ({}) / {denominator} over 1, θ, θ², …\n",
+            rows.join(", ")
+        ));
+    }
+    s.push_str(&format!(
+        "  maximal order  {}\n",
+        if b.maximality.is_some() {
+            "claimed, with the factorisation of |disc(O)|"
+        } else {
+            "not claimed"
+        }
+    ));
+    s.push_str(&format!(
+        "  claim          class number {}, invariants {}\n",
+        b.claim.class_number,
+        classcert_verifier::report::invariants_text(&b.claim.invariants)
+    ));
+    s.push_str(&format!(
+        "  factor base    {} prime ideals; {} raw relations\n",
+        b.factor_base.len(),
+        b.lattice.raw_relations.as_ref().map_or(0, Vec::len)
+    ));
+    s.push_str(&format!(
+        "  units          w = {}, {} units of infinite order as power products\n",
+        b.units.w,
+        b.units.units.len()
+    ));
+    s.push_str(&analytic_text(&b.euler));
+    s
+}
+
+/// `show --json` for a number-field certificate.
+pub fn field_json(b: &classcert_format::FieldBody, id_hex: &str) -> Json {
+    let mut out = vec![
+        ("schema", Json::str(SCHEMA)),
+        ("kind", Json::str("claims")),
+        ("certificate_sha256", Json::str(id_hex)),
+        ("certificate_kind", Json::str("relations")),
+    ];
+    if let Order::Polynomial { polynomial, .. } = &b.order {
+        out.push((
+            "polynomial",
+            Json::str(classcert_verifier::report::polynomial_text(polynomial)),
+        ));
+        out.push((
+            "degree",
+            Json::Num(polynomial.len().saturating_sub(1).to_string()),
+        ));
+    }
+    out.push(("maximal", Json::Bool(b.maximality.is_some())));
+    out.push(("class_number", Json::str(b.claim.class_number.to_string())));
+    out.push(("invariants", strings(&b.claim.invariants)));
+    out.push(("w", Json::Num(b.units.w.to_string())));
+    out.push(("unit_rank", Json::Num(b.units.units.len().to_string())));
+    out.push(("analytic", analytic_json(&b.euler)));
+    out.push(("producer", producer_json(&b.producer)));
     Json::obj(out)
 }
 

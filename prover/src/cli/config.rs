@@ -26,6 +26,9 @@ const MAX_LIST_DIGITS: usize = 200;
 #[derive(Debug)]
 pub struct ProveConfig {
     pub d: Integer,
+    /// `--polynomial`: the defining polynomial of a number field
+    /// (coefficients from the constant term up; `d` is then 0).
+    pub polynomial: Option<Vec<Integer>>,
     pub output: PathBuf,
     pub opts: Options,
     pub claim: Option<Claim>,
@@ -43,8 +46,14 @@ pub struct Claim {
 pub struct ProveArgs {
     /// The discriminant D: an optional '-' and decimal digits only, ≡ 0 or
     /// 1 mod 4, not a square; e.g. -3299 or 316.
-    #[arg(allow_hyphen_values = true)]
-    pub discriminant: String,
+    #[arg(allow_hyphen_values = true, required_unless_present = "polynomial")]
+    pub discriminant: Option<String>,
+    /// Instead of D: the maximal order of the number field Q[x]/(F), for a
+    /// monic irreducible F of degree 3 to 6, written as usual, e.g.
+    /// "x^3 - 2*x + 5" (quote it). --factors then lists primes of disc(F)
+    /// the prover may not find itself.
+    #[arg(long, value_name = "F", conflicts_with_all = ["discriminant", "claim_class_number", "unconditional", "resume"])]
+    pub polynomial: Option<String>,
     /// A second discriminant (refused with a clear message).
     #[arg(hide = true, allow_negative_numbers = true)]
     pub more: Vec<String>,
@@ -266,14 +275,61 @@ fn factor_list(flag: &str, s: &str, target: &Integer, what: &str) -> Result<Vec<
 }
 
 impl ProveConfig {
+    /// `prove --polynomial F`: `F` read and checked (degree 3 to 6, monic,
+    /// squarefree, irreducible) before any work.
+    fn field(a: &ProveArgs, text: &str) -> Result<ProveConfig, String> {
+        let f = classcert_prover::polynomial::parse(text).map_err(|e| e.render(text))?;
+        let disc = classcert_prover::polynomial::check_defining(&f)
+            .map_err(|r| format!("--polynomial \"{}\": {r}", shown(text)))?;
+        let factors = a
+            .search
+            .factors
+            .as_deref()
+            .map(|s| integer_list("--factors", s, true, MAX_LIST_DIGITS))
+            .transpose()?;
+        for p in factors.iter().flatten() {
+            if *p < 2 || primality_evidence(p) == Evidence::Composite {
+                return Err(format!("--factors: {} is not prime", shown_int(p)));
+            }
+            if !disc.is_divisible(p) {
+                return Err(format!(
+                    "--factors: {} does not divide disc(F) = {}",
+                    shown_int(p),
+                    shown_int(&disc)
+                ));
+            }
+        }
+        if let Some(x) = a.search.euler_x {
+            euler_x(x, &Integer::from(disc.abs_ref()))?;
+        }
+        output_file(&a.output)?;
+        Ok(ProveConfig {
+            d: Integer::new(),
+            polynomial: Some(f),
+            output: a.output.clone(),
+            opts: Options {
+                seed: a.search.seed,
+                factors,
+                euler_x: a.search.euler_x,
+                force: a.force,
+                ..Options::default()
+            },
+            claim: None,
+        })
+    }
+
     pub fn new(a: ProveArgs) -> Result<ProveConfig, String> {
+        if let Some(text) = &a.polynomial {
+            return Self::field(&a, text);
+        }
+        let first = a.discriminant.as_deref().unwrap_or_default();
         let d = match a.more.as_slice() {
-            [] => discriminant(&a.discriminant)?,
+            [] => discriminant(first)?,
             [second, ..] => {
                 return Err(format!(
                     "prove takes one discriminant, but {} were given ('{}', '{}'{}); prove them one at a time",
                     a.more.len() + 1,
-                    shown(&a.discriminant),
+                    shown(first),
                     shown(second),
                     if a.more.len() > 1 { ", ..." } else { "" }
                 ))
@@ -349,6 +405,7 @@ impl ProveConfig {
         }
         Ok(ProveConfig {
             d,
+            polynomial: None,
             output: a.output,
             opts: Options {
                 unconditional: a.unconditional,

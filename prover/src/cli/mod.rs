@@ -121,9 +121,10 @@ pub fn main() -> ExitCode {
 fn prove(mut config: ProveConfig, quiet: bool) -> ExitCode {
     let sink = sink::CliSink::install(quiet);
     config.opts.progress = sink.hook();
-    let result = match config.claim {
-        None => classcert_prover::prove_to_bytes(&config.d, &config.opts),
-        Some(c) => classcert_prover::witness::prove_witness_to_bytes(
+    let result = match (config.claim, &config.polynomial) {
+        (_, Some(f)) => classcert_prover::field_to_bytes(f, &config.opts),
+        (None, None) => classcert_prover::prove_to_bytes(&config.d, &config.opts),
+        (Some(c), None) => classcert_prover::witness::prove_witness_to_bytes(
             &config.d,
             &c.h,
             c.h_factors,
@@ -192,6 +193,8 @@ fn show_file(file: &std::path::Path, json: bool) -> ExitCode {
         }
         (Document::OrderWitness(w), true) => show::witness_json(&w, &id_hex).render(),
         (Document::OrderWitness(w), false) => show::witness_text(&w, &id_hex),
+        (Document::Field(b), true) => show::field_json(&b, &id_hex).render(),
+        (Document::Field(b), false) => show::field_text(&b, &id_hex),
     };
     let _ = std::io::stdout().write_all(out.as_bytes());
     Exit::Success.into()

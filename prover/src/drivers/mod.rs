@@ -8,7 +8,9 @@
 //! - [`common`]: what they share (search budgets, eliminations, and the
 //!   encoding with the verifier's check).
 
+pub(crate) mod algebra;
 pub mod common;
+pub mod field;
 pub mod imaginary;
 pub mod real;
 pub mod witness;

@@ -25,12 +25,13 @@
 //! Sém. Théorie des Nombres Paris 1988–89). The regulator is the real gcd
 //! of their logarithms ([`crate::units::unit_gcd`]).
 
+use super::algebra::{lattice_and_claim, Algebra, Finished};
 use super::common::{eliminations, ELIMINATION_ATTEMPTS, ELIMINATION_CHUNK, RELATION_ATTEMPTS};
 use crate::linalg::derived::Derived;
-use crate::linalg::echelon::{axpy, Echelon, Row, Vector};
+use crate::linalg::echelon::{axpy, Row, Vector};
 use crate::linalg::sge::{Eliminated, Sge};
 use crate::linalg::shortcomb::Block;
-use crate::linalg::{cyclic_generators, smith, tracked};
+use crate::linalg::tracked;
 use crate::progress::Progress;
 use crate::relations::elements::ElementSearch;
 use crate::relations::siqs::{Params, SiqsSource};
@@ -138,172 +139,6 @@ const KERNEL_UNITS: usize = 2;
 /// 0, 2, 4 and 8 left the later coefficients at about 70, 25, 16 and 14
 /// bits.
 const HEIGHTS: usize = 6;
-
-/// The essential block solved: unit pivots first, by the structured
-/// elimination both drivers share ([`Sge`]; least Markowitz cost keeps the
-/// combinations short), then an echelon form on the columns left.
-struct Algebra {
-    /// `(column, row)` in pivoting order; each row has `+1` at its column
-    /// and its other entries on columns pivoted later or left dense.
-    unit_pivots: Vec<(usize, Row)>,
-    dense: Echelon,
-    /// Columns left to the echelon form.
-    dense_cols: Vec<usize>,
-    /// The rows named on the way: every pivot of the elimination and every
-    /// row that enters the echelon form. The combinations above name them.
-    derived: Derived,
-    /// Rows of the echelon form's lattice that it was not built from: each
-    /// gives a kernel vector once reduced ([`Echelon::unit`]), after those
-    /// in `dense.kernel`. They are reduced only when asked for (their
-    /// combinations are long, with coefficients of thousands of bits).
-    spare: Vec<Row>,
-}
-
-impl Algebra {
-    /// Solves the block of `k` columns from `rows`, whose combinations name
-    /// the first `raw` relations.
-    fn solve(k: usize, raw: usize, rows: Vec<Row>) -> Algebra {
-        let rows: Vec<Row> = rows.into_iter().filter(|r| !r.combo.is_empty()).collect();
-        let mut derived = Derived::new(raw);
-        // on word-size rows when the entries allow (the same result)
-        let Eliminated {
-            sge,
-            mut active,
-            vanished,
-        } = match tracked::eliminate(k, &rows, &mut derived) {
-            Some(e) => e,
-            None => Sge::run_with(k, rows, &mut |p| derived.name(p)),
-        };
-        let dense_cols = sge.remaining();
-        // rows that vanish are units
-        let kernel = vanished
-            .into_iter()
-            .map(|r| r.combo)
-            .filter(|c| !c.is_empty())
-            .collect();
-        let unit_pivots = sge
-            .pivots
-            .into_iter()
-            .map(|(c, p)| {
-                if p.v[&c] < 0 {
-                    (c, p.lin(&Integer::from(-1), &p, &Integer::new()))
-                } else {
-                    (c, p)
-                }
-            })
-            .collect();
-        // the echelon form takes the rows with the shortest combinations
-        // first: order them so before naming makes every one a single term
-        active.sort_by_key(|r| r.combo.len());
-        for r in &mut active {
-            derived.name(r);
-        }
-        let mut dense = Echelon::new(k);
-        dense.kernel = kernel;
-        let spare = dense.triangularise(&dense_cols, active);
-        Algebra {
-            unit_pivots,
-            dense,
-            dense_cols,
-            derived,
-            spare,
-        }
-    }
-
-    /// The number of kernel vectors: rows that vanished, then the spare rows.
-    fn kernel_len(&self) -> usize {
-        self.dense.kernel.len() + self.spare.len()
-    }
-
-    /// Kernel vector `j` over the raw relations. The expansions of derived
-    /// relations are kept until [`Derived::forget_expansions`].
-    fn kernel_vector(&mut self, j: usize) -> Vector {
-        match j.checked_sub(self.dense.kernel.len()) {
-            None => self.derived.expand(&self.dense.kernel[j]),
-            Some(i) => {
-                let unit = self.dense.unit(&self.dense_cols, &self.spare[i]);
-                self.derived.expand(&unit)
-            }
-        }
-    }
-
-    /// The `count` kernel vectors among `range` whose logarithms are
-    /// cheapest to evaluate, cheapest first: fewest coefficient bits over
-    /// the raw relations, ties by position. Each is expanded on its own and
-    /// dropped after it is measured (all of them at once took gigabytes).
-    fn cheapest(&mut self, range: std::ops::Range<usize>, count: usize) -> Vec<usize> {
-        let mut order: Vec<(u64, usize)> = range
-            .map(|j| {
-                let bits: u64 = self
-                    .kernel_vector(j)
-                    .values()
-                    .map(|e| u64::from(e.significant_bits()) + 1)
-                    .sum();
-                (bits, j)
-            })
-            .collect();
-        order.sort_unstable();
-        order.into_iter().take(count).map(|(_, j)| j).collect()
-    }
-
-    fn full_rank(&self) -> bool {
-        self.dense_cols
-            .iter()
-            .all(|&c| self.dense.pivots[c].is_some())
-    }
-
-    /// The echelon form Hermite-reduced (each pivot named once reduced),
-    /// and what the certificate's lattice section is built from:
-    /// generators (dense columns with a pivot above 1), the rows of `H`,
-    /// the eliminations (dense columns from the last back, then the unit
-    /// pivots, last first) and the derived relations.
-    fn finish(self) -> Finished {
-        let mut ech = self.dense;
-        let mut derived = self.derived;
-        ech.reduce(&mut |p| derived.name(p));
-        let gens: Vec<usize> = self
-            .dense_cols
-            .iter()
-            .copied()
-            .filter(|&c| ech.diagonal(c) > 1)
-            .collect();
-        let pivot = |c: usize| ech.pivots[c].clone().expect("full rank");
-        let mut h_rows: Vec<Row> = Vec::new();
-        for &g in &gens {
-            let mut row = pivot(g);
-            for &c in self.dense_cols.iter().filter(|&&c| c > g) {
-                if gens.contains(&c) {
-                    continue;
-                }
-                if let Some(e) = row.v.get(&c).cloned() {
-                    row.sub_mul(&e, &pivot(c));
-                }
-            }
-            h_rows.push(row);
-        }
-        let elimination_rows: Vec<(usize, Row)> = self
-            .dense_cols
-            .iter()
-            .rev()
-            .filter(|c| !gens.contains(c))
-            .map(|&c| (c, pivot(c)))
-            .chain(self.unit_pivots.iter().rev().cloned())
-            .collect();
-        Finished {
-            gens,
-            h_rows,
-            elimination_rows,
-            derived,
-        }
-    }
-
-    fn h_star(&self) -> Integer {
-        self.dense_cols
-            .iter()
-            .map(|&c| self.dense.diagonal(c))
-            .product()
-    }
-}
 
 /// The essential block solved for the sieve's larger sizes: unit pivots
 /// by the structured elimination as in [`Algebra`], then the dense block
@@ -493,14 +328,6 @@ impl ShortAlgebra {
             derived: self.derived,
         })
     }
-}
-
-/// What the certificate's lattice section is built from.
-struct Finished {
-    gens: Vec<usize>,
-    h_rows: Vec<Row>,
-    elimination_rows: Vec<(usize, Row)>,
-    derived: Derived,
 }
 
 /// The essential block solved, by the echelon form or in short
@@ -702,10 +529,6 @@ fn drop_unnamed_raws(lattice: &mut Lattice) {
         }
     }
     lattice.raw_relations = Some(kept);
-}
-
-fn to_terms(v: &Vector) -> Vec<(u32, Integer)> {
-    v.iter().map(|(i, e)| (*i as u32, e.clone())).collect()
 }
 
 pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
@@ -983,59 +806,28 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             break alg;
         }
     };
-    let Finished {
-        gens,
-        h_rows,
-        elimination_rows,
-        derived,
-    } = match alg {
+    let fin = match alg {
         Solved::Echelon(alg) => alg.finish(),
         Solved::Short(alg) => alg.finish()?,
     };
-    let h_g: Vec<Vec<Integer>> = h_rows
-        .iter()
-        .map(|r| {
-            gens.iter()
-                .map(|g| r.v.get(g).cloned().unwrap_or_default())
-                .collect()
+    let extra: Vec<Elimination> = (k..n)
+        .map(|i| {
+            let r = elim_of[i].expect("every large prime has an elimination");
+            Elimination {
+                pivot: i as u32,
+                relation: Relation {
+                    entries: raws[r]
+                        .entries
+                        .iter()
+                        .map(|(c, e)| (*c as u32, Integer::from(*e)))
+                        .collect(),
+                    witness: Witness::Combination {
+                        terms: vec![(r as u32, Integer::from(1))],
+                    },
+                },
+            }
         })
         .collect();
-    let sm = smith(&h_g).ok_or_else(|| ProveError::SearchFailed("Smith form failed".into()))?;
-    let mut eliminations = Vec::new();
-    // the derived relations these combinations rest on
-    let kept = derived.keep(
-        elimination_rows
-            .iter()
-            .map(|(_, r)| &r.combo)
-            .chain(h_rows.iter().map(|r| &r.combo)),
-    );
-    for (c, row) in &elimination_rows {
-        eliminations.push(Elimination {
-            pivot: *c as u32,
-            relation: Relation {
-                entries: to_terms(&row.v),
-                witness: Witness::Combination {
-                    terms: kept.terms(&row.combo),
-                },
-            },
-        });
-    }
-    for i in k..n {
-        let r = elim_of[i].expect("every large prime has an elimination");
-        eliminations.push(Elimination {
-            pivot: i as u32,
-            relation: Relation {
-                entries: raws[r]
-                    .entries
-                    .iter()
-                    .map(|(c, e)| (*c as u32, Integer::from(*e)))
-                    .collect(),
-                witness: Witness::Combination {
-                    terms: vec![(r as u32, Integer::from(1))],
-                },
-            },
-        });
-    }
     let raw_relations: Vec<Relation> = raws
         .iter()
         .map(|r| Relation {
@@ -1050,6 +842,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
             },
         })
         .collect();
+    let (claim, mut lattice) = lattice_and_claim(fin, extra, raw_relations)?;
     // The unit found from the relations, rewritten in compact form from
     // its logarithm; the verifier's own check gives the stated enclosure.
     let terms: Vec<(usize, Integer)> = unit
@@ -1068,41 +861,6 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
         ProveError::SelfCheckFailed(format!("compact representation: {}", e.detail))
     })?;
     let regulator = chain.log_eps;
-    let mut generators = Vec::new();
-    let mut invariants = Vec::new();
-    for (di, xv) in cyclic_generators(&sm, &h_g) {
-        invariants.push(di);
-        generators.push(CyclicGenerator {
-            exponents: xv,
-            form: None,
-        });
-    }
-    let claim = Claim {
-        class_number: sm.diag.iter().product(),
-        invariants,
-        generators,
-    };
-    let mut lattice = Lattice {
-        generators: gens.iter().map(|&g| g as u32).collect(),
-        relations: h_g,
-        relation_witness: Witness::Combinations {
-            rows: h_rows.iter().map(|r| kept.terms(&r.combo)).collect(),
-        },
-        smith: sm.into(),
-        eliminations,
-        raw_relations: Some(raw_relations),
-        derived_relations: (!kept.rels.is_empty()).then(|| {
-            kept.rels
-                .iter()
-                .map(|(v, terms)| Relation {
-                    entries: to_terms(v),
-                    witness: Witness::Combination {
-                        terms: terms.clone(),
-                    },
-                })
-                .collect()
-        }),
-    };
     if short {
         drop_unnamed_raws(&mut lattice);
     }

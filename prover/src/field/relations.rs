@@ -54,12 +54,25 @@ impl FactorBase {
     /// Decomposes every prime up to `bound`; fails if `O` is not
     /// `p`-maximal at one of them.
     pub fn new(order: &Order, bound: u64, seed: u64) -> Result<FactorBase, DecomposeError> {
+        FactorBase::with_extra(order, bound, &[], seed)
+    }
+
+    /// [`FactorBase::new`], and also every prime ideal above the primes
+    /// `extra` (ascending, each above `bound`): the primes dividing
+    /// `disc(F)` whose splitting the Euler product needs.
+    pub fn with_extra(
+        order: &Order,
+        bound: u64,
+        extra: &[u64],
+        seed: u64,
+    ) -> Result<FactorBase, DecomposeError> {
         let mut groups = Vec::new();
         let mut offsets = Vec::new();
         let mut anti = Vec::new();
         let mut primorial = Integer::from(1);
         let mut at = 0;
-        for p in primes_up_to(bound) {
+        let listed = primes_up_to(bound);
+        for p in listed.into_iter().chain(extra.iter().copied()) {
             let g = decompose(order, p, seed)?;
             offsets.push(at);
             at += g.len();

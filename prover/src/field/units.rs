@@ -356,15 +356,29 @@ pub fn find_units(
     }
     let rows: Vec<Vec<(u32, i64)>> = relations.iter().map(|r| r.exponents.clone()).collect();
     let kernel = kernel_basis(&rows, n_ideals)?;
+    units_from_kernel(&element_logs, &kernel, relations.len(), r, prec)
+}
+
+/// A basis of the units that the kernel vectors `kernel` (dense, over the
+/// `m` raw relations) generate modulo torsion, as power products over the
+/// raw relations, from the relations' log vectors `element_logs` at
+/// precision `prec`; `r = r1 + r2 - 1`.
+pub fn units_from_kernel(
+    element_logs: &[Vec<Float>],
+    kernel: &[Vec<Integer>],
+    m: usize,
+    r: usize,
+    prec: u32,
+) -> Result<UnitSearch, String> {
     let kernel_logs: Vec<Vec<Float>> = kernel
         .iter()
-        .map(|x| combine(x, &element_logs, prec))
+        .map(|x| combine(x, element_logs, prec))
         .collect();
     let (combos, logs) = log_lattice_basis(&kernel_logs, r, prec)?;
     let mut units = Vec::with_capacity(r);
     for c in &combos {
-        let mut e = vec![Integer::new(); relations.len()];
-        for (ci, x) in c.iter().zip(&kernel) {
+        let mut e = vec![Integer::new(); m];
+        for (ci, x) in c.iter().zip(kernel) {
             for (ej, xj) in e.iter_mut().zip(x) {
                 *ej += Integer::from(ci * xj);
             }

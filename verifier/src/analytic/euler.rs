@@ -103,7 +103,7 @@ pub(crate) fn compute_with(
 ) -> Option<EulerResult> {
     let coef = |p: u64, m: u64| {
         let c = chi(p);
-        if m % 2 == 0 {
+        if m.is_multiple_of(2) {
             i64::from(c * c)
         } else {
             i64::from(c)

@@ -168,7 +168,7 @@ pub fn euler_field(
         };
         let s: u64 = fs
             .iter()
-            .filter(|&&f| f > 0 && m % u64::from(f) == 0)
+            .filter(|&&f| f > 0 && m.is_multiple_of(u64::from(f)))
             .map(|&f| u64::from(f))
             .sum();
         s as i64 - 1
@@ -195,4 +195,36 @@ pub fn log_hr(
             .sub(&ln2.mul(&Interval::u64(r1 as u64)))
             .sub(&ln2pi.mul(&Interval::u64(r2 as u64))),
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::arith::primes_up_to;
+
+    #[test]
+    fn residue_of_the_pure_cubic_field_of_2() {
+        // K = Q(2^(1/3)): Δ = -108 (pure cubic fields, Alaca and Williams,
+        // from memory), h = 1 (OEIS A246457), w = 2, signature (1, 1), and
+        // R = log(1 + 2^(1/3) + 4^(1/3)) for the unit 2^(1/3) - 1 (from
+        // memory; its inverse is θ² + θ + 1). 2 and 3 are totally ramified
+        // (x³ - 2 ≡ x³ mod 2 and ≡ (x + 1)³ mod 3).
+        let f: Vec<Integer> = [-2, 0, 0, 1].iter().map(|&c| Integer::from(c)).collect();
+        let abs_disc = Integer::from(108);
+        let x = 100_000;
+        let primes = primes_up_to(x);
+        let splitting = |p: u64| (p == 2 || p == 3).then(|| vec![(3, 1)]);
+        let ld = Interval::int(&abs_disc).ln().unwrap();
+        let res = euler_field(x, &f, &splitting, &primes, &[], &ld, &mut || {}).unwrap();
+        let c = 2f64.cbrt();
+        let r = (1.0 + c + c * c).ln();
+        let kappa = 2.0 * std::f64::consts::PI * r / 108f64.sqrt();
+        let truth = kappa.ln();
+        assert!(res.log_l.lo.to_f64() < truth && truth < res.log_l.hi.to_f64());
+        // the approximation itself is much closer than the error bound
+        assert!((res.f.mid_f64() - truth).abs() < res.error.mid_f64() / 4.0);
+        // and log h R, h = 1, encloses log R
+        let lhr = log_hr(&res.log_l, &abs_disc, (1, 1), 2).unwrap();
+        assert!(lhr.lo.to_f64() < r.ln() && r.ln() < lhr.hi.to_f64());
+    }
 }

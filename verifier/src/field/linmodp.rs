@@ -9,10 +9,6 @@
 //! is the caller's to know; a composite `p` shows up as a pivot with no
 //! inverse, and the answer is `None`, never a panic.
 
-// Nothing outside the tests calls this yet: the checks of orders of
-// degree 3 to 6 will, once the format carries them.
-#![cfg_attr(not(test), allow(dead_code))]
-
 use rug::Integer;
 
 /// `v mod p`, entries in `[0, p)`, for `p ≥ 1`; for `p < 1`, where no
@@ -119,6 +115,7 @@ pub fn kernel(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
 /// Whether `v` lies in the row space of `rows` modulo `p`: adding it does
 /// not raise the rank. `None` as [`echelon`] (also if `v` has another
 /// length than the rows).
+#[cfg(test)]
 pub fn in_row_space(rows: &[Vec<Integer>], v: &[Integer], p: &Integer) -> Option<bool> {
     let mut with_v = rows.to_vec();
     with_v.push(v.to_vec());

@@ -15,10 +15,6 @@
 //! factors, `Q[x]/(F)` is a product of fields and every statement below
 //! holds for it as well.
 
-// Nothing outside the tests calls this yet: the checks of orders of
-// degree 3 to 6 will, once the format carries them.
-#![cfg_attr(not(test), allow(dead_code))]
-
 use super::{linmodp, zpoly};
 use crate::limits::{
     MAX_FIELD_DEGREE, MAX_MAXIMALITY_PRIME_BITS, MAX_ORDER_ENTRY_BITS, MAX_POWER_BITS,
@@ -329,6 +325,7 @@ impl FieldOrder {
     }
 
     /// `table()[i][j]` = the coordinates of `ω_i ω_j`.
+    #[cfg(test)]
     pub fn table(&self) -> &[Vec<Vec<Integer>>] {
         &self.table
     }

@@ -6,14 +6,11 @@
 //! Everything is linear algebra in `O/pO` (`n`-dimensional over `F_p`) and
 //! products in `O`; each check below names the fact it rests on.
 
-// Nothing outside the tests calls this yet: the checks of orders of
-// degree 3 to 6 will, once the format carries them.
-#![cfg_attr(not(test), allow(dead_code))]
-
 use super::fppoly::Fp;
 use super::linmodp;
 use super::order::{FieldOrder, OrderError};
 use crate::primality::bpsw::{primality_evidence, Evidence};
+#[cfg(test)]
 use rug::ops::Pow;
 use rug::Integer;
 
@@ -121,21 +118,25 @@ impl CheckedPrime {
         self.f
     }
     /// `N(P) = p^f`.
+    #[cfg(test)]
     pub fn norm(&self) -> Integer {
         Integer::from(self.p).pow(self.f)
     }
+    #[cfg(test)]
     pub fn pi(&self) -> &[Integer] {
         &self.pi
     }
+    #[cfg(test)]
     pub fn anti(&self) -> &[Integer] {
         &self.anti
     }
-    /// `P/pO` in reduced echelon form: equal for two primes iff they are
-    /// the same ideal (both contain `pO`).
+    /// `P/pO` in reduced echelon form.
+    #[cfg(test)]
     pub fn rows(&self) -> &[Vec<Integer>] {
         &self.rows
     }
     /// The minimal polynomial over `F_p` of the generator modulo `P`.
+    #[cfg(test)]
     pub fn residue_polynomial(&self) -> &[u64] {
         &self.residue
     }

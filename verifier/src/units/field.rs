@@ -48,37 +48,26 @@ fn is_one(o: &FieldOrder, a: &[Integer]) -> bool {
     a == o.one().as_slice()
 }
 
-/// `a^e` by squaring (`e <= MAX_W`).
-fn power(o: &FieldOrder, a: &[Integer], e: u32) -> Vec<Integer> {
-    let mut acc = o.one();
-    for bit in (0..32 - e.leading_zeros()).rev() {
-        acc = o.mul(&acc, &acc);
-        if (e >> bit) & 1 == 1 {
-            acc = o.mul(&acc, a);
-        }
-    }
-    acc
-}
-
 /// `ζ` has exact order `w`, and the residue fields allow no more.
 fn check_torsion(o: &FieldOrder, disc_f: &Integer, u: &FieldUnits) -> Check<()> {
     let w = u.w;
-    if w < 2 || w > MAX_W || u.zeta.len() != o.degree() {
+    if !(2..=MAX_W).contains(&w) || u.zeta.len() != o.degree() {
         return reject(
             Reason::TorsionMismatch,
             format!("w = {w} must lie in [2, {MAX_W}], with zeta given by its coordinates"),
         );
     }
-    if !is_one(o, &power(o, &u.zeta, w)) {
+    let power = |e: u32| o.pow(&u.zeta, e).unwrap_or_default();
+    if !is_one(o, &power(w)) {
         return reject(Reason::TorsionMismatch, format!("zeta^{w} is not 1"));
     }
     let mut m = w;
     for q in 2..=w {
-        if m % q == 0 {
-            while m % q == 0 {
+        if m.is_multiple_of(q) {
+            while m.is_multiple_of(q) {
                 m /= q;
             }
-            if is_one(o, &power(o, &u.zeta, w / q)) {
+            if is_one(o, &power(w / q)) {
                 return reject(
                     Reason::TorsionMismatch,
                     format!("zeta^{} is already 1: zeta does not have order {w}", w / q),

@@ -37,16 +37,6 @@ impl UnitFacts {
     pub(crate) fn steps(&self) -> usize {
         self.steps
     }
-
-    /// For unit tests of the conclusion step.
-    #[cfg(test)]
-    pub(crate) fn for_tests(regulator: Interval) -> UnitFacts {
-        UnitFacts {
-            regulator,
-            norm: 1,
-            steps: 1,
-        }
-    }
 }
 
 pub(crate) fn check_stated(units: &Units, chain: &Chain) -> Check<UnitFacts> {
