@@ -35,6 +35,10 @@ use rug::Integer;
 /// each later batch.
 const EXTRA_RELATIONS: usize = 20;
 
+/// Kernel vectors offered to the unit search in the first round, plus 4 per
+/// unit wanted (and as many again each later round).
+const KERNEL_BASE: usize = 8;
+
 /// Batches of relations before the search gives up.
 const MAX_BATCHES: usize = 40;
 
@@ -185,11 +189,20 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
     ));
     let mut raws: Vec<relations::Relation> = Vec::new();
     let mut element_logs: Vec<Vec<rug::Float>> = Vec::new();
+    let mut extra_relations: Vec<relations::Relation> = Vec::new();
+    // units found in earlier rounds, and the rounds that reached them
+    let mut previous: Vec<Vec<(u32, Integer)>> = Vec::new();
+    let mut solved_rounds = 0;
     let mut batch = k + EXTRA_RELATIONS;
     let mut confirmed = None;
     for round in 0..MAX_BATCHES {
         let search = relations::SearchOptions::new(batch, opts.seed.wrapping_add(round as u64));
+        let t0 = std::time::Instant::now();
         raws.extend(relations::find_relations(order, &fb, &search));
+        if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
+            eprintln!("round {round}: search {:?}", t0.elapsed());
+        }
+        raws.append(&mut extra_relations);
         for rel in &raws[element_logs.len()..] {
             let (num, den) = order.to_power(&rel.coords);
             let l = units::log_vector(&places, r1, &num, &den).ok_or_else(|| {
@@ -210,28 +223,86 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
                 combo: Vector::from([(j, Integer::from(1))]),
             })
             .collect();
+        let t0 = std::time::Instant::now();
         let mut alg = Algebra::solve(k, raws.len(), rows);
+        if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
+            eprintln!("round {round}: solve {:?}", t0.elapsed());
+        }
         if !alg.full_rank() {
+            // columns left without a pivot: relations inside those primes
+            let dependent: Vec<usize> = alg
+                .dense_cols
+                .iter()
+                .copied()
+                .filter(|&c| alg.dense.pivots[c].is_none())
+                .collect();
+            if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
+                eprintln!(
+                    "round {round}: {} relations, {} columns without a pivot",
+                    raws.len(),
+                    dependent.len()
+                );
+            }
+            for c in dependent {
+                let seed = opts.seed.wrapping_add(round as u64);
+                extra_relations.extend(relations::relations_in(order, &fb, c, 4, seed));
+            }
             continue;
         }
         let m = raws.len();
-        let kernel: Vec<Vec<Integer>> = (0..alg.kernel_len())
-            .map(|j| {
+        // the units found so far and the cheapest kernel vectors (the
+        // log-lattice reduction costs grow fast with their number)
+        solved_rounds += 1;
+        let count = (KERNEL_BASE + 4 * r) * solved_rounds;
+        let mut kernel: Vec<Vec<Integer>> = previous
+            .iter()
+            .map(|u: &Vec<(u32, Integer)>| {
                 let mut dense = vec![Integer::new(); m];
-                for (i, e) in alg.kernel_vector(j) {
-                    dense[i] = e;
+                for (i, e) in u {
+                    dense[*i as usize] = e.clone();
                 }
                 dense
             })
             .collect();
-        let Ok(found) = units::units_from_kernel(&element_logs, &kernel, m, r, LOG_PREC) else {
-            continue;
+        for j in alg.cheapest(0..alg.kernel_len(), count) {
+            let mut dense = vec![Integer::new(); m];
+            for (i, e) in alg.kernel_vector(j) {
+                dense[i] = e;
+            }
+            kernel.push(dense);
+        }
+        let t0 = std::time::Instant::now();
+        let found = units::units_from_kernel(&element_logs, &kernel, m, r, LOG_PREC);
+        if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
+            eprintln!("round {round}: units {:?}", t0.elapsed());
+        }
+        let found = match found {
+            Ok(found) => found,
+            Err(e) => {
+                if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
+                    eprintln!(
+                        "round {round}: {} relations, kernel {}: {e}",
+                        raws.len(),
+                        kernel.len()
+                    );
+                }
+                continue;
+            }
         };
         let h_star = alg.h_star();
         let log_hs = Interval::int(&h_star)
             .ln()
             .map_or(f64::INFINITY, |l| l.hi.to_f64())
             + found.regulator.ln();
+        if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
+            eprintln!(
+                "round {round}: {} relations, h* = {h_star}, R* = {}, log h*R* = {log_hs:.4}, ceiling {ceiling:.4}, kernel {}",
+                raws.len(),
+                found.regulator,
+                alg.kernel_len()
+            );
+        }
+        previous = found.units.clone();
         if log_hs < ceiling {
             confirmed = Some((alg, found));
             break;

@@ -641,6 +641,35 @@ pub fn find_relations(order: &Order, fb: &FactorBase, opts: &SearchOptions) -> V
     find_relations_with_stats(order, fb, opts).0
 }
 
+/// Up to `want` more relations containing the factor-base prime `i`,
+/// from elements of that prime's lattice (for a column of the relation
+/// matrix that the first search left dependent, e.g. a prime whose only
+/// relation was `(p)` itself).
+pub fn relations_in(
+    order: &Order,
+    fb: &FactorBase,
+    i: usize,
+    want: usize,
+    seed: u64,
+) -> Vec<Relation> {
+    let opts = SearchOptions::new(usize::MAX, seed);
+    let mut s = Search {
+        order,
+        fb,
+        opts: &opts,
+        rng: Rng::new(seed),
+        seen: HashSet::new(),
+        relations: Vec::new(),
+        units: 0,
+        covered: vec![false; fb.len()],
+        tried: 0,
+    };
+    let emb = basis_embeddings(order);
+    let lattice = fb.ideal(i).lattice(order);
+    s.search_ideal(&emb, &lattice, Some(i), want);
+    s.relations
+}
+
 /// [`find_relations`], with the count from each source.
 pub fn find_relations_with_stats(
     order: &Order,
