@@ -229,7 +229,8 @@ impl std::fmt::Display for Refusal {
 /// the sub-sums of the patterns at several `p ∤ disc(F)` have no proper
 /// degree in common, `F` is irreducible (common practice; H. Cohen, GTM 138,
 /// section 3.5, from memory). Some irreducible polynomials split modulo
-/// every prime (`x^4 + 1`); they are refused here until a finer test exists.
+/// every prime (`x^4 + 1`); for them the roots decide: no set of roots
+/// closed under conjugation may have a product with integer coefficients.
 /// Returns `disc(F)`.
 pub fn check_defining(f: &[Integer]) -> Result<Integer, Refusal> {
     use classcert_verifier::math::poly::{discriminant, Fp};
@@ -280,9 +281,14 @@ pub fn check_defining(f: &[Integer]) -> Result<Integer, Refusal> {
     }
     let left: Vec<usize> = (0..=n).filter(|&k| possible[k]).collect();
     if left.is_empty() {
-        Ok(disc)
-    } else {
-        Err(Refusal::NotShownIrreducible(left))
+        return Ok(disc);
+    }
+    // Patterns cannot separate every field (x^4 + 1 splits modulo every
+    // prime): certified roots can, as the verifier checks it
+    // (`Roots::no_integer_factor`).
+    match crate::field::roots::enclose(f, 200) {
+        Ok((_, roots)) if roots.no_integer_factor() => Ok(disc),
+        _ => Err(Refusal::NotShownIrreducible(left)),
     }
 }
 
@@ -377,6 +383,11 @@ mod tests {
             check("x^3 - 8"),
             Err(Refusal::NotShownIrreducible(vec![1, 2]))
         );
+        // x^4 + 1 (Φ_8) and x^4 - x^2 + 1 (Φ_12) split modulo every prime;
+        // their roots show them irreducible. disc(Φ_8) = 256 and
+        // disc(Φ_12) = 144 (the discriminant of Q(ζ_m); common practice)
+        assert_eq!(check("x^4 + 1"), Ok(Integer::from(256)));
+        assert_eq!(check("x^4 - x^2 + 1"), Ok(Integer::from(144)));
         let shown = check("x^3 - 8").unwrap_err().to_string();
         assert!(
             shown.contains("of degree 1 or 2; the polynomial is probably reducible"),

@@ -104,6 +104,7 @@ pub mod math {
     /// embedding, determinants and regulators in intervals.
     pub mod field {
         pub use crate::field::roots::{abs_det, check_roots, regulator, RootError, Roots};
+        pub use crate::order::field::shown_irreducible;
     }
     /// Units in compact representation: the chain check, which the prover
     /// also uses to confirm the chain it built.

@@ -381,7 +381,7 @@ fn from_order_witness(
 /// units, then the analytic bound, in that order.
 pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> Check<Verified> {
     progress("order");
-    let o = check_field_order(&body.order)?;
+    let o = check_field_order(&body.order, &body.roots)?;
     let maximality = check_field_maximality(&body.maximality, &o)?;
     let order = o.order();
     let abs_disc = Integer::from(order.discriminant().abs_ref());
@@ -434,7 +434,7 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
     )?;
     progress("units");
     let raw_list = body.lattice.raw_relations.as_deref().unwrap_or_default();
-    let units = check_field_units(&body.units, &body.roots, order, o.disc_f(), raw_list)?;
+    let units = check_field_units(&body.units, o.roots(), order, o.disc_f(), raw_list)?;
     progress("analytic bound");
     let splitting = |p: u64| gen.splitting(p).map(<[_]>::to_vec);
     let facts = FieldFacts {

@@ -365,6 +365,60 @@ impl Roots {
         }
         Some(out)
     }
+
+    /// Whether `F` is shown to have no monic factor of degree `0 < d < n`
+    /// over `Z` (then `F` is irreducible over `Q`, by Gauss's lemma: a
+    /// monic rational factor of a monic integer polynomial has integer
+    /// coefficients; common practice). The roots of such a factor are a
+    /// set closed under conjugation: some real roots and whole complex
+    /// pairs. For every such set of size at most `n/2`, the coefficients
+    /// of `∏ (x - root)` are enclosed; a real part holding no integer
+    /// rules the set out. `false` when some set cannot be ruled out.
+    pub fn no_integer_factor(&self) -> bool {
+        let zero = Interval::int_prec(&Integer::new(), self.prec);
+        let one = Interval::int_prec(&Integer::from(1), self.prec);
+        let mut groups: Vec<Vec<Cx>> = self
+            .real
+            .iter()
+            .map(|t| vec![(t.clone(), zero.clone())])
+            .collect();
+        for z in &self.complex {
+            groups.push(vec![z.clone(), (z.0.clone(), z.1.neg())]);
+        }
+        let g = groups.len();
+        for mask in 1u32..(1 << g) - 1 {
+            let chosen = (0..g).filter(|i| mask >> i & 1 == 1);
+            let roots: Vec<&Cx> = chosen
+                .flat_map(|i| groups.get(i).into_iter().flatten())
+                .collect();
+            if roots.len() * 2 > self.n {
+                continue;
+            }
+            // coefficients from the constant term up
+            let mut c: Vec<Cx> = vec![(one.clone(), zero.clone())];
+            for r in roots {
+                let mut next = vec![(zero.clone(), zero.clone()); c.len() + 1];
+                for (k, ck) in c.iter().enumerate() {
+                    if let Some(slot) = next.get_mut(k + 1) {
+                        *slot = cadd(slot, ck);
+                    }
+                    if let Some(slot) = next.get_mut(k) {
+                        *slot = csub(slot, &cmul(r, ck));
+                    }
+                }
+                c = next;
+            }
+            let ruled_out = c.iter().any(|(re, _)| {
+                let lo = re.lo.clone().ceil();
+                let hi = re.hi.clone().floor();
+                lo > hi
+            });
+            if !ruled_out {
+                return false;
+            }
+        }
+        true
+    }
 }
 
 /// Laplace expansion along row `row` over the columns `cols`.
@@ -838,5 +892,20 @@ mod tests {
                 assert_eq!(sign_at(&f, &dy(m, e)), v.cmp0(), "{m} {e}");
             }
         }
+    }
+
+    #[test]
+    fn irreducibility_from_the_roots() {
+        // x^4 + 1 and x^4 - x^2 + 1 (cyclotomic, irreducible, common
+        // practice) split modulo every prime into factors of degree at
+        // most 2, so degree patterns cannot show them irreducible; the
+        // roots can. (x^2 + 1)(x^2 + 2) and (x - 2)(x^2 + x + 1) cannot be
+        // shown irreducible by either, being reducible.
+        assert!(check(&[1, 0, 0, 0, 1]).unwrap().no_integer_factor());
+        assert!(check(&[1, 0, -1, 0, 1]).unwrap().no_integer_factor());
+        assert!(check(&[1, 0, -10, 0, 1]).unwrap().no_integer_factor());
+        assert!(!check(&[2, 0, 3, 0, 1]).unwrap().no_integer_factor());
+        assert!(!check(&[-2, -1, -1, 1]).unwrap().no_integer_factor());
+        assert!(check(&[-2, 0, 0, 1]).unwrap().no_integer_factor());
     }
 }

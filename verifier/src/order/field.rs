@@ -1,10 +1,14 @@
 //! The order of a number field `K = Q[x]/(F)` (`general-fields.md`, "The
 //! field and the order"; registry entry `order-ring-and-maximality`).
 //!
-//! 1. `F` is monic of degree 3 to 6 with `disc(F) != 0`, and irreducible:
-//!    a factor of degree `d` would make `d` a sum of some of the degrees of
-//!    the irreducible factors of `F mod p` at every prime `p ∤ disc(F)`;
-//!    the patterns at a few primes leave no such `d` with `0 < d < n`.
+//! 1. `F` is monic of degree 3 to 6 with `disc(F) != 0`, its root
+//!    enclosures hold ([`check_roots`]), and it is irreducible: a factor
+//!    of degree `d` would make `d` a sum of some of the degrees of the
+//!    irreducible factors of `F mod p` at every prime `p ∤ disc(F)`, and
+//!    the patterns at a few primes leave no such `d` with `0 < d < n`; or,
+//!    where patterns cannot (`x^4 + 1` splits modulo every prime), no set
+//!    of roots closed under conjugation has a product with integer
+//!    coefficients ([`Roots::no_integer_factor`]).
 //! 2. The basis spans a ring containing `Z[θ]`, and `disc(O)` is computed
 //!    ([`FieldOrder::new`]).
 //! 3. Maximality, when claimed: the full factorisation of `|disc(O)|`,
@@ -16,10 +20,11 @@ use super::maximality::{check_factorisation, MaximalityOk};
 use crate::arith::primes_up_to;
 use crate::field::fppoly::Fp;
 use crate::field::order::FieldOrder;
+use crate::field::roots::{check_roots, Roots};
 use crate::field::zpoly;
 use crate::limits::{MAX_FIELD_COEFF_BITS, MAX_IRREDUCIBILITY_PRIMES, MAX_PROOF_POWERS};
 use crate::report::reason::{reject, Check, Reason};
-use classcert_format::{Order, PrimePower};
+use classcert_format::{Embedding, Order, PrimePower};
 use rug::Integer;
 
 /// Token: `F` is irreducible, the basis spans an order `O ⊇ Z[θ]`.
@@ -27,6 +32,7 @@ use rug::Integer;
 pub(crate) struct FieldOrderOk {
     order: FieldOrder,
     disc_f: Integer,
+    roots: Roots,
 }
 
 impl FieldOrderOk {
@@ -38,10 +44,15 @@ impl FieldOrderOk {
     pub(crate) fn disc_f(&self) -> &Integer {
         &self.disc_f
     }
+
+    /// The checked root enclosures of `F`.
+    pub(crate) fn roots(&self) -> &Roots {
+        &self.roots
+    }
 }
 
-/// Checks the polynomial and the order's basis.
-pub(crate) fn check_field_order(order: &Order) -> Check<FieldOrderOk> {
+/// Checks the polynomial, its root enclosures and the order's basis.
+pub(crate) fn check_field_order(order: &Order, enclosures: &Embedding) -> Check<FieldOrderOk> {
     let Order::Polynomial {
         polynomial: f,
         basis,
@@ -72,23 +83,31 @@ pub(crate) fn check_field_order(order: &Order) -> Check<FieldOrderOk> {
         Some(d) if d != 0 => d,
         _ => return reject(Reason::PolynomialInvalid, "F has a repeated root"),
     };
-    if !shown_irreducible(f, n, &disc_f) {
+    let roots = match check_roots(f, &enclosures.real, &enclosures.complex) {
+        Ok(r) => r,
+        Err(e) => return reject(Reason::RootsInvalid, e.to_string()),
+    };
+    if !shown_irreducible(f, n, &disc_f) && !roots.no_integer_factor() {
         return reject(
             Reason::PolynomialInvalid,
             format!(
-                "F is not shown irreducible: its factorisation patterns modulo the first {MAX_IRREDUCIBILITY_PRIMES} primes not dividing disc(F) leave a proper factor possible"
+                "F is not shown irreducible: neither its factorisation patterns modulo the first {MAX_IRREDUCIBILITY_PRIMES} primes not dividing disc(F) nor its roots rule out a proper factor"
             ),
         );
     }
     match FieldOrder::new(f, basis, denominator) {
-        Ok(order) => Ok(FieldOrderOk { order, disc_f }),
+        Ok(order) => Ok(FieldOrderOk {
+            order,
+            disc_f,
+            roots,
+        }),
         Err(e) => reject(Reason::OrderNotRing, e.to_string()),
     }
 }
 
 /// Whether the degree patterns of `F mod p` leave no factor degree `d`,
 /// `0 < d < n`, possible.
-fn shown_irreducible(f: &[Integer], n: usize, disc_f: &Integer) -> bool {
+pub fn shown_irreducible(f: &[Integer], n: usize, disc_f: &Integer) -> bool {
     // bit d set: a factor of degree d is still possible
     let full: u32 = (1 << n) - 2;
     let mut possible = full;

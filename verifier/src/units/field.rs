@@ -2,8 +2,8 @@
 //! units, regulator"; registry entries `krawczyk-root-enclosures`,
 //! `field-units-power-products`, `roots-of-unity-residue-fields`).
 //!
-//! 1. The root enclosures of `F` are validated ([`check_roots`]), which
-//!    fixes the signature `(r1, r2)` and the embeddings.
+//! 1. The root enclosures of `F`, validated with the order
+//!    (`order/field.rs`), fix the signature `(r1, r2)` and the embeddings.
 //! 2. Torsion: `ζ` has exact order `w`, and `w = gcd(N P - 1)` over
 //!    unramified primes `P` the verifier picks (of least degree above each
 //!    `p ∤ disc(F)`), so `#μ(O) = w`.
@@ -16,10 +16,10 @@ use crate::analytic::interval::{stated_contains, Interval};
 use crate::arith::primes_up_to;
 use crate::field::fppoly::Fp;
 use crate::field::order::FieldOrder;
-use crate::field::roots::{abs_det, check_roots, Roots};
+use crate::field::roots::{abs_det, Roots};
 use crate::limits::{MAX_COMBINATION_WORK, MAX_TORSION_PRIMES, MAX_W};
 use crate::report::reason::{reject, Check, Reason};
-use classcert_format::{Embedding, FieldUnits, Relation, Witness};
+use classcert_format::{FieldUnits, Relation, Witness};
 use rug::ops::Pow;
 use rug::Integer;
 
@@ -105,15 +105,11 @@ fn check_torsion(o: &FieldOrder, disc_f: &Integer, u: &FieldUnits) -> Check<()> 
 /// Checks the unit section against the raw relations and root enclosures.
 pub(crate) fn check_field_units(
     u: &FieldUnits,
-    roots: &Embedding,
+    roots: &Roots,
     o: &FieldOrder,
     disc_f: &Integer,
     raw: &[Relation],
 ) -> Check<FieldUnitsOk> {
-    let roots: Roots = match check_roots(o.polynomial(), &roots.real, &roots.complex) {
-        Ok(r) => r,
-        Err(e) => return reject(Reason::RootsInvalid, e.to_string()),
-    };
     let (r1, r2) = roots.signature();
     check_torsion(o, disc_f, u)?;
     let r = r1 + r2 - 1;
