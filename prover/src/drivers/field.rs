@@ -190,6 +190,7 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
     let mut raws: Vec<relations::Relation> = Vec::new();
     let mut element_logs: Vec<Vec<rug::Float>> = Vec::new();
     let mut extra_relations: Vec<relations::Relation> = Vec::new();
+    let mut seen: std::collections::HashSet<Vec<Integer>> = std::collections::HashSet::new();
     // units found in earlier rounds, and the rounds that reached them
     let mut previous: Vec<Vec<(u32, Integer)>> = Vec::new();
     let mut solved_rounds = 0;
@@ -198,11 +199,22 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
     for round in 0..MAX_BATCHES {
         let search = relations::SearchOptions::new(batch, opts.seed.wrapping_add(round as u64));
         let t0 = std::time::Instant::now();
-        raws.extend(relations::find_relations(order, &fb, &search));
+        let mut found_now = relations::find_relations(order, &fb, &search);
         if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
             eprintln!("round {round}: search {:?}", t0.elapsed());
         }
-        raws.append(&mut extra_relations);
+        found_now.append(&mut extra_relations);
+        // an element found again, or its negative, only gives the kernel
+        // a trivial unit
+        for rel in found_now {
+            let mut key = rel.coords.clone();
+            if key.iter().find(|c| **c != 0).is_some_and(|c| *c < 0) {
+                key.iter_mut().for_each(|c| *c = -c.clone());
+            }
+            if seen.insert(key) {
+                raws.push(rel);
+            }
+        }
         for rel in &raws[element_logs.len()..] {
             let (num, den) = order.to_power(&rel.coords);
             let l = units::log_vector(&places, r1, &num, &den).ok_or_else(|| {
@@ -210,7 +222,9 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
             })?;
             element_logs.push(l);
         }
-        batch = EXTRA_RELATIONS.max(k / 4);
+        // the search starts afresh each round: it is asked for more, so
+        // that its sieve and products reach further than before
+        batch += EXTRA_RELATIONS.max(k / 2);
         progress.tick(raws.len() as u64, None);
         let rows: Vec<Row> = raws
             .iter()
@@ -264,11 +278,20 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
                 dense
             })
             .collect();
-        for j in alg.cheapest(0..alg.kernel_len(), count) {
+        // the cheapest kernel vectors whose units are not roots of unity
+        let mut offered = 0;
+        for j in alg.cheapest(0..alg.kernel_len(), 10 * count) {
+            if offered == count {
+                break;
+            }
             let mut dense = vec![Integer::new(); m];
             for (i, e) in alg.kernel_vector(j) {
                 dense[i] = e;
             }
+            if units::is_torsion(&element_logs, &dense) {
+                continue;
+            }
+            offered += 1;
             kernel.push(dense);
         }
         let t0 = std::time::Instant::now();

@@ -359,6 +359,18 @@ pub fn find_units(
     units_from_kernel(&element_logs, &kernel, relations.len(), r, prec)
 }
 
+/// Whether the unit `∏ α_j^{c_j}` is a root of unity, judged from its
+/// log vector in floating point (every entry below `10^-20` in size).
+pub fn is_torsion(element_logs: &[Vec<Float>], c: &[Integer]) -> bool {
+    let prec = element_logs
+        .first()
+        .and_then(|l| l.first())
+        .map_or(64, Float::prec);
+    combine(c, element_logs, prec)
+        .iter()
+        .all(|x| x.clone().abs() < 1e-20)
+}
+
 /// A basis of the units that the kernel vectors `kernel` (dense, over the
 /// `m` raw relations) generate modulo torsion, as power products over the
 /// raw relations, from the relations' log vectors `element_logs` at
