@@ -141,7 +141,7 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
         .ok_or_else(|| ProveError::SearchFailed("log |disc| failed".into()))?;
     let x = match opts.euler_x {
         Some(x) => x,
-        None => choose_x(&log_delta, n as u64, 0.12),
+        None => choose_x(&log_delta, n as u64, 0.2),
     };
     let bound = registry::generation_bound(registry::BACH_NUMBER_FIELD, &abs_disc)
         .ok_or_else(|| ProveError::SearchFailed("generation bound out of range".into()))?;

@@ -342,7 +342,7 @@ impl FieldOrder {
             for (bj, t) in b.iter().zip(row).filter(|(bj, _)| **bj != 0) {
                 let c = Integer::from(ai * bj);
                 for (o, tk) in out.iter_mut().zip(t) {
-                    *o += Integer::from(&c * tk);
+                    *o += &c * tk;
                 }
             }
         }
