@@ -478,3 +478,18 @@ fn order_witness_certificates_match_the_schema() {
     .expect("the witness proves");
     assert_valid("order witness for D = -1000003", &bytes);
 }
+
+#[test]
+fn field_certificates_match_the_schema() {
+    // Number fields: the polynomial order (with a denominator for x^3 - 10,
+    // whose Z[θ] has index 3), two-element prime ideals, coordinates
+    // witnesses, real and complex root enclosures, power-product units.
+    for f in ["x^3 - 7", "x^3 - 10", "x^4 + 1"] {
+        let poly = classcert_prover::polynomial::parse(f).expect("a polynomial");
+        let (bytes, _) = classcert_prover::field_to_bytes(&poly, &Options::default())
+            .unwrap_or_else(|e| panic!("the prover failed on {f}: {e}"));
+        if let Err(e) = validate(&bytes) {
+            panic!("{f}: the certificate does not match the schema: {e}");
+        }
+    }
+}

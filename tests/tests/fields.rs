@@ -188,68 +188,204 @@ fn a_class_group_that_is_not_cyclic() {
     assert_eq!(field_disc(&v), pure_cubic_disc(70, 70));
 }
 
+/// A forged number-field certificate: its file name in
+/// `vectors/mutations-fields/`, the reason code it must be refused with,
+/// and the forgery, applied to the certificate of `Q(7^(1/3))`.
+struct FieldForgery {
+    name: &'static str,
+    code: &'static str,
+    apply: fn(&mut FieldBody),
+}
+
+/// The index of a raw relation that is not a unit.
+fn relation_with_primes(b: &FieldBody) -> usize {
+    let raw = b.lattice.raw_relations.as_ref().unwrap();
+    raw.iter().position(|r| !r.entries.is_empty()).unwrap()
+}
+
+static FIELD_FORGERIES: &[FieldForgery] = &[
+    FieldForgery {
+        name: "relation-wrong-valuation",
+        code: "relation-witness-invalid",
+        apply: |b| {
+            let k = relation_with_primes(b);
+            b.lattice.raw_relations.as_mut().unwrap()[k].entries[0].1 += 1;
+        },
+    },
+    FieldForgery {
+        name: "relation-other-element",
+        code: "relation-witness-invalid",
+        apply: |b| {
+            let k = relation_with_primes(b);
+            let raw = b.lattice.raw_relations.as_mut().unwrap();
+            if let Witness::Coordinates { coordinates } = &mut raw[k].witness {
+                coordinates[0] += 1;
+            }
+        },
+    },
+    FieldForgery {
+        name: "prime-ideal-missing",
+        code: "factor-base-gap",
+        apply: |b| {
+            // a prime ideal above 5, below the generation bound, left out
+            let i = b.factor_base.iter().position(|q| q.p == 5).unwrap();
+            b.factor_base.remove(i);
+        },
+    },
+    FieldForgery {
+        name: "unit-squared",
+        code: "regulator-mismatch",
+        apply: |b| {
+            for (_, e) in &mut b.units.units[0] {
+                *e *= 2;
+            }
+        },
+    },
+    FieldForgery {
+        name: "unit-squared-regulator-doubled",
+        code: "class-number-regulator-not-confirmed",
+        apply: |b| {
+            // index 2 in the unit lattice, stated consistently: only the
+            // analytic bound can tell
+            for (_, e) in &mut b.units.units[0] {
+                *e *= 2;
+            }
+            let reg = &mut b.units.regulator;
+            reg.lo.mantissa *= 2;
+            reg.hi.mantissa *= 2;
+        },
+    },
+    FieldForgery {
+        name: "regulator-halved",
+        code: "regulator-mismatch",
+        apply: |b| {
+            b.units.regulator.lo.exponent -= 1;
+            b.units.regulator.hi.exponent -= 1;
+        },
+    },
+    FieldForgery {
+        name: "unit-not-a-unit",
+        code: "unit-not-unit",
+        apply: |b| {
+            // one more factor whose primes do not cancel
+            let j = relation_with_primes(b) as u32;
+            let unit = &mut b.units.units[0];
+            match unit.binary_search_by_key(&j, |t| t.0) {
+                Ok(t) => unit[t].1 += 1,
+                Err(t) => unit.insert(t, (j, Integer::from(1))),
+            }
+        },
+    },
+    FieldForgery {
+        name: "roots-of-unity-six",
+        code: "torsion-mismatch",
+        apply: |b| b.units.w = 6,
+    },
+    FieldForgery {
+        name: "root-enclosure-moved",
+        code: "roots-invalid",
+        apply: |b| {
+            b.roots.real[0].lo.mantissa += 1u32 << 20;
+            b.roots.real[0].hi.mantissa += 1u32 << 20;
+        },
+    },
+    FieldForgery {
+        name: "class-number-doubled",
+        code: "class-number-mismatch",
+        apply: |b| b.claim.class_number *= 2,
+    },
+    FieldForgery {
+        name: "order-without-theta",
+        code: "order-not-ring",
+        apply: |b| {
+            // Z[2θ] (index 8): a ring, but without θ, so not an order of
+            // the certificate's kind (orders contain Z[θ])
+            use classcert_format::{Order, PrimalityEvidence, PrimePower};
+            if let Order::Polynomial { basis, .. } = &mut b.order {
+                basis[1][1] = Integer::from(2);
+                basis[2][2] = Integer::from(4);
+            }
+            // disc(Z[θ]) = -1323 = -(3^3 7^2); index 8 multiplies it by 64
+            b.maximality = Some(
+                [(2u32, 6u32), (3, 3), (7, 2)]
+                    .iter()
+                    .map(|&(p, e)| PrimePower {
+                        prime: Integer::from(p),
+                        exponent: e,
+                        evidence: PrimalityEvidence::Bpsw,
+                    })
+                    .collect(),
+            );
+        },
+    },
+];
+
+fn golden_field() -> FieldBody {
+    prove("x^3 - 7")
+}
+
 #[test]
 fn forged_field_certificates_are_rejected() {
-    let body = prove("x^3 - 7");
-    // a relation with a wrong valuation: its first entry raised by one
-    let mut b = body.clone();
-    let raw = b.lattice.raw_relations.as_mut().unwrap();
-    let k = raw.iter().position(|r| !r.entries.is_empty()).unwrap();
-    raw[k].entries[0].1 += 1;
-    assert_eq!(rejection(&b), "relation-witness-invalid");
-    // a prime ideal below the bound left out of the factor base
-    let mut b = body.clone();
-    let i = b.factor_base.iter().position(|q| q.p == 5).unwrap();
-    b.factor_base.remove(i);
-    assert_eq!(rejection(&b), "factor-base-gap");
-    // a unit replaced by its square: index 2 in the unit lattice
-    let mut b = body.clone();
-    for (_, e) in &mut b.units.units[0] {
-        *e *= 2;
+    let body = golden_field();
+    for f in FIELD_FORGERIES {
+        let mut b = body.clone();
+        (f.apply)(&mut b);
+        assert_eq!(rejection(&b), f.code, "{}", f.name);
     }
-    assert_eq!(rejection(&b), "regulator-mismatch");
-    // ... with the regulator doubled to match, the analytic check refuses
-    let mut b2 = b.clone();
-    let reg = &mut b2.units.regulator;
-    reg.lo.mantissa *= 2;
-    reg.hi.mantissa *= 2;
-    assert_eq!(rejection(&b2), "class-number-regulator-not-confirmed");
-    // the regulator halved
-    let mut b = body.clone();
-    b.units.regulator.lo.exponent -= 1;
-    b.units.regulator.hi.exponent -= 1;
-    assert_eq!(rejection(&b), "regulator-mismatch");
-    // a unit that is not one: its exponents no longer cancel (a term
-    // whose relation is not itself a unit)
-    let mut b = body.clone();
-    let raw = b.lattice.raw_relations.clone().unwrap();
-    let j = raw.iter().position(|r| !r.entries.is_empty()).unwrap() as u32;
-    let unit = &mut b.units.units[0];
-    match unit.binary_search_by_key(&j, |t| t.0) {
-        Ok(t) => unit[t].1 += 1,
-        Err(t) => unit.insert(t, (j, Integer::from(1))),
+}
+
+fn field_vectors() -> (std::path::PathBuf, std::path::PathBuf) {
+    let v = classcert_tests::support::vectors_dir();
+    (v.join("golden-fields"), v.join("mutations-fields"))
+}
+
+#[test]
+#[ignore = "writes vectors/; run explicitly to regenerate"]
+fn regenerate_field_vectors() {
+    let (golden, mutations) = field_vectors();
+    std::fs::create_dir_all(&golden).unwrap();
+    std::fs::create_dir_all(&mutations).unwrap();
+    let body = golden_field();
+    std::fs::write(golden.join("x3-minus-7.cert"), bytes(&body)).unwrap();
+    let mut expected = String::from(
+        "# Forged number-field certificates and the reason code classcert-verify must reject each with.\n\
+         # Each starts from vectors/golden-fields/x3-minus-7.cert; tests/tests/fields.rs names the forgery.\n\
+         # Generated by `cargo test --release -p classcert-tests --test fields -- --ignored`.\n\
+         # columns: file reason-code\n",
+    );
+    for f in FIELD_FORGERIES {
+        let mut b = body.clone();
+        (f.apply)(&mut b);
+        std::fs::write(mutations.join(format!("{}.cert", f.name)), bytes(&b)).unwrap();
+        expected.push_str(&format!("{}.cert {}\n", f.name, f.code));
     }
-    assert_eq!(rejection(&b), "unit-not-unit");
-    // the wrong number of roots of unity
-    let mut b = body.clone();
-    b.units.w = 6;
-    assert_eq!(rejection(&b), "torsion-mismatch");
-    // root enclosures moved off their roots
-    let mut b = body.clone();
-    b.roots.real[0].lo.mantissa += 1u32 << 20;
-    b.roots.real[0].hi.mantissa += 1u32 << 20;
-    assert_eq!(rejection(&b), "roots-invalid");
-    // a claimed class number off by a factor
-    let mut b = body.clone();
-    b.claim.class_number *= 2;
-    assert_eq!(rejection(&b), "class-number-mismatch");
-    // a relation's element replaced by another
-    let mut b = body.clone();
-    let raw = b.lattice.raw_relations.as_mut().unwrap();
-    if let Witness::Coordinates { coordinates } = &mut raw[k].witness {
-        coordinates[0] += 1;
+    std::fs::write(mutations.join("expected.txt"), expected).unwrap();
+}
+
+#[test]
+fn stored_field_vectors() {
+    let (golden, mutations) = field_vectors();
+    let g = std::fs::read(golden.join("x3-minus-7.cert")).expect("the golden field certificate");
+    let report = verify_bytes(&g);
+    let v = expect_verified(&report, "golden x^3 - 7");
+    // h(Q(7^(1/3))) = 3 (OEIS A246457)
+    assert_eq!(*v.class_number(), 3);
+    let expected = std::fs::read_to_string(mutations.join("expected.txt")).unwrap();
+    let mut rows = 0;
+    for line in expected
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
+    {
+        let (file, code) = line.split_once(' ').unwrap();
+        let bytes = std::fs::read(mutations.join(file)).unwrap();
+        let got = match verify_bytes(&bytes).outcome {
+            Ok(_) => panic!("{file} was verified"),
+            Err(r) => r.reason.code(),
+        };
+        assert_eq!(got, code.trim(), "{file}");
+        rows += 1;
     }
-    assert_eq!(rejection(&b), "relation-witness-invalid");
+    assert_eq!(rows, FIELD_FORGERIES.len());
 }
 
 #[test]
