@@ -405,48 +405,37 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
         o.disc_f(),
         body.euler.x,
     )?;
-    progress("relations");
-    let raw = check_raw_relations(
-        &arith,
-        gen.ideals(),
-        &body.lattice.raw_relations,
-        &body.lattice.derived_relations,
-        true,
-        &mut || progress("relations"),
-    )?;
-    progress("lattice");
-    let mut witnesses = Witnesses::new(&raw, Vec::new(), order.discriminant());
-    let lat = check_lattice(&body.lattice, gen.ideals().len(), &mut witnesses)?;
-    let labels: Vec<_> = gen
-        .ideals()
-        .iter()
-        .enumerate()
-        .map(|(k, q)| (q.p(), k as u64))
-        .collect();
-    let claim = check_claim(
-        &body.claim,
-        &body.lattice,
-        &lat,
-        &labels,
-        &[],
-        order.discriminant(),
-        false,
-    )?;
-    progress("units");
-    let raw_list = body.lattice.raw_relations.as_deref().unwrap_or_default();
-    let units = check_field_units(&body.units, o.roots(), order, o.disc_f(), raw_list)?;
-    progress("analytic bound");
+    // The Euler product needs the splitting of each p (the checked factor
+    // base) and the signature: it runs on a second thread while the
+    // relations, the lattice and the units are checked. It takes the
+    // stated w, which the unit check then confirms before anything is
+    // concluded.
     let splitting = |p: u64| gen.splitting(p).map(<[_]>::to_vec);
     let facts = FieldFacts {
         polynomial: order.polynomial(),
         abs_disc: &abs_disc,
-        signature: units.signature(),
-        w: units.w(),
+        signature: o.roots().signature(),
+        w: body.units.w,
         splitting: &splitting,
     };
-    let bound = check_field_bound(&body.euler, &facts, &primes, &mut || {
-        progress("analytic bound")
-    })?;
+    let (bound, checked) = std::thread::scope(|scope| {
+        let analytic = scope.spawn(|| check_field_bound(&body.euler, &facts, &primes, &mut || {}));
+        let checked = check_field_algebra(body, &arith, &gen, o.roots(), o.disc_f(), progress);
+        progress("analytic bound");
+        while !analytic.is_finished() {
+            progress("analytic bound");
+            std::thread::sleep(std::time::Duration::from_millis(20));
+        }
+        (analytic.join(), checked)
+    });
+    let (lat, claim, units) = checked?;
+    let Ok(bound) = bound else {
+        return reject(
+            Reason::AnalyticInconsistent,
+            "the analytic check stopped before its end",
+        );
+    };
+    let bound = bound?;
     let analytic = check_conclusion(bound, lat.h_star(), Some(units.regulator()))?;
 
     let mut theorems = vec![gen.theorem()];
@@ -500,4 +489,47 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
             regulator: units.regulator().clone(),
         }),
     })
+}
+
+/// The relations, the lattice, the claim and the units of a number-field
+/// certificate.
+fn check_field_algebra(
+    body: &FieldBody,
+    arith: &FieldArith,
+    gen: &crate::ideals::field::FieldGenerationOk,
+    roots: &crate::field::roots::Roots,
+    disc_f: &Integer,
+    progress: &mut dyn FnMut(&str),
+) -> Check<(LatticeOk, ClaimOk, crate::units::field::FieldUnitsOk)> {
+    progress("relations");
+    let raw = check_raw_relations(
+        arith,
+        gen.ideals(),
+        &body.lattice.raw_relations,
+        &body.lattice.derived_relations,
+        true,
+        &mut || progress("relations"),
+    )?;
+    progress("lattice");
+    let mut witnesses = Witnesses::new(&raw, Vec::new(), arith.order.discriminant());
+    let lat = check_lattice(&body.lattice, gen.ideals().len(), &mut witnesses)?;
+    let labels: Vec<_> = gen
+        .ideals()
+        .iter()
+        .enumerate()
+        .map(|(k, q)| (q.p(), k as u64))
+        .collect();
+    let claim = check_claim(
+        &body.claim,
+        &body.lattice,
+        &lat,
+        &labels,
+        &[],
+        arith.order.discriminant(),
+        false,
+    )?;
+    progress("units");
+    let raw_list = body.lattice.raw_relations.as_deref().unwrap_or_default();
+    let units = check_field_units(&body.units, roots, arith.order, disc_f, raw_list)?;
+    Ok((lat, claim, units))
 }

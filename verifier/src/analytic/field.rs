@@ -26,7 +26,7 @@ pub(crate) struct FieldFacts<'a> {
     pub(crate) signature: (usize, usize),
     pub(crate) w: u32,
     /// The `(e, f)` of the primes above `p` when the factor base lists `p`.
-    pub(crate) splitting: &'a dyn Fn(u64) -> Option<Vec<(u32, u32)>>,
+    pub(crate) splitting: &'a (dyn Fn(u64) -> Option<Vec<(u32, u32)>> + Sync),
 }
 
 /// Recomputes the trace and returns the enclosure of `log h R`.
