@@ -112,19 +112,17 @@ pub fn kernel(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
     Some(out)
 }
 
-/// Whether `v` lies in the row space of `rows` modulo `p`: adding it does
-/// not raise the rank. `None` as [`echelon`] (also if `v` has another
-/// length than the rows).
 #[cfg(test)]
-pub fn in_row_space(rows: &[Vec<Integer>], v: &[Integer], p: &Integer) -> Option<bool> {
-    let mut with_v = rows.to_vec();
-    with_v.push(v.to_vec());
-    Some(rank(&with_v, p)? == rank(rows, p)?)
-}
-
-#[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
+
+    /// Whether `v` lies in the row space of `rows` modulo `p`: adding it
+    /// does not raise the rank.
+    pub(crate) fn in_row_space(rows: &[Vec<Integer>], v: &[Integer], p: &Integer) -> Option<bool> {
+        let mut with_v = rows.to_vec();
+        with_v.push(v.to_vec());
+        Some(rank(&with_v, p)? == rank(rows, p)?)
+    }
     use crate::field::TestRng;
 
     fn v(c: &[i64]) -> Vec<Integer> {

@@ -324,12 +324,6 @@ impl FieldOrder {
         &self.index
     }
 
-    /// `table()[i][j]` = the coordinates of `ω_i ω_j`.
-    #[cfg(test)]
-    pub fn table(&self) -> &[Vec<Vec<Integer>>] {
-        &self.table
-    }
-
     /// The coordinates of 1.
     pub fn one(&self) -> Vec<Integer> {
         self.one.clone()
@@ -528,6 +522,13 @@ impl FieldOrder {
 #[cfg(test)]
 pub(crate) mod tests {
     use super::*;
+
+    impl FieldOrder {
+        /// `table()[i][j]` = the coordinates of `ω_i ω_j`.
+        pub fn table(&self) -> &[Vec<Vec<Integer>>] {
+            &self.table
+        }
+    }
     use crate::field::fppoly::Fp;
     use crate::field::TestRng;
 
@@ -958,7 +959,7 @@ pub(crate) mod tests {
                     }
                     let nilpotent = o.is_zero(&power);
                     assert_eq!(
-                        linmodp::in_row_space(&radical, &x, &pz),
+                        linmodp::tests::in_row_space(&radical, &x, &pz),
                         Some(nilpotent),
                         "{f:?} {p}"
                     );

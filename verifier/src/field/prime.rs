@@ -10,8 +10,6 @@ use super::fppoly::Fp;
 use super::linmodp;
 use super::order::{FieldOrder, OrderError};
 use crate::primality::bpsw::{primality_evidence, Evidence};
-#[cfg(test)]
-use rug::ops::Pow;
 use rug::Integer;
 
 /// Why a prime ideal or a decomposition was refused.
@@ -119,29 +117,6 @@ impl CheckedPrime {
     }
     pub fn f(&self) -> u32 {
         self.f
-    }
-    /// `N(P) = p^f`.
-    #[cfg(test)]
-    pub fn norm(&self) -> Integer {
-        Integer::from(self.p).pow(self.f)
-    }
-    #[cfg(test)]
-    pub fn pi(&self) -> &[Integer] {
-        &self.pi
-    }
-    #[cfg(test)]
-    pub fn anti(&self) -> &[Integer] {
-        &self.anti
-    }
-    /// `P/pO` in reduced echelon form.
-    #[cfg(test)]
-    pub fn rows(&self) -> &[Vec<Integer>] {
-        &self.rows
-    }
-    /// The minimal polynomial over `F_p` of the generator modulo `P`.
-    #[cfg(test)]
-    pub fn residue_polynomial(&self) -> &[u64] {
-        &self.residue
     }
 }
 
@@ -361,6 +336,29 @@ pub fn check_decomposition(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    use rug::ops::Pow;
+
+    impl CheckedPrime {
+        /// `N(P) = p^f`.
+        pub fn norm(&self) -> Integer {
+            Integer::from(self.p).pow(self.f)
+        }
+        pub fn pi(&self) -> &[Integer] {
+            &self.pi
+        }
+        pub fn anti(&self) -> &[Integer] {
+            &self.anti
+        }
+        /// `P/pO` in reduced echelon form.
+        pub fn rows(&self) -> &[Vec<Integer>] {
+            &self.rows
+        }
+        /// The minimal polynomial over `F_p` of the generator modulo `P`.
+        pub fn residue_polynomial(&self) -> &[u64] {
+            &self.residue
+        }
+    }
     use crate::arith::primes_up_to;
     use crate::field::order::tests::{dedekind_maximal, factor_brute, lift, power_order, z};
     use crate::field::{zpoly, TestRng};

@@ -13,8 +13,6 @@ use crate::limits::MAX_FACTOR_BASE;
 use crate::order::{MaximalityOk, OrderOk};
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, Check, Reason};
-#[cfg(test)]
-use classcert_format::PrimeIdeal;
 
 /// The generation statement a certificate names, with its bound. Not yet
 /// a token: nothing has been checked against it.
@@ -142,6 +140,7 @@ mod tests {
     use super::*;
     use crate::ideals::quadratic::QuadraticOrder;
     use crate::order::{check_conductor, check_discriminant, check_maximality};
+    use classcert_format::PrimeIdeal;
     use classcert_format::{Order, PrimalityEvidence, PrimePower};
     use rug::Integer;
 
