@@ -1028,3 +1028,52 @@ fn collected_rounds_combine_and_resume_to_the_same_bytes() {
     }
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn number_fields_from_the_command_line() {
+    let Some((classcert, verify)) = both() else {
+        return;
+    };
+    let dir = scratch("fields");
+    let cert = dir.join("k.cert");
+    let cert_s = cert.to_str().expect("utf-8 path");
+    // Q(11^(1/3)): h = 2 (OEIS A246457), Δ = -27 · 121 = -3267 (pure cubic
+    // fields, Alaca and Williams; from memory)
+    let out = run(
+        &classcert,
+        &["prove", "--polynomial", "x^3 - 11", "-o", cert_s, "-q"],
+    );
+    assert!(out.status.success(), "{}", stderr(&out));
+    let vj = run(&verify, &[cert_s, "--json"]);
+    assert_eq!(vj.status.code(), Some(0), "{}", stdout(&vj));
+    let j = stdout(&vj);
+    for key in [
+        "\"polynomial\": \"x^3 - 11\"",
+        "\"degree\": 3",
+        "\"signature\": [1, 1]",
+        "\"field_discriminant\": \"-3267\"",
+        "\"index\": \"1\"",
+        "\"class_number\": \"2\"",
+        "\"unit_rank\": 1",
+        "\"w\": 2",
+        "\"maximal\": true",
+        "\"regulator\": ",
+    ] {
+        assert!(j.contains(key), "{key} missing from {j}");
+    }
+    let show = run(&classcert, &["show", cert_s]);
+    assert!(stdout(&show).contains("F = x^3 - 11"), "{}", stdout(&show));
+    // refusals before any work, exit code 2, with the reason
+    for (f, says) in [
+        ("x^3 - 2y", "^ expected"),
+        ("x^3 - 8", "not shown irreducible"),
+        ("x^7 - 2", "degree 7"),
+        ("2*x^3 - 1", "monic"),
+        ("x^2 + 5", "quadratic order of discriminant -20"),
+    ] {
+        let out = run(&classcert, &["prove", "--polynomial", f, "-o", cert_s]);
+        assert_eq!(out.status.code(), Some(2), "{f}");
+        assert!(stderr(&out).contains(says), "{f}: {}", stderr(&out));
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
