@@ -279,8 +279,20 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
             })
             .collect();
         // the cheapest kernel vectors whose units are not roots of unity
+        // half of them the cheapest, half spread over the whole kernel (the
+        // cheapest alone can miss a direction of the unit lattice)
+        let len = alg.kernel_len();
+        let step = (len / (count / 2).max(1)).max(1);
+        let mut picks = alg.cheapest(0..len, 5 * count);
+        picks.truncate(count / 2);
+        picks.extend(
+            (0..len)
+                .step_by(step)
+                .filter(|j| !picks.contains(j))
+                .collect::<Vec<_>>(),
+        );
         let mut offered = 0;
-        for j in alg.cheapest(0..alg.kernel_len(), 10 * count) {
+        for j in picks {
             if offered == count {
                 break;
             }
