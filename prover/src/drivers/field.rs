@@ -201,7 +201,7 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
         let t0 = std::time::Instant::now();
         let mut found_now = relations::find_relations(order, &fb, &search);
         if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
-            eprintln!("round {round}: search {:?}", t0.elapsed());
+            eprintln!("round {round}: search {:.3} s", t0.elapsed().as_secs_f64());
         }
         found_now.append(&mut extra_relations);
         // an element found again, or its negative, only gives the kernel
@@ -240,7 +240,7 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
         let t0 = std::time::Instant::now();
         let mut alg = Algebra::solve(k, raws.len(), rows);
         if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
-            eprintln!("round {round}: solve {:?}", t0.elapsed());
+            eprintln!("round {round}: solve {:.3} s", t0.elapsed().as_secs_f64());
         }
         if !alg.full_rank() {
             // columns left without a pivot: relations inside those primes
@@ -309,7 +309,7 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
         let t0 = std::time::Instant::now();
         let found = units::units_from_kernel(&element_logs, &kernel, m, r, LOG_PREC);
         if std::env::var_os("CLASSCERT_DEBUG_FIELD").is_some() {
-            eprintln!("round {round}: units {:?}", t0.elapsed());
+            eprintln!("round {round}: units {:.3} s", t0.elapsed().as_secs_f64());
         }
         let found = match found {
             Ok(found) => found,
