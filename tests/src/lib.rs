@@ -6,6 +6,7 @@
     clippy::indexing_slicing,
     clippy::panic
 )]
+pub mod field_oracle;
 pub mod forge;
 pub mod oracle;
 pub mod support;
