@@ -150,25 +150,14 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
     // The analytic bound needs only the order and the Euler trace: it runs
     // on a second thread while the relations are checked, and is joined
     // after them, so a rejection names the same first failure as before.
-    let (bound, checked) = std::thread::scope(|scope| {
-        let analytic = scope
-            .spawn(|| analytic::check_bound(&body.euler, &order, &cond, &maximality, &mut || {}));
-        let checked = check_algebra(body, &order, &cond, &maximality, statement, progress);
-        progress("analytic bound");
-        while !analytic.is_finished() {
-            progress("analytic bound");
-            std::thread::sleep(std::time::Duration::from_millis(20));
-        }
-        (analytic.join(), checked)
-    });
+    let (bound, checked) = alongside(
+        || analytic::check_bound(&body.euler, &order, &cond, &maximality, &mut || {}),
+        |progress| check_algebra(body, &order, &cond, &maximality, statement, progress),
+        progress,
+    );
     let (gen, raw, elements, lat, claim, units) = checked?;
-    let Ok(bound) = bound else {
-        return reject(
-            Reason::AnalyticInconsistent,
-            "the analytic check stopped before its end",
-        );
-    };
-    let analytic = check_conclusion(bound?, lat.h_star(), units.unit().map(|u| u.regulator()))?;
+    let bound = bound?;
+    let analytic = check_conclusion(bound, lat.h_star(), units.unit().map(|u| u.regulator()))?;
     Ok(from_relations(
         order, maximality, gen, raw, elements, lat, claim, units, analytic,
     ))
@@ -231,6 +220,33 @@ fn check_algebra<'a>(
     progress("units");
     let units = check_units(&body.units, order.d(), order.is_real())?;
     Ok((gen, raw, elements, lat, claim, units))
+}
+
+/// Runs `analytic` on a scoped second thread while `algebra` runs here,
+/// then joins it (reporting "analytic bound" while it is still running).
+/// Its result comes second, so a rejection names the same first failure
+/// as on one thread; a thread that stopped early is a rejection.
+fn alongside<B: Send, A>(
+    analytic: impl FnOnce() -> Check<B> + Send,
+    algebra: impl FnOnce(&mut dyn FnMut(&str)) -> Check<A>,
+    progress: &mut dyn FnMut(&str),
+) -> (Check<B>, Check<A>) {
+    std::thread::scope(|scope| {
+        let handle = scope.spawn(analytic);
+        let checked = algebra(progress);
+        progress("analytic bound");
+        while !handle.is_finished() {
+            progress("analytic bound");
+            std::thread::sleep(std::time::Duration::from_millis(20));
+        }
+        let bound = handle.join().unwrap_or_else(|_| {
+            reject(
+                Reason::AnalyticInconsistent,
+                "the analytic check stopped before its end",
+            )
+        });
+        (bound, checked)
+    })
 }
 
 /// Checks an order-witness certificate (`D < 0` only).
@@ -418,23 +434,12 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
         w: body.units.w,
         splitting: &splitting,
     };
-    let (bound, checked) = std::thread::scope(|scope| {
-        let analytic = scope.spawn(|| check_field_bound(&body.euler, &facts, &primes, &mut || {}));
-        let checked = check_field_algebra(body, &arith, &gen, o.roots(), o.disc_f(), progress);
-        progress("analytic bound");
-        while !analytic.is_finished() {
-            progress("analytic bound");
-            std::thread::sleep(std::time::Duration::from_millis(20));
-        }
-        (analytic.join(), checked)
-    });
+    let (bound, checked) = alongside(
+        || check_field_bound(&body.euler, &facts, &primes, &mut || {}),
+        |progress| check_field_algebra(body, &arith, &gen, o.roots(), o.disc_f(), progress),
+        progress,
+    );
     let (lat, claim, units) = checked?;
-    let Ok(bound) = bound else {
-        return reject(
-            Reason::AnalyticInconsistent,
-            "the analytic check stopped before its end",
-        );
-    };
     let bound = bound?;
     let analytic = check_conclusion(bound, lat.h_star(), Some(units.regulator()))?;
 

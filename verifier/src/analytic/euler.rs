@@ -21,6 +21,7 @@ use crate::order::{ConductorOk, OrderOk};
 use crate::registry::EULER_SAFETY_FACTOR;
 use crate::report::reason::{reject, Check, Reason};
 use classcert_format::EulerTrace;
+use rug::Integer;
 
 /// Smallest `X` the theorem allows.
 pub const MIN_X: u64 = 69;
@@ -222,16 +223,15 @@ pub(crate) fn compute_general(
     })
 }
 
-/// Section 5, first half: the trace is recomputed in full, the stated
-/// enclosure of `log L(1, χ_d)` must contain the verifier's own, and the
-/// class number formula turns it into an enclosure of `log h` (`log h R`
-/// for `D > 0`). The checkpoints only say where a disagreement starts.
-pub(crate) fn check_trace(
+/// What every Euler trace must satisfy before it is recomputed: `X` in
+/// range, the error term (degree `n`, `|Δ| = abs_disc`) small enough to
+/// conclude, checkpoints few and increasing. Returns `log |Δ|` and the
+/// checkpoint limits.
+pub(crate) fn trace_prelude(
     e: &EulerTrace,
-    order: &OrderOk,
-    cond: &ConductorOk,
-    beat: &mut dyn FnMut(),
-) -> Check<Interval> {
+    abs_disc: &Integer,
+    n: u64,
+) -> Check<(Interval, Vec<u64>)> {
     let x = e.x;
     if !(MIN_X..=MAX_EULER_X).contains(&x) {
         return reject(
@@ -240,14 +240,13 @@ pub(crate) fn check_trace(
         );
     }
     let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
-    let Some(log_delta) = Interval::int(order.abs_d()).ln() else {
+    let Some(log_delta) = Interval::int(abs_disc).ln() else {
         return bad();
     };
-    let Some(err) = error_bound(x, &log_delta) else {
+    let Some(err) = error_bound_degree(x, &log_delta, n) else {
         return bad();
     };
-    let ln2 = Interval::ln2();
-    if Interval::u64(2).mul(&err).hi >= ln2.lo {
+    if Interval::u64(2).mul(&err).hi >= Interval::ln2().lo {
         return reject(
             Reason::EulerXTooSmall,
             format!(
@@ -266,11 +265,12 @@ pub(crate) fn check_trace(
             "checkpoint limits must increase and not exceed X",
         );
     }
-    let ds = cond.d_small();
-    let chi = |p: u64| kronecker_prime(ds, p);
-    let Some(res) = compute_with(x, cond.trial_primes(), &chi, &limits, &log_delta, beat) else {
-        return bad();
-    };
+    Ok((log_delta, limits))
+}
+
+/// The stated checkpoints and enclosure (of `what`) hold the
+/// recomputation `res`.
+pub(crate) fn trace_agrees(e: &EulerTrace, res: &EulerResult, what: &str) -> Check<()> {
     for (claimed, mine) in e.checkpoints.iter().zip(res.checkpoints.iter()) {
         let (Some(a), Some(c)) = (
             Interval::from_bounds(&claimed.a),
@@ -288,12 +288,29 @@ pub(crate) fn check_trace(
             );
         }
     }
-    stated_contains(
-        &e.log_l,
-        &res.log_l,
-        Reason::EulerIntervalUnderstated,
-        "enclosure of log L(1, chi)",
-    )?;
+    stated_contains(&e.log_l, &res.log_l, Reason::EulerIntervalUnderstated, what)?;
+    Ok(())
+}
+
+/// Section 5, first half: the trace is recomputed in full, the stated
+/// enclosure of `log L(1, χ_d)` must contain the verifier's own, and the
+/// class number formula turns it into an enclosure of `log h` (`log h R`
+/// for `D > 0`). The checkpoints only say where a disagreement starts.
+pub(crate) fn check_trace(
+    e: &EulerTrace,
+    order: &OrderOk,
+    cond: &ConductorOk,
+    beat: &mut dyn FnMut(),
+) -> Check<Interval> {
+    let x = e.x;
+    let (log_delta, limits) = trace_prelude(e, order.abs_d(), 2)?;
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
+    let ds = cond.d_small();
+    let chi = |p: u64| kronecker_prime(ds, p);
+    let Some(res) = compute_with(x, cond.trial_primes(), &chi, &limits, &log_delta, beat) else {
+        return bad();
+    };
+    trace_agrees(e, &res, "enclosure of log L(1, chi)")?;
     let Some(log_h) = log_h_enclosure(order.d(), order.w(), &res.log_l, cond.primes(), ds, x)
     else {
         return bad();

@@ -9,11 +9,10 @@
 //! `F mod p` (Dedekind–Kummer). Then
 //! `log h R = log κ + log w + log|Δ|/2 - r1 log 2 - r2 log 2π`.
 
-use super::euler::{compute_general, error_bound_degree, EulerResult, MIN_X};
-use super::interval::{stated_contains, Interval};
+use super::euler::{compute_general, trace_agrees, trace_prelude, EulerResult};
+use super::interval::Interval;
 use super::{BoundOk, Method};
 use crate::field::fppoly::Fp;
-use crate::limits::{MAX_CHECKPOINTS, MAX_EULER_X};
 use crate::registry;
 use crate::report::reason::{reject, Check, Reason};
 use classcert_format::EulerTrace;
@@ -46,39 +45,9 @@ pub(crate) fn check_field_bound(
         );
     }
     let x = e.x;
-    if !(MIN_X..=MAX_EULER_X).contains(&x) {
-        return reject(
-            Reason::EulerXOutOfRange,
-            format!("X = {x} must lie in [{MIN_X}, {MAX_EULER_X}]"),
-        );
-    }
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
     let n = k.polynomial.len().saturating_sub(1) as u64;
-    let Some(log_delta) = Interval::int(k.abs_disc).ln() else {
-        return bad();
-    };
-    let Some(err) = error_bound_degree(x, &log_delta, n) else {
-        return bad();
-    };
-    if Interval::u64(2).mul(&err).hi >= Interval::ln2().lo {
-        return reject(
-            Reason::EulerXTooSmall,
-            format!(
-                "at X = {x} the error term is {:.4}; twice it must stay below log 2",
-                err.hi.to_f64()
-            ),
-        );
-    }
-    if e.checkpoints.len() > MAX_CHECKPOINTS {
-        return reject(Reason::OverLimit, "too many Euler checkpoints");
-    }
-    let limits: Vec<u64> = e.checkpoints.iter().map(|c| c.limit).collect();
-    if limits.windows(2).any(|w| w.first() >= w.get(1)) || limits.iter().any(|&l| l > x) {
-        return reject(
-            Reason::EulerTraceMismatch,
-            "checkpoint limits must increase and not exceed X",
-        );
-    }
+    let (log_delta, limits) = trace_prelude(e, k.abs_disc, n)?;
+    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
     let Some(res) = euler_field(
         x,
         k.polynomial,
@@ -90,32 +59,7 @@ pub(crate) fn check_field_bound(
     ) else {
         return bad();
     };
-    for (claimed, mine) in e.checkpoints.iter().zip(res.checkpoints.iter()) {
-        let (Some(a), Some(c)) = (
-            Interval::from_bounds(&claimed.a),
-            Interval::from_bounds(&claimed.c),
-        ) else {
-            return reject(
-                Reason::EulerTraceMismatch,
-                "a checkpoint interval is out of range",
-            );
-        };
-        if !a.contains(&mine.a) || !c.contains(&mine.c) {
-            return reject(
-                Reason::EulerTraceMismatch,
-                format!(
-                    "the partial sums up to {} disagree with the recomputation",
-                    mine.limit
-                ),
-            );
-        }
-    }
-    stated_contains(
-        &e.log_l,
-        &res.log_l,
-        Reason::EulerIntervalUnderstated,
-        "enclosure of log kappa",
-    )?;
+    trace_agrees(e, &res, "enclosure of log kappa")?;
     let Some(log_hr) = log_hr(&res.log_l, k.abs_disc, k.signature, k.w) else {
         return bad();
     };
