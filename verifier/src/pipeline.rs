@@ -295,6 +295,23 @@ fn assumptions(theorems: &[&'static Theorem], bpsw: bool) -> Vec<Assumption> {
     out
 }
 
+/// Appends the theorems of the analytic bound and of the maximality
+/// evidence; returns whether a prime rests on BPSW alone.
+fn add_bound_and_maximality(
+    theorems: &mut Vec<&'static Theorem>,
+    analytic: &AnalyticOk,
+    maximality: &MaximalityOk,
+) -> bool {
+    for t in analytic.bound().theorems() {
+        push_unique(theorems, t);
+    }
+    let evidence = maximality.evidence().copied();
+    for t in evidence.iter().flat_map(|e| e.theorems()) {
+        push_unique(theorems, t);
+    }
+    evidence.is_some_and(|e| e.bpsw_assumed)
+}
+
 /// Appends `t` unless it is listed already.
 fn push_unique(list: &mut Vec<&'static Theorem>, t: &'static Theorem) {
     if !list.iter().any(|s| s.id == t.id) {
@@ -319,14 +336,7 @@ fn from_relations(
     for t in optional.into_iter().flatten() {
         push_unique(&mut theorems, t);
     }
-    for t in analytic.bound().theorems() {
-        push_unique(&mut theorems, t);
-    }
-    let evidence = maximality.evidence().copied();
-    for t in evidence.iter().flat_map(|e| e.theorems()) {
-        push_unique(&mut theorems, t);
-    }
-    let bpsw = evidence.is_some_and(|e| e.bpsw_assumed);
+    let bpsw = add_bound_and_maximality(&mut theorems, &analytic, &maximality);
     let bound = analytic.into_bound();
     Verified {
         kind: CertificateKind::Relations,
@@ -456,14 +466,7 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
     for t in ids.iter().filter_map(|id| registry::lookup(id)) {
         push_unique(&mut theorems, t);
     }
-    for t in analytic.bound().theorems() {
-        push_unique(&mut theorems, t);
-    }
-    let evidence = maximality.evidence().copied();
-    for t in evidence.iter().flat_map(|e| e.theorems()) {
-        push_unique(&mut theorems, t);
-    }
-    let bpsw = evidence.is_some_and(|e| e.bpsw_assumed);
+    let bpsw = add_bound_and_maximality(&mut theorems, &analytic, &maximality);
     let bound = analytic.into_bound();
     Ok(Verified {
         kind: CertificateKind::Relations,
