@@ -46,6 +46,21 @@ const MAX_BATCHES: usize = 40;
 /// exponents of units of a few hundred bits at the verifier's precision.
 const ROOT_BITS: u32 = 400;
 
+/// Primes of the factor base in fewer relations than this get more
+/// relations of their own after a round that does not confirm `h R`.
+const SPARSE_COLUMN: usize = 5;
+
+/// The factor-base primes (of `k`) that fewer than `min` relations contain.
+fn sparse_columns(raws: &[relations::Relation], k: usize, min: usize) -> Vec<usize> {
+    let mut count = vec![0usize; k];
+    for r in raws {
+        for &(i, _) in &r.exponents {
+            count[i] += 1;
+        }
+    }
+    (0..k).filter(|&i| count[i] < min).collect()
+}
+
 /// Precision (bits) of the prover's own log embeddings.
 const LOG_PREC: u32 = 512;
 
@@ -341,6 +356,13 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
         if log_hs < ceiling {
             confirmed = Some((alg, found));
             break;
+        }
+        // A prime in few relations can leave the lattice short of a
+        // relation in its direction for round after round (the search
+        // rarely meets a prime of large norm): more relations inside it.
+        let seed = opts.seed.wrapping_add(round as u64);
+        for c in sparse_columns(&raws, k, SPARSE_COLUMN) {
+            extra_relations.extend(relations::relations_in(order, &fb, c, 4, seed));
         }
     }
     let Some((alg, found)) = confirmed else {
