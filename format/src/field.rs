@@ -66,6 +66,11 @@ pub struct FieldBody {
     /// The full factorisation of `|disc(O)|` when "maximal order" is
     /// claimed (`null` otherwise).
     pub maximality: Option<Vec<PrimePower>>,
+    /// The part of `|disc(O)|` left unfactored (`maximality` then
+    /// factors the rest): the certificate rests on it being squarefree,
+    /// which makes `O` maximal at its primes too. Absent when `|disc(O)|`
+    /// is fully factored.
+    pub unfactored: Option<Integer>,
     pub generation_theorem: String,
     /// Every prime ideal above each listed `p`, grouped by `p` ascending.
     pub factor_base: Vec<FieldPrime>,
@@ -120,7 +125,7 @@ impl FieldBody {
             ),
             ("regulator", bounds(&u.regulator)),
         ]);
-        cbor::map(vec![
+        let mut entries = vec![
             ("producer", producer_value(&self.producer)),
             ("order", order_value(&self.order)),
             ("claim", claim_value(&self.claim)),
@@ -137,7 +142,11 @@ impl FieldBody {
             ("roots", roots),
             ("units", units),
             ("euler", euler_value(&self.euler)),
-        ])
+        ];
+        if let Some(c) = &self.unfactored {
+            entries.push(("unfactored", cbor::int(c)));
+        }
+        cbor::map(entries)
     }
 
     pub fn encode(&self) -> Result<Vec<u8>, DecodeError> {
@@ -150,6 +159,10 @@ impl FieldBody {
         let order = get_order(top.req("order")?)?;
         let claim = get_claim(top.req("claim")?)?;
         let maximality = get_maximality(top.req("maximality")?)?;
+        let unfactored = top
+            .opt("unfactored")
+            .map(|c| cbor::get_int(c, "unfactored"))
+            .transpose()?;
         let generation_theorem =
             cbor::get_text(top.req("generation-theorem")?, "generation-theorem")?.to_string();
         let mut fb = MapReader::new(top.req("factor-base")?, "body.factor-base")?;
@@ -220,6 +233,7 @@ impl FieldBody {
             order,
             claim,
             maximality,
+            unfactored,
             generation_theorem,
             factor_base,
             lattice,

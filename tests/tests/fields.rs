@@ -202,6 +202,54 @@ fn a_pure_cubic_field_near_ten_to_the_twelve() {
     assert_eq!(invariants(&v), vec![3, 3, 3]);
 }
 
+#[test]
+fn an_unfactored_discriminant_is_an_assumption() {
+    // disc(x^3 - x + 30087) = 4 - 27 * 30087^2 = -24441144359 (the cubic
+    // discriminant -4a^3 - 27b^2, common practice), a product of two primes
+    // above the prover's trial division bound. With no budget for Pollard's
+    // rho the prover cannot split it: the certificate then names it as
+    // unfactored, and the verdict rests on it being squarefree. With the
+    // budget, the factorisation is certified and the assumption goes; the
+    // group is the same.
+    let f = poly("x^3 - x + 30087");
+    let d = Integer::from(4 - 27 * 30087i64 * 30087);
+    let no_rho = Options {
+        factor_budget: 0,
+        ..Options::default()
+    };
+    let body = classcert_prover::prove_field(&f, &no_rho).unwrap();
+    assert_eq!(body.unfactored, Some(Integer::from(d.abs_ref())));
+    let v = expect_verified(&verify_bytes(&bytes(&body)), "unfactored");
+    assert_eq!(field_disc(&v), d);
+    let names: Vec<&str> = v.assumptions().iter().map(|a| a.name()).collect();
+    assert!(names.contains(&"squarefree cofactor"), "{names:?}");
+    let (full, w) = verified("x^3 - x + 30087");
+    assert_eq!(full.unfactored, None);
+    assert!(!w
+        .assumptions()
+        .iter()
+        .any(|a| a.name() == "squarefree cofactor"));
+    assert_eq!(invariants(&v), invariants(&w));
+    // The cofactor must divide |disc(O)|, be coprime to the listed primes
+    // and not be a perfect power.
+    for c in [
+        Integer::from(7),
+        Integer::from(d.abs_ref()) * 4u32,
+        Integer::from(155_567u32).square(),
+    ] {
+        let mut forged = body.clone();
+        forged.unfactored = Some(c);
+        assert_eq!(rejection(&forged), "maximality-factorisation");
+    }
+    // disc(x^3 - m) = -27 m^2 (the pure cubic formula above): with
+    // m = 100003 * 100019, both prime (by trial division), and no rho, the
+    // unfactored part is m^2, a square, never squarefree: the prover
+    // refuses before the long work.
+    let m = "x^3 - 10002200057";
+    let refused = classcert_prover::prove_field(&poly(m), &no_rho).unwrap_err();
+    assert!(refused.to_string().contains("perfect power"), "{refused}");
+}
+
 /// A forged number-field certificate: its file name in
 /// `vectors/mutations-fields/`, the reason code it must be refused with,
 /// and the forgery, applied to the certificate of `Q(7^(1/3))`.

@@ -408,7 +408,7 @@ fn from_order_witness(
 pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> Check<Verified> {
     progress("order");
     let o = check_field_order(&body.order, &body.roots)?;
-    let maximality = check_field_maximality(&body.maximality, &o)?;
+    let maximality = check_field_maximality(&body.maximality, body.unfactored.as_ref(), &o)?;
     let order = o.order();
     let abs_disc = Integer::from(order.discriminant().abs_ref());
     let statement = field_bound(&body.generation_theorem, &abs_disc)?;
@@ -467,6 +467,10 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
         push_unique(&mut theorems, t);
     }
     let bpsw = add_bound_and_maximality(&mut theorems, &analytic, &maximality);
+    let mut assumed = assumptions(&theorems, bpsw);
+    if body.unfactored.is_some() {
+        assumed.push(Assumption::SquarefreeCofactor);
+    }
     let bound = analytic.into_bound();
     Ok(Verified {
         kind: CertificateKind::Relations,
@@ -482,7 +486,7 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
             .collect(),
         unit: None,
         maximal: maximality.is_maximal(),
-        assumptions: assumptions(&theorems, bpsw),
+        assumptions: assumed,
         theorems,
         w: units.w(),
         method: bound.method(),
@@ -494,6 +498,7 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
             signature: units.signature(),
             discriminant: order.discriminant().clone(),
             index: order.index().clone(),
+            unfactored: body.unfactored.clone(),
             regulator: units.regulator().clone(),
         }),
     })

@@ -121,9 +121,17 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
     let mo = maximal::maximal_order(f, &extra, opts.factor_budget)
         .map_err(|e| ProveError::Unsupported(e.to_string()))?;
     if let Some(c) = &mo.unfactored {
-        return Err(ProveError::Unsupported(format!(
-            "the cofactor {c} of disc(F) could not be factored, so maximality cannot be certified; give its prime factors with --factors"
-        )));
+        // The order is maximal at every known prime; at the primes of `c`
+        // it is when `c` is squarefree, which the certificate then states
+        // as its assumption (a perfect power never is, so it is refused).
+        if c.is_perfect_power() {
+            return Err(ProveError::Unsupported(format!(
+                "the unfactored part {c} of disc(F) is a perfect power, so the order may not be maximal at its primes; give them with --factors"
+            )));
+        }
+        progress.warn(&format!(
+            "the part {c} of disc(F) could not be factored; the certificate rests on it being squarefree (give its primes with --factors to remove that assumption)"
+        ));
     }
     let order = &mo.order;
     let abs_disc = Integer::from(mo.disc.abs_ref());
@@ -405,6 +413,7 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
         },
         claim,
         maximality: Some(maximality),
+        unfactored: mo.unfactored.clone(),
         generation_theorem: registry::BACH_NUMBER_FIELD.to_string(),
         factor_base,
         lattice,

@@ -136,8 +136,15 @@ pub fn shown_irreducible(f: &[Integer], n: usize, disc_f: &Integer) -> bool {
 /// Maximality when claimed: `factors` is the full factorisation of
 /// `|disc(O)|`, and `O` is `p`-maximal at every `p` with `p² | disc(O)`.
 /// A field certificate must claim it (non-maximal orders come later).
+///
+/// With `unfactored = c`, `factors` factors `|disc(O)| / c` instead, and
+/// `c > 1` must divide `|disc(O)|`, be coprime to the listed primes and not
+/// be a perfect power (which is never squarefree). The result then rests
+/// on `c` being squarefree: every prime `q | c` has `q ∥ disc(O)`, so `O`
+/// is `q`-maximal (`disc(O) = [O_K : O]² d_K`, common practice).
 pub(crate) fn check_field_maximality(
     claim: &Option<Vec<PrimePower>>,
+    unfactored: Option<&Integer>,
     o: &FieldOrderOk,
 ) -> Check<MaximalityOk> {
     let Some(factors) = claim else {
@@ -147,11 +154,21 @@ pub(crate) fn check_field_maximality(
         );
     };
     let mut work = MAX_PROOF_POWERS;
-    let abs = Integer::from(o.order.discriminant().abs_ref());
+    let mut abs = Integer::from(o.order.discriminant().abs_ref());
+    if let Some(c) = unfactored {
+        let coprime = factors.iter().all(|pp| !c.is_divisible(&pp.prime));
+        if *c <= 1 || !abs.is_divisible(c) || !coprime || c.is_perfect_power() {
+            return reject(
+                Reason::MaximalityFactorisation,
+                "the unfactored part of |disc(O)| must exceed 1, divide it, be coprime to the listed primes and not be a perfect power",
+            );
+        }
+        abs = abs.div_exact(c);
+    }
     let evidence = check_factorisation(
         factors,
         &abs,
-        "|disc(O)|",
+        "|disc(O)| without its unfactored part",
         Reason::MaximalityFactorisation,
         &mut work,
     )?;

@@ -169,6 +169,9 @@ impl Report {
                 num(&k.discriminant),
             ));
             e.push(("index", num(&k.index)));
+            if let Some(c) = &k.unfactored {
+                e.push(("unfactored", num(c)));
+            }
             e.push(("regulator", Json::str(k.regulator_text())));
             e.push(("unit_rank", Json::Num(k.unit_rank().to_string())));
         } else {

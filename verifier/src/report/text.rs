@@ -99,9 +99,13 @@ impl Report {
                     k.signature.0,
                     k.signature.1
                 ));
+                let assumed;
                 s.push_str(&format!(
                     "  order         {}, discriminant {}, index [O : Z[θ]] = {}\n",
-                    if v.maximal() {
+                    if let Some(c) = &k.unfactored {
+                        assumed = format!("maximal order if the unfactored part {} of its discriminant is squarefree (p-maximality certified at every other prime)", super::short_number(c));
+                        &assumed
+                    } else if v.maximal() {
                         "maximal order (factorisation of its discriminant and p-maximality certified)"
                     } else {
                         "order (maximality not claimed)"

@@ -18,6 +18,9 @@ pub enum CertificateKind {
 pub enum Assumption {
     Grh,
     BpswProbablePrime,
+    /// A number field's `|disc(O)|` has a part left unfactored, assumed
+    /// squarefree (then the order is maximal at its primes).
+    SquarefreeCofactor,
 }
 
 impl Assumption {
@@ -25,6 +28,7 @@ impl Assumption {
         match self {
             Assumption::Grh => "GRH",
             Assumption::BpswProbablePrime => "BPSW probable prime",
+            Assumption::SquarefreeCofactor => "squarefree cofactor",
         }
     }
 }
@@ -70,6 +74,8 @@ pub struct FieldSummary {
     pub discriminant: Integer,
     /// `[O : Z[θ]]`.
     pub index: Integer,
+    /// The part of `|disc(O)|` left unfactored and assumed squarefree.
+    pub unfactored: Option<Integer>,
     /// Rigorous enclosure of the regulator.
     pub regulator: Interval,
 }
