@@ -17,6 +17,7 @@
 #![forbid(unsafe_code)]
 
 pub mod cbor;
+pub mod cose;
 pub mod field;
 pub mod json;
 pub mod model;

@@ -44,6 +44,7 @@ pub mod relations;
 pub mod rng;
 pub mod setup;
 pub mod show;
+pub mod sign;
 pub mod units;
 
 pub use drivers::field::{field_to_bytes, prove_field};

@@ -16,9 +16,17 @@
 use classcert_prover::{prove_to_bytes, Options};
 use classcert_tests::oracle;
 use classcert_tests::support::SplitMix;
-use classcert_verifier::report::Requirement;
+use classcert_verifier::report::Policy;
 use classcert_verifier::verify_bytes;
 use rug::Integer;
+
+/// `--require unconditional`: no assumption allowed.
+fn no_assumption() -> Policy {
+    Policy {
+        allow: Some(Vec::new()),
+        ..Policy::default()
+    }
+}
 
 fn verdict(d: i64, unconditional: bool) -> classcert_verifier::report::Verified {
     let opts = Options {
@@ -30,7 +38,7 @@ fn verdict(d: i64, unconditional: bool) -> classcert_verifier::report::Verified 
     let report = verify_bytes(&bytes);
     if unconditional {
         // the policy flag accepts it
-        let r = verify_bytes(&bytes).require(Requirement::Unconditional);
+        let r = verify_bytes(&bytes).apply(&no_assumption());
         assert!(r.is_verified(), "D = {d}: --require unconditional refused");
     }
     report
@@ -75,7 +83,7 @@ fn unconditional_needs_a_maximal_order() {
 #[test]
 fn grh_certificates_fail_the_unconditional_policy() {
     let (bytes, _) = prove_to_bytes(&Integer::from(-3299), &Options::default()).unwrap();
-    let r = verify_bytes(&bytes).require(Requirement::Unconditional);
+    let r = verify_bytes(&bytes).apply(&no_assumption());
     assert_eq!(r.outcome.err().map(|e| e.reason.code()), Some("policy"));
 }
 

@@ -51,6 +51,7 @@ mod primality;
 pub mod registry;
 mod relations;
 pub mod report;
+pub mod signature;
 mod units;
 mod witness;
 
@@ -122,6 +123,32 @@ pub fn verify_bytes(bytes: &[u8]) -> Report {
     verify_bytes_with(bytes, &mut |_| {})
 }
 
+/// Verifies a certificate that may be signed (`classcert_format::cose`):
+/// the signature first ([`signature::check`]; not checked when `trusted`
+/// is empty), then the certificate it carries, as [`verify_bytes_with`].
+/// An unsigned certificate is verified as it is; whether a signature was
+/// required is the policy's to say ([`report::policy`]).
+pub fn verify_signed_with(
+    bytes: &[u8],
+    trusted: &[signature::TrustedKey],
+    progress: &mut dyn FnMut(&str),
+) -> Report {
+    if !classcert_format::cose::is_signed(bytes) {
+        return verify_bytes_with(bytes, progress);
+    }
+    match signature::check(bytes, trusted) {
+        Ok((payload, signer)) => {
+            let mut report = verify_bytes_with(payload, progress);
+            report.summary.signer = Some(signer);
+            report
+        }
+        Err(r) => Report {
+            summary: Summary::default(),
+            outcome: Err(r),
+        },
+    }
+}
+
 /// [`verify_bytes`], telling `progress` the name of each stage (one of
 /// [`STAGES`]) as it starts.
 pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report {
@@ -181,6 +208,8 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
                     },
                     claimed_class_number: Some(body.claim.class_number.clone()),
                     claimed_invariants: Some(body.claim.invariants.clone()),
+                    signer: None,
+                    policy: Vec::new(),
                 },
                 outcome: pipeline::verify_field(body, progress),
             }
@@ -199,6 +228,8 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
             polynomial: None,
             claimed_class_number: Some(h),
             claimed_invariants: Some(inv),
+            signer: None,
+            policy: Vec::new(),
         },
         outcome,
     }

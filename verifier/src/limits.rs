@@ -63,6 +63,10 @@ pub const DECODE: classcert_format::DecodeLimits = classcert_format::DecodeLimit
 };
 /// Bytes of a certificate file.
 pub const MAX_FILE_BYTES: usize = 256 << 20;
+
+/// Lines read from a policy file (`--policy`), and its size in bytes.
+pub const MAX_POLICY_LINES: usize = 1000;
+pub const MAX_POLICY_BYTES: u64 = 64 << 10;
 /// Nesting depth of CBOR items.
 pub const MAX_CBOR_DEPTH: usize = 24;
 /// CBOR items in one file.

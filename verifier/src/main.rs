@@ -3,13 +3,13 @@
 //! The command line lives here and only here: the library (the trusted
 //! checks) never sees clap. Exit codes: 0 verified; 1 not verified (a
 //! check failed, or the input is malformed or over limits); 2 usage or
-//! I/O error.
+//! I/O error; 3 every check passed but the policy refused the result.
 
 #![forbid(unsafe_code)]
 
 use clap::{Parser, ValueEnum};
-use classcert_verifier::report::json;
-use classcert_verifier::report::Requirement;
+use classcert_verifier::report::{json, Assumption, Policy, Reason};
+use classcert_verifier::signature::TrustedKey;
 use classcert_verifier::STAGES;
 use std::io::{IsTerminal, Read, Write};
 use std::process::ExitCode;
@@ -21,10 +21,13 @@ const AFTER_HELP: &str = "\
 FILE may be - to read the certificate from standard input.
 
 Exit codes:
-  0  verified (and every --require holds)
+  0  verified, and the policy (if any) holds
   1  not verified: a check failed, the file is not a certificate, is
-     malformed, or is over the verifier's limits
-  2  usage or I/O error (bad arguments, unreadable file)
+     malformed, is over the verifier's limits, or its signature fails
+  2  usage or I/O error (bad arguments, unreadable file or key)
+  3  every check passed, but the policy refused the result (reason
+     policy): an assumption not allowed, not maximal, another group,
+     or not signed by a trusted key
 
 The first line of the text output is VERIFIED or REJECTED: <reason>.
 With --json, one JSON object (schema classcert/1) is printed, also for
@@ -47,6 +50,25 @@ struct Cli {
     /// this requirement.
     #[arg(long, value_enum, value_name = "WHAT")]
     require: Vec<Require>,
+    /// Accept only these assumptions (repeatable): GRH, bpsw-probable-prime,
+    /// squarefree-cofactor; any other refuses the result.
+    #[arg(long, value_name = "ASSUMPTION", value_parser = parse_assumption)]
+    allow: Vec<Assumption>,
+    /// Refuse the result unless its class number is H.
+    #[arg(long, value_name = "H")]
+    expect_class_number: Option<rug::Integer>,
+    /// Refuse the result unless its invariants are d1,d2,... (empty for the
+    /// trivial group).
+    #[arg(long, value_name = "D1,D2,...", value_delimiter = ',', num_args = 0..)]
+    expect_invariants: Option<Vec<rug::Integer>>,
+    /// Accept only a certificate signed by this key (an Ed25519 public key,
+    /// SPKI PEM, as `classcert keygen` writes it); repeatable.
+    #[arg(long, value_name = "PUB")]
+    trusted_key: Vec<String>,
+    /// Read the same settings from a policy file (key = value lines: allow,
+    /// require, expect-class-number, expect-invariants, trusted-keys).
+    #[arg(long, value_name = "FILE")]
+    policy: Option<String>,
     /// Print only the verdict line (text) and no progress.
     #[arg(short, long)]
     quiet: bool,
@@ -56,6 +78,52 @@ struct Cli {
 enum Require {
     /// No assumption at all: neither GRH nor "BPSW probable prime".
     Unconditional,
+    /// The maximal order, certified.
+    Maximal,
+}
+
+fn parse_assumption(s: &str) -> Result<Assumption, String> {
+    Assumption::from_name(s)
+        .ok_or_else(|| "expected GRH, bpsw-probable-prime or squarefree-cofactor".to_string())
+}
+
+/// The policy from the options and the policy file, and the trusted keys.
+fn policy(cli: &Cli) -> Result<(Policy, Vec<TrustedKey>), String> {
+    let (mut p, mut key_files) = match &cli.policy {
+        Some(f) => {
+            let mut text = String::new();
+            std::fs::File::open(f)
+                .and_then(|h| {
+                    h.take(classcert_verifier::limits::MAX_POLICY_BYTES)
+                        .read_to_string(&mut text)
+                })
+                .map_err(|e| format!("cannot read the policy file {f}: {e}"))?;
+            Policy::from_toml(&text)?
+        }
+        None => (Policy::default(), Vec::new()),
+    };
+    if !cli.allow.is_empty() {
+        p.allow = Some(cli.allow.clone());
+    }
+    for r in &cli.require {
+        match r {
+            Require::Unconditional => p.allow = Some(Vec::new()),
+            Require::Maximal => p.maximal = true,
+        }
+    }
+    p.class_number = cli.expect_class_number.clone().or(p.class_number);
+    p.invariants = cli.expect_invariants.clone().or(p.invariants);
+    key_files.extend(cli.trusted_key.iter().cloned());
+    let mut keys = Vec::new();
+    for f in &key_files {
+        let mut text = String::new();
+        std::fs::File::open(f)
+            .and_then(|h| h.take(1 << 16).read_to_string(&mut text))
+            .map_err(|e| format!("cannot read the key {f}: {e}"))?;
+        keys.push(TrustedKey::from_pem(&text).map_err(|e| format!("{f}: {e}"))?);
+    }
+    p.signed = !keys.is_empty();
+    Ok((p, keys))
 }
 
 fn main() -> ExitCode {
@@ -81,6 +149,17 @@ fn main() -> ExitCode {
             return ExitCode::from(if e.use_stderr() { 2 } else { 0 });
         }
     };
+    let (policy, trusted) = match policy(&cli) {
+        Ok(p) => p,
+        Err(detail) => {
+            if cli.json {
+                print_out(&json::error("usage", &detail).render());
+            } else {
+                eprintln!("classcert-verify: {detail}");
+            }
+            return ExitCode::from(2);
+        }
+    };
     let bytes = match read_bounded(&cli.file) {
         Ok(b) => b,
         Err(e) => {
@@ -104,7 +183,7 @@ fn main() -> ExitCode {
     let stage = Arc::new(AtomicUsize::new(0));
     let start = Instant::now();
     let mut ticker: Option<Ticker> = None;
-    let mut report = classcert_verifier::verify_bytes_with(&bytes, &mut |name| {
+    let report = classcert_verifier::verify_signed_with(&bytes, &trusted, &mut |name| {
         if let Some(i) = STAGES.iter().position(|s| *s == name) {
             stage.store(i + 1, Ordering::Relaxed);
         }
@@ -115,11 +194,7 @@ fn main() -> ExitCode {
     if let Some(t) = ticker {
         t.stop();
     }
-    for r in &cli.require {
-        report = report.require(match r {
-            Require::Unconditional => Requirement::Unconditional,
-        });
-    }
+    let report = report.apply(&policy);
     let text = if cli.json {
         report.to_json().render()
     } else if cli.quiet {
@@ -130,10 +205,10 @@ fn main() -> ExitCode {
         report.to_text()
     };
     print_out(&text);
-    if report.is_verified() {
-        ExitCode::SUCCESS
-    } else {
-        ExitCode::from(1)
+    match &report.outcome {
+        Ok(_) => ExitCode::SUCCESS,
+        Err(r) if r.reason == Reason::Policy => ExitCode::from(3),
+        Err(_) => ExitCode::from(1),
     }
 }
 

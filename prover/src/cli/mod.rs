@@ -6,11 +6,13 @@
 mod config;
 mod demo;
 mod exit;
+mod keys;
 mod parse;
 mod rounds;
 mod sink;
 
 use clap::{Parser, Subcommand};
+use classcert_format::json::Json;
 use classcert_format::Document;
 use classcert_prover::show::{self, Style};
 use config::{ProveArgs, ProveConfig};
@@ -74,6 +76,27 @@ enum Cmd {
         #[arg(long)]
         json: bool,
     },
+    /// Write a new Ed25519 key: KEY (PKCS#8 PEM, the secret, mode 0600) and
+    /// KEY.pub (SPKI PEM, for classcert-verify --trusted-key).
+    #[command(after_help = EXIT_HELP)]
+    Keygen {
+        /// The secret key's file; neither it nor KEY.pub may exist yet.
+        #[arg(short, long, value_name = "KEY")]
+        output: PathBuf,
+    },
+    /// Sign a certificate (COSE_Sign1, Ed25519): the signed file carries the
+    /// certificate's bytes unchanged, and its SHA-256 stays its id.
+    #[command(after_help = EXIT_HELP)]
+    Sign {
+        /// The certificate.
+        file: PathBuf,
+        /// The secret key (PKCS#8 PEM, from keygen).
+        #[arg(long, value_name = "KEY")]
+        key: PathBuf,
+        /// The signed certificate's file.
+        #[arg(short, long, value_name = "SIGNED")]
+        output: PathBuf,
+    },
     /// Prove and verify the demo scenario (a few seconds in release builds).
     #[command(after_help = EXIT_HELP)]
     Demo {
@@ -115,6 +138,8 @@ pub fn main() -> ExitCode {
         Cmd::Combine { args } => rounds::combine_dirs(args),
         Cmd::Show { file, json } => show_file(&file, json),
         Cmd::Demo { dir, quiet } => demo::run(dir, quiet),
+        Cmd::Keygen { output } => keys::keygen(&output),
+        Cmd::Sign { file, key, output } => keys::sign(&file, &key, &output),
     }
 }
 
@@ -166,6 +191,14 @@ fn show_file(file: &std::path::Path, json: bool) -> ExitCode {
         Ok(b) => b,
         Err(e) => return error("io", format!("cannot read {}: {e}", file.display())),
     };
+    // a signed certificate: what it carries, and who signed (not checked)
+    let (bytes, signer) = match classcert_format::cose::decode(&bytes) {
+        Ok(m) if classcert_format::cose::is_signed(&bytes) => (
+            m.payload.to_vec(),
+            Some(classcert_verifier::signature::hex(&m.kid)),
+        ),
+        _ => (bytes, None),
+    };
     let doc = match classcert_format::decode_document(&bytes) {
         Ok(doc) => doc,
         Err(e) => {
@@ -179,22 +212,42 @@ fn show_file(file: &std::path::Path, json: bool) -> ExitCode {
         }
     };
     let id_hex = classcert_format::hex(&doc.id);
-    let out = match (doc.document, json) {
-        (Document::Relations(body), json) => {
-            let c = classcert_format::Decoded {
+    let signed = |fp: &str| {
+        Json::obj(vec![
+            ("fingerprint", Json::str(fp)),
+            ("trusted", Json::Bool(false)),
+        ])
+    };
+    let out = if json {
+        let mut v = match doc.document {
+            Document::Relations(body) => show::json(&classcert_format::Decoded {
                 body: *body,
                 id: doc.id,
-            };
-            if json {
-                show::json(&c).render()
-            } else {
-                show::text_styled(&c, style())
-            }
+            }),
+            Document::OrderWitness(w) => show::witness_json(&w, &id_hex),
+            Document::Field(b) => show::field_json(&b, &id_hex),
+        };
+        // the same vocabulary as the verdict's "signer" (not checked here)
+        if let (Json::Obj(entries), Some(fp)) = (&mut v, &signer) {
+            entries.push(("signer".into(), signed(fp)));
         }
-        (Document::OrderWitness(w), true) => show::witness_json(&w, &id_hex).render(),
-        (Document::OrderWitness(w), false) => show::witness_text(&w, &id_hex),
-        (Document::Field(b), true) => show::field_json(&b, &id_hex).render(),
-        (Document::Field(b), false) => show::field_text(&b, &id_hex),
+        v.render()
+    } else {
+        let text = match doc.document {
+            Document::Relations(body) => show::text_styled(
+                &classcert_format::Decoded {
+                    body: *body,
+                    id: doc.id,
+                },
+                style(),
+            ),
+            Document::OrderWitness(w) => show::witness_text(&w, &id_hex),
+            Document::Field(b) => show::field_text(&b, &id_hex),
+        };
+        match &signer {
+            Some(fp) => format!("signed by key {fp} (show does not check the signature: classcert-verify --trusted-key does)\n{text}"),
+            None => text,
+        }
     };
     let _ = std::io::stdout().write_all(out.as_bytes());
     Exit::Success.into()

@@ -95,6 +95,23 @@ pub fn error(code: &str, detail: &str) -> Json {
 }
 
 impl Report {
+    /// `signer` when signed, `policy` when one was applied.
+    fn signer_and_policy_json(&self, e: &mut Vec<(&str, Json)>) {
+        if let Some(s) = &self.summary.signer {
+            e.push((
+                "signer",
+                Json::obj(vec![
+                    ("fingerprint", Json::str(s.fingerprint.clone())),
+                    ("trusted", Json::Bool(s.trusted)),
+                ]),
+            ));
+        }
+        if !self.summary.policy.is_empty() {
+            let rules = self.summary.policy.iter().map(|r| Json::str(r.clone()));
+            e.push(("policy", Json::Arr(rules.collect())));
+        }
+    }
+
     pub fn to_json(&self) -> Json {
         let opt = |x: &Option<Integer>| x.as_ref().map(num).unwrap_or(Json::Null);
         let id = self
@@ -114,6 +131,7 @@ impl Report {
                 e.push(("reason", Json::str(r.reason.code())));
                 e.push(("detail", Json::str(r.detail.clone())));
                 e.push(("certificate_sha256", id));
+                self.signer_and_policy_json(&mut e);
                 e.push((
                     "certificate_kind",
                     self.summary
@@ -148,6 +166,7 @@ impl Report {
         e.push(("reason", Json::Null));
         e.push(("detail", Json::Null));
         e.push(("certificate_sha256", id));
+        self.signer_and_policy_json(&mut e);
         e.push(("certificate_kind", Json::str(kind_name(v.kind()))));
         if let Some(k) = v.field() {
             e.push(("polynomial", Json::str(k.polynomial_text())));

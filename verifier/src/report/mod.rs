@@ -4,6 +4,7 @@
 //! show`, so one fact has one key everywhere (`docs/json.md`).
 
 pub mod json;
+pub mod policy;
 pub mod reason;
 pub mod text;
 pub mod view;
@@ -14,6 +15,8 @@ pub use view::{
     decimal, generator_text, ideals_text, invariants_text, polynomial_text, prime_powers_text,
     short_number, Assumption, CertificateKind, FieldSummary, GeneratorView, UnitSummary,
 };
+
+pub use policy::Policy;
 
 use rug::Integer;
 
@@ -27,6 +30,10 @@ pub struct Summary {
     pub polynomial: Option<Vec<Integer>>,
     pub claimed_class_number: Option<Integer>,
     pub claimed_invariants: Option<Vec<Integer>>,
+    /// Who signed the certificate, when it is signed.
+    pub signer: Option<crate::signature::Signer>,
+    /// The rules of the policy applied (`Report::apply`), if any.
+    pub policy: Vec<String>,
 }
 
 /// A report: what was read, and the outcome.
@@ -36,39 +43,7 @@ pub struct Report {
     pub outcome: Result<Verified, Rejection>,
 }
 
-/// What a caller may demand of a verified certificate beyond its checks
-/// (`classcert-verify --require`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Requirement {
-    /// No assumption at all: neither GRH nor "BPSW probable prime".
-    Unconditional,
-}
-
 impl Report {
-    /// Refuses a verified report that does not meet `r`, with reason
-    /// `policy`; the checks themselves are unchanged.
-    pub fn require(self, r: Requirement) -> Report {
-        let Ok(v) = &self.outcome else {
-            return self;
-        };
-        match r {
-            Requirement::Unconditional if !v.assumptions().is_empty() => {
-                let names: Vec<&str> = v.assumptions().iter().map(|a| a.name()).collect();
-                Report {
-                    summary: self.summary,
-                    outcome: Err(Rejection {
-                        reason: Reason::Policy,
-                        detail: format!(
-                            "every check passed, but the result rests on {}, and --require unconditional allows no assumption",
-                            names.join(", ")
-                        ),
-                    }),
-                }
-            }
-            Requirement::Unconditional => self,
-        }
-    }
-
     /// Whether every check passed (and every requirement holds).
     pub fn is_verified(&self) -> bool {
         self.outcome.is_ok()

@@ -63,6 +63,8 @@ pub enum Reason {
     RootsInvalid,
     TorsionMismatch,
     UnitNotUnit,
+    SignatureInvalid,
+    SignerNotTrusted,
 }
 
 impl Reason {
@@ -128,6 +130,8 @@ impl Reason {
             RootsInvalid => "roots-invalid",
             TorsionMismatch => "torsion-mismatch",
             UnitNotUnit => "unit-not-unit",
+            SignatureInvalid => "signature-invalid",
+            SignerNotTrusted => "signer-not-trusted",
         }
     }
 }

@@ -53,6 +53,23 @@ pub fn method_text(m: Method) -> String {
 }
 
 impl Report {
+    /// Who signed, and the policy applied, when there are.
+    fn signer_and_policy_text(&self, s: &mut String) {
+        if let Some(g) = &self.summary.signer {
+            let how = match g.trusted {
+                true => "the signature checked against a trusted key",
+                false => "the signature not checked: no trusted key was given",
+            };
+            s.push_str(&format!("  signed by     {} ({how})\n", g.fingerprint));
+        }
+        if !self.summary.policy.is_empty() {
+            s.push_str(&format!(
+                "  policy        {}\n",
+                self.summary.policy.join("; ")
+            ));
+        }
+    }
+
     pub fn to_text(&self) -> String {
         let mut s = String::new();
         let id = self
@@ -71,6 +88,7 @@ impl Report {
             Err(r) => {
                 s.push_str(&format!("REJECTED: {}\n", r.reason.code()));
                 s.push_str(&format!("  certificate   {id}\n"));
+                self.signer_and_policy_text(&mut s);
                 match &self.summary.polynomial {
                     Some(f) => s.push_str(&format!(
                         "  field         Q[x]/(F), F = {}\n",
@@ -85,6 +103,7 @@ impl Report {
         };
         s.push_str("VERIFIED\n");
         s.push_str(&format!("  certificate   {id}\n"));
+        self.signer_and_policy_text(&mut s);
         let what = if v.maximal() {
             "maximal order (fundamental discriminant, factorisation certified)"
         } else {

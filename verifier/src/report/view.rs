@@ -31,6 +31,18 @@ impl Assumption {
             Assumption::SquarefreeCofactor => "squarefree cofactor",
         }
     }
+
+    /// The assumption named `s` (its name, or with dashes for spaces, in
+    /// any case).
+    pub fn from_name(s: &str) -> Option<Assumption> {
+        let all = [
+            Assumption::Grh,
+            Assumption::BpswProbablePrime,
+            Assumption::SquarefreeCofactor,
+        ];
+        let key = s.replace('-', " ").to_lowercase();
+        all.into_iter().find(|a| a.name().to_lowercase() == key)
+    }
 }
 
 /// A generator of a cyclic factor, for the reader.

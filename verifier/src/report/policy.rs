@@ -1,0 +1,176 @@
+//! What a caller demands of a verified certificate beyond its checks
+//! (`classcert-verify --allow`, `--require`, `--expect-class-number`,
+//! `--expect-invariants`, `--trusted-key`, or the same in a policy file).
+//! A policy never changes a check: it refuses a verified result with
+//! reason `policy`, saying that every check passed and which rule refused.
+
+use super::reason::{Reason, Rejection};
+use super::{Assumption, Report, Summary, Verified};
+use rug::Integer;
+
+/// The rules; the default demands nothing.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct Policy {
+    /// The assumptions accepted; `None` accepts any, `Some([])` none.
+    pub allow: Option<Vec<Assumption>>,
+    /// The maximal order must be certified.
+    pub maximal: bool,
+    pub class_number: Option<Integer>,
+    pub invariants: Option<Vec<Integer>>,
+    /// A signature under a trusted key is required.
+    pub signed: bool,
+}
+
+impl Policy {
+    /// The rules, one phrase each (empty: no policy).
+    pub fn rules(&self) -> Vec<String> {
+        let mut out = Vec::new();
+        if let Some(a) = &self.allow {
+            let names: Vec<&str> = a.iter().map(|x| x.name()).collect();
+            out.push(match names.is_empty() {
+                true => "no assumption allowed".to_string(),
+                false => format!("assumptions allowed: {}", names.join(", ")),
+            });
+        }
+        if self.maximal {
+            out.push("the maximal order".into());
+        }
+        if let Some(h) = &self.class_number {
+            out.push(format!("class number {h}"));
+        }
+        if let Some(d) = &self.invariants {
+            out.push(format!("invariants {}", super::invariants_text(d)));
+        }
+        if self.signed {
+            out.push("signed by a trusted key".into());
+        }
+        out
+    }
+
+    /// The first rule that `v` breaks, in words.
+    fn broken(&self, summary: &Summary, v: &Verified) -> Option<String> {
+        if let Some(allowed) = &self.allow {
+            let extra: Vec<&str> = (v.assumptions().iter())
+                .filter(|a| !allowed.contains(a))
+                .map(|a| a.name())
+                .collect();
+            if !extra.is_empty() {
+                return Some(format!(
+                    "the result rests on {}, which the policy does not allow",
+                    extra.join(", ")
+                ));
+            }
+        }
+        if self.maximal && !v.maximal() {
+            return Some("the policy requires the maximal order, which was not claimed".into());
+        }
+        if let Some(h) = self
+            .class_number
+            .as_ref()
+            .filter(|h| *h != v.class_number())
+        {
+            return Some(format!(
+                "the class number is {}, not the expected {h}",
+                v.class_number()
+            ));
+        }
+        if let Some(d) = self
+            .invariants
+            .as_ref()
+            .filter(|d| d.as_slice() != v.invariants())
+        {
+            return Some(format!(
+                "the group is {}, not the expected {}",
+                super::invariants_text(v.invariants()),
+                super::invariants_text(d)
+            ));
+        }
+        if self.signed && summary.signer.as_ref().is_none_or(|s| !s.trusted) {
+            return Some("the policy requires a signature under a trusted key, and the certificate is not signed".into());
+        }
+        None
+    }
+
+    /// Reads a policy file: `key = value` lines (a subset of TOML), `#`
+    /// comments, values a string, an integer or a list of them:
+    /// `allow = ["GRH"]`, `require = ["maximal", "unconditional"]`,
+    /// `expect-class-number = 27`, `expect-invariants = [3, 3, 3]`,
+    /// `trusted-keys = ["alice.pub"]`. Returns the policy and the key
+    /// files; a key it does not know is an error.
+    pub fn from_toml(text: &str) -> Result<(Policy, Vec<String>), String> {
+        let mut p = Policy::default();
+        let mut keys = Vec::new();
+        for (i, line) in text
+            .lines()
+            .enumerate()
+            .take(crate::limits::MAX_POLICY_LINES)
+        {
+            let line = line.split('#').next().unwrap_or("").trim();
+            if line.is_empty() {
+                continue;
+            }
+            let err = |what: &str| format!("policy line {}: {what}", i + 1);
+            let (key, value) = line
+                .split_once('=')
+                .ok_or_else(|| err("expected key = value"))?;
+            let items: Vec<String> = match value.trim().strip_prefix('[') {
+                Some(list) => (list
+                    .strip_suffix(']')
+                    .ok_or_else(|| err("an unclosed list"))?)
+                .split(',')
+                .map(|s| s.trim().trim_matches('"').to_string())
+                .filter(|s| !s.is_empty())
+                .collect(),
+                None => vec![value.trim().trim_matches('"').to_string()],
+            };
+            let int = |s: &String| s.parse::<Integer>().map_err(|_| err("expected an integer"));
+            match key.trim() {
+                "allow" => {
+                    let a = items.iter().map(|s| {
+                        Assumption::from_name(s).ok_or_else(|| err("an unknown assumption"))
+                    });
+                    p.allow = Some(a.collect::<Result<_, _>>()?);
+                }
+                "require" => {
+                    for s in &items {
+                        match s.as_str() {
+                            "unconditional" => p.allow = Some(Vec::new()),
+                            "maximal" => p.maximal = true,
+                            _ => return Err(err("require takes unconditional or maximal")),
+                        }
+                    }
+                }
+                "expect-class-number" => {
+                    p.class_number = Some(int(items.first().ok_or_else(|| err("no value"))?)?)
+                }
+                "expect-invariants" => {
+                    p.invariants = Some(items.iter().map(int).collect::<Result<_, _>>()?)
+                }
+                "trusted-keys" => keys = items,
+                _ => return Err(err("an unknown key")),
+            }
+        }
+        Ok((p, keys))
+    }
+}
+
+impl Report {
+    /// Refuses a verified report that breaks `policy`, with reason
+    /// `policy`; the checks themselves are unchanged.
+    pub fn apply(mut self, policy: &Policy) -> Report {
+        self.summary.policy = policy.rules();
+        let Ok(v) = &self.outcome else {
+            return self;
+        };
+        match policy.broken(&self.summary, v) {
+            None => self,
+            Some(rule) => Report {
+                summary: self.summary,
+                outcome: Err(Rejection {
+                    reason: Reason::Policy,
+                    detail: format!("every check passed, but {rule}"),
+                }),
+            },
+        }
+    }
+}
