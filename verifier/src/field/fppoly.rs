@@ -27,21 +27,44 @@ impl Fp {
         (2..1 << 63).contains(&p).then_some(Fp { p })
     }
 
-    fn add_c(self, a: u64, b: u64) -> u64 {
-        (a % self.p + b % self.p) % self.p
+    /// The modulus `p`.
+    pub fn p(self) -> u64 {
+        self.p
     }
 
-    fn sub_c(self, a: u64, b: u64) -> u64 {
-        (a % self.p + self.p - b % self.p) % self.p
+    /// `a + b mod p` for `a, b < p` (callers pass residues; wrapping keeps
+    /// any other input from panicking).
+    pub(crate) fn add_c(self, a: u64, b: u64) -> u64 {
+        let s = a.wrapping_add(b);
+        if s >= self.p {
+            s - self.p
+        } else {
+            s
+        }
     }
 
-    fn mul_c(self, a: u64, b: u64) -> u64 {
-        (u128::from(a) * u128::from(b) % u128::from(self.p)) as u64
+    /// `a - b mod p` for `a, b < p`, as [`Fp::add_c`].
+    pub(crate) fn sub_c(self, a: u64, b: u64) -> u64 {
+        if a >= b {
+            a - b
+        } else {
+            a.wrapping_add(self.p.wrapping_sub(b))
+        }
+    }
+
+    /// `a · b mod p`, in `u64` when both are below `2^32` (always so for
+    /// residues of a `p < 2^32`), else in `u128`.
+    pub(crate) fn mul_c(self, a: u64, b: u64) -> u64 {
+        if (a | b) >> 32 == 0 {
+            a * b % self.p
+        } else {
+            (u128::from(a) * u128::from(b) % u128::from(self.p)) as u64
+        }
     }
 
     /// `a^(-1) mod p` by the extended Euclidean algorithm (`O(log p)`
     /// steps); `None` if `gcd(a, p) ≠ 1`.
-    fn inv_c(self, a: u64) -> Option<u64> {
+    pub(crate) fn inv_c(self, a: u64) -> Option<u64> {
         let p = i128::from(self.p);
         let (mut r0, mut r1) = (p, i128::from(a % self.p));
         let (mut t0, mut t1) = (0i128, 1i128);
@@ -70,6 +93,7 @@ impl Fp {
 
     /// `a + b`, or `a - b` if `negate`; `max(len a, len b)` steps.
     fn add_signed(self, a: &[u64], b: &[u64], negate: bool) -> Vec<u64> {
+        let (a, b) = (self.normalise(a), self.normalise(b));
         let n = a.len().max(b.len());
         let out: Vec<u64> = (0..n)
             .map(|i| {
@@ -123,18 +147,18 @@ impl Fp {
         let mut q = vec![0u64; r.len().saturating_sub(k)];
         // Each pass clears the top coefficient of r: at most len a passes.
         while r.len() > k {
-            let d = r.len() - 1;
-            let c = self.mul_c(r.last().copied().unwrap_or(0), inv);
-            for (j, &bj) in b.iter().enumerate() {
-                if let Some(rj) = r.get_mut(d - k + j) {
-                    *rj = self.sub_c(*rj, self.mul_c(c, bj));
-                }
+            let top = r.pop().unwrap_or(0);
+            let start = r.len() - k;
+            let c = self.mul_c(top, inv);
+            for (rj, &bj) in r.iter_mut().skip(start).zip(&b) {
+                *rj = self.sub_c(*rj, self.mul_c(c, bj));
             }
-            if let Some(slot) = q.get_mut(d - k) {
+            if let Some(slot) = q.get_mut(start) {
                 *slot = c;
             }
-            r.pop();
-            r = self.normalise(&r);
+            while r.last() == Some(&0) {
+                r.pop();
+            }
         }
         Some((self.normalise(&q), r))
     }
@@ -166,6 +190,59 @@ impl Fp {
         self.monic(&a)
     }
 
+    /// `r ← a · b mod g` for `g` monic of degree `k` and `a`, `b` with
+    /// entries in `[0, p)`; `r` is reused, so square and multiply allocates
+    /// nothing after its first steps. `len a · len b` products, then at
+    /// most `len a + len b` reduction passes of `k` steps each.
+    fn mul_mod(self, a: &[u64], b: &[u64], g: &[u64], r: &mut Vec<u64>) {
+        r.clear();
+        r.resize((a.len() + b.len()).saturating_sub(1), 0);
+        for (i, &x) in a.iter().enumerate() {
+            for (c, &y) in r.iter_mut().skip(i).zip(b) {
+                *c = self.add_c(*c, self.mul_c(x, y));
+            }
+        }
+        let k = g.len().saturating_sub(1);
+        // Each pass takes off the top coefficient t of degree d and
+        // subtracts t·x^(d-k)·g without its (cancelling) leading term.
+        while r.len() > k {
+            let top = r.pop().unwrap_or(0);
+            let start = r.len() - k;
+            for (c, &gj) in r.iter_mut().skip(start).zip(g) {
+                *c = self.sub_c(*c, self.mul_c(top, gj));
+            }
+        }
+        while r.last() == Some(&0) {
+            r.pop();
+        }
+    }
+
+    /// `base^e mod g` by square and multiply over the `bits` low bits of
+    /// `e`, `bit(i)` giving bit `i`; `None` as [`Fp::divrem`]. `bits`
+    /// squarings and at most `bits` products mod `g`, each `O(deg(g)^2)`
+    /// steps. The remainder mod `g` is the one mod `g` made monic.
+    fn pow_bits(
+        self,
+        base: &[u64],
+        g: &[u64],
+        bits: u32,
+        bit: impl Fn(u32) -> bool,
+    ) -> Option<Vec<u64>> {
+        let g = self.monic(g)?;
+        let base = self.rem(base, &g)?;
+        let mut acc = self.rem(&[1], &g)?;
+        let mut next = Vec::with_capacity(2 * g.len());
+        for i in (0..bits).rev() {
+            self.mul_mod(&acc, &acc, &g, &mut next);
+            std::mem::swap(&mut acc, &mut next);
+            if bit(i) {
+                self.mul_mod(&acc, &base, &g, &mut next);
+                std::mem::swap(&mut acc, &mut next);
+            }
+        }
+        Some(acc)
+    }
+
     /// `base^e mod g` by square and multiply, for `e ≥ 0` (`None` if
     /// negative, or as [`Fp::divrem`]). `2·bits(e)` multiplications and
     /// reductions mod `g`, each `O(deg(g)^2)` steps.
@@ -173,20 +250,13 @@ impl Fp {
         if *e < 0 {
             return None;
         }
-        let base = self.rem(base, g)?;
-        let mut acc = self.rem(&[1], g)?;
-        for i in (0..e.significant_bits()).rev() {
-            acc = self.rem(&self.mul(&acc, &acc), g)?;
-            if e.get_bit(i) {
-                acc = self.rem(&self.mul(&acc, &base), g)?;
-            }
-        }
-        Some(acc)
+        self.pow_bits(base, g, e.significant_bits(), |i| e.get_bit(i))
     }
 
-    /// `a^p mod g` (the Frobenius), as [`Fp::powmod`] with 64-bit `e`.
+    /// `a^p mod g` (the Frobenius), as [`Fp::powmod`] with `e = p`.
     fn frobenius(self, a: &[u64], g: &[u64]) -> Option<Vec<u64>> {
-        self.powmod(a, &Integer::from(self.p), g)
+        let p = self.p;
+        self.pow_bits(a, g, 64 - p.leading_zeros(), |i| (p >> i) & 1 == 1)
     }
 
     /// Distinct-degree factorisation of a squarefree `f` of degree `n ≥ 1`

@@ -7,8 +7,12 @@
 //! rows), so every function is plain Gaussian elimination: at most
 //! `rows · width · (rows + width)` operations modulo `p`. That `p` is prime
 //! is the caller's to know; a composite `p` shows up as a pivot with no
-//! inverse, and the answer is `None`, never a panic.
+//! inverse, and the answer is `None`, never a panic. For `p < 2^63` the
+//! elimination runs on machine words ([`Fp`]), otherwise on [`Integer`]s;
+//! both take the same pivots, so they give the same answers.
 
+use super::fppoly::Fp;
+use crate::arith::mod_small;
 use rug::Integer;
 
 /// `v mod p`, entries in `[0, p)`, for `p ≥ 1`; for `p < 1`, where no
@@ -39,6 +43,17 @@ pub fn echelon(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> 
     if !same_width(rows, width) {
         return None;
     }
+    if let Some(k) = p.to_u64().and_then(Fp::new) {
+        let m = rows.iter().map(|r| r.iter().map(|c| mod_small(c, k.p())));
+        let e = echelon_words(m.map(Iterator::collect).collect(), k)?;
+        let big = |r: Vec<u64>| r.into_iter().map(Integer::from).collect();
+        return Some(e.into_iter().map(big).collect());
+    }
+    echelon_big(rows, p, width)
+}
+
+/// [`echelon`] on [`Integer`]s, for rows of length `width` and `p ≥ 2`.
+fn echelon_big(rows: &[Vec<Integer>], p: &Integer, width: usize) -> Option<Vec<Vec<Integer>>> {
     let mut m: Vec<Vec<Integer>> = rows.iter().map(|r| reduce(r, p)).collect();
     let mut rank = 0;
     for col in 0..width {
@@ -63,6 +78,39 @@ pub fn echelon(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> 
             if c != 0 {
                 for (x, y) in r.iter_mut().zip(&pivot) {
                     *x = Integer::from(&*x - &c * y).modulo(p);
+                }
+            }
+        }
+        rank += 1;
+    }
+    m.truncate(rank);
+    Some(m)
+}
+
+/// [`echelon`] of rows of one length with entries in `[0, p)`, `p` the
+/// modulus of `k`. The pivot row is 0 left of `col` (all rows from `rank`
+/// on are), so scaling and elimination start at `col`.
+fn echelon_words(mut m: Vec<Vec<u64>>, k: Fp) -> Option<Vec<Vec<u64>>> {
+    let width = m.first().map_or(0, Vec::len);
+    let mut rank = 0;
+    for col in 0..width {
+        let nonzero = |r: &Vec<u64>| r.get(col).is_some_and(|&c| c != 0);
+        let Some(found) = (rank..m.len()).find(|&i| m.get(i).is_some_and(nonzero)) else {
+            continue;
+        };
+        // rank ≤ found < m.len(): both in range.
+        m.swap(rank, found);
+        let row = m.get_mut(rank)?;
+        let inv = k.inv_c(*row.get(col)?)?;
+        for c in row.iter_mut().skip(col) {
+            *c = k.mul_c(*c, inv);
+        }
+        let pivot = row.clone();
+        for (i, r) in m.iter_mut().enumerate() {
+            let c = r.get(col).copied().unwrap_or(0);
+            if i != rank && c != 0 {
+                for (x, &y) in r.iter_mut().zip(&pivot).skip(col) {
+                    *x = k.sub_c(*x, k.mul_c(c, y));
                 }
             }
         }
