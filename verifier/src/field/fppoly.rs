@@ -63,17 +63,17 @@ impl Fp {
     }
 
     /// `a^(-1) mod p` by the extended Euclidean algorithm (`O(log p)`
-    /// steps); `None` if `gcd(a, p) ≠ 1`.
+    /// steps; remainders in `u64`, cofactors, at most `p` in size, in
+    /// `i128`); `None` if `gcd(a, p) ≠ 1`.
     pub(crate) fn inv_c(self, a: u64) -> Option<u64> {
-        let p = i128::from(self.p);
-        let (mut r0, mut r1) = (p, i128::from(a % self.p));
+        let (mut r0, mut r1) = (self.p, a % self.p);
         let (mut t0, mut t1) = (0i128, 1i128);
         while r1 != 0 {
             let q = r0 / r1;
             (r0, r1) = (r1, r0 - q * r1);
-            (t0, t1) = (t1, t0 - q * t1);
+            (t0, t1) = (t1, t0 - i128::from(q) * t1);
         }
-        (r0 == 1).then(|| t0.rem_euclid(p) as u64)
+        (r0 == 1).then(|| t0.rem_euclid(i128::from(self.p)) as u64)
     }
 
     /// Reduces the coefficients mod `p` and drops high zeros; `len a` steps.
@@ -253,18 +253,41 @@ impl Fp {
         self.pow_bits(base, g, e.significant_bits(), |i| e.get_bit(i))
     }
 
-    /// `a^p mod g` (the Frobenius), as [`Fp::powmod`] with `e = p`.
-    fn frobenius(self, a: &[u64], g: &[u64]) -> Option<Vec<u64>> {
+    /// `x^p mod g`, as [`Fp::powmod`] with `e = p`.
+    fn x_to_p(self, g: &[u64]) -> Option<Vec<u64>> {
         let p = self.p;
-        self.pow_bits(a, g, 64 - p.leading_zeros(), |i| (p >> i) & 1 == 1)
+        self.pow_bits(&X, g, 64 - p.leading_zeros(), |i| (p >> i) & 1 == 1)
+    }
+
+    /// `v^p mod g` for `g` monic of degree `≥ 1`, `v` reduced mod `g` and
+    /// `xp = x^p mod g`: for `p` prime, `v(x)^p = v(x^p)` in `F_p[x]` (the
+    /// `p`-th power is additive and fixes `F_p`), so Horner's rule gives
+    /// it in `len v` products mod `g` (J. von zur Gathen and V. Shoup,
+    /// "Computing Frobenius maps and factoring polynomials", Comput.
+    /// Complexity 2 (1992); common practice).
+    fn frobenius(self, v: &[u64], xp: &[u64], g: &[u64]) -> Vec<u64> {
+        let (mut acc, mut next) = (Vec::new(), Vec::new());
+        for &c in v.iter().rev() {
+            self.mul_mod(&acc, xp, g, &mut next);
+            match next.first_mut() {
+                Some(c0) => *c0 = self.add_c(*c0, c),
+                None => next.push(c),
+            }
+            while next.last() == Some(&0) {
+                next.pop();
+            }
+            std::mem::swap(&mut acc, &mut next);
+        }
+        acc
     }
 
     /// Distinct-degree factorisation of a squarefree `f` of degree `n ≥ 1`
     /// (H. Cohen, GTM 138, Algorithm 3.4.3): for each `d` with irreducible
     /// factors of degree `d`, the pair `(d, A_d)` with `A_d` the monic
     /// product of those factors, `d` increasing. `None` if `f` is zero,
-    /// constant or not squarefree (`gcd(f, f') ≠ 1`). At most `n/2 + 1`
-    /// Frobenius powers mod a divisor of `f` and as many gcds.
+    /// constant or not squarefree (`gcd(f, f') ≠ 1`). One `x^p mod f`
+    /// ([`Fp::powmod`]), then at most `n/2` Frobenius steps of `n`
+    /// products mod a divisor of `f` ([`Fp::frobenius`]) and as many gcds.
     pub fn distinct_degree(self, f: &[u64]) -> Option<Vec<(usize, Vec<u64>)>> {
         let mut w = self.monic(f)?;
         let n = w.len().checked_sub(1).filter(|&n| n >= 1)?;
@@ -277,6 +300,7 @@ impl Fp {
         if self.gcd(&w, &deriv)?.len() != 1 {
             return None;
         }
+        let mut xp = self.x_to_p(&w)?;
         let mut v = X.to_vec();
         let mut out = Vec::new();
         for d in 1..=n {
@@ -287,11 +311,12 @@ impl Fp {
                 }
                 break;
             }
-            v = self.frobenius(&v, &w)?;
+            v = self.frobenius(&v, &xp, &w);
             let a_d = self.gcd(&self.sub(&v, &X), &w)?;
             if a_d.len() > 1 {
                 w = self.divrem(&w, &a_d)?.0;
                 v = self.rem(&v, &w)?;
+                xp = self.rem(&xp, &w)?;
                 out.push((d, a_d));
             }
         }
@@ -323,16 +348,17 @@ impl Fp {
     /// Rabin's test: `g` of degree `f ≥ 1` is irreducible iff
     /// `g | x^(p^f) - x` and `gcd(x^(p^(f/q)) - x, g) = 1` for each prime
     /// `q | f` (M. O. Rabin, SIAM J. Comput. 9 (1980); common practice).
-    /// `None` if `g` is zero or constant. `f` Frobenius powers mod `g`,
-    /// one gcd per prime factor of `f`.
+    /// `None` if `g` is zero or constant. One `x^p mod g`, `f` Frobenius
+    /// steps mod `g` ([`Fp::frobenius`]), one gcd per prime factor of `f`.
     pub fn is_irreducible(self, g: &[u64]) -> Option<bool> {
         let g = self.monic(g)?;
         let f = g.len().checked_sub(1).filter(|&f| f >= 1)?;
         let x = self.rem(&X, &g)?;
         // powers[k] = x^(p^k) mod g, k = 0..=f
+        let xp = self.x_to_p(&g)?;
         let mut powers = vec![x.clone()];
         for _ in 0..f {
-            let next = self.frobenius(powers.last()?, &g)?;
+            let next = self.frobenius(powers.last()?, &xp, &g);
             powers.push(next);
         }
         if powers.last() != Some(&x) {
@@ -576,8 +602,9 @@ mod tests {
             slow = k.rem(&k.mul(&slow, &X), &g).unwrap();
         }
         let mut frob = X.to_vec();
+        let xp = k.x_to_p(&g).unwrap();
         for j in 1..=8u32 {
-            frob = k.frobenius(&frob, &g).unwrap();
+            frob = k.frobenius(&frob, &xp, &g);
             let e = Integer::from(13).pow(j);
             assert_eq!(k.powmod(&X, &e, &g), Some(frob.clone()));
         }
