@@ -137,29 +137,36 @@ impl Fp {
         self.normalise(&out)
     }
 
-    /// `(q, r)` with `a = q·b + r`, `deg r < deg b`; `None` if `b` is zero
-    /// or its leading coefficient has no inverse. `len a · len b` steps.
-    pub fn divrem(self, a: &[u64], b: &[u64]) -> Option<(Vec<u64>, Vec<u64>)> {
-        let b = self.normalise(b);
+    /// `r ← r mod b` for normalised `r`, `b`, the quotient's coefficients
+    /// written into `q` (from degree 0) when given; `None` if `b` is zero
+    /// or its leading coefficient has no inverse. `len r · len b` steps.
+    fn rem_in_place(self, r: &mut Vec<u64>, b: &[u64], mut q: Option<&mut [u64]>) -> Option<()> {
         let k = b.len().checked_sub(1)?;
         let inv = self.inv_c(*b.last()?)?;
-        let mut r = self.normalise(a);
-        let mut q = vec![0u64; r.len().saturating_sub(k)];
-        // Each pass clears the top coefficient of r: at most len a passes.
+        // Each pass clears the top coefficient of r: at most len r passes.
         while r.len() > k {
             let top = r.pop().unwrap_or(0);
             let start = r.len() - k;
             let c = self.mul_c(top, inv);
-            for (rj, &bj) in r.iter_mut().skip(start).zip(&b) {
+            for (rj, &bj) in r.iter_mut().skip(start).zip(b) {
                 *rj = self.sub_c(*rj, self.mul_c(c, bj));
             }
-            if let Some(slot) = q.get_mut(start) {
+            if let Some(slot) = q.as_deref_mut().and_then(|q| q.get_mut(start)) {
                 *slot = c;
             }
             while r.last() == Some(&0) {
                 r.pop();
             }
         }
+        Some(())
+    }
+
+    /// `(q, r)` with `a = q·b + r`, `deg r < deg b`; `None` if `b` is zero
+    /// or its leading coefficient has no inverse. `len a · len b` steps.
+    pub fn divrem(self, a: &[u64], b: &[u64]) -> Option<(Vec<u64>, Vec<u64>)> {
+        let (b, mut r) = (self.normalise(b), self.normalise(a));
+        let mut q = vec![0u64; (r.len() + 1).saturating_sub(b.len())];
+        self.rem_in_place(&mut r, &b, Some(&mut q))?;
         Some((self.normalise(&q), r))
     }
 
@@ -180,9 +187,10 @@ impl Fp {
     /// `len b + 1` divisions of `len a · len b` steps.
     pub fn gcd(self, a: &[u64], b: &[u64]) -> Option<Vec<u64>> {
         let (mut a, mut b) = (self.normalise(a), self.normalise(b));
+        // Each pass lowers deg b: at most len b + 1 passes.
         while !b.is_empty() {
-            let r = self.rem(&a, &b)?;
-            a = std::mem::replace(&mut b, r);
+            self.rem_in_place(&mut a, &b, None)?;
+            std::mem::swap(&mut a, &mut b);
         }
         if a.is_empty() {
             return Some(a);

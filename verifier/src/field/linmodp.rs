@@ -25,7 +25,7 @@ pub fn reduce(v: &[Integer], p: &Integer) -> Vec<Integer> {
 }
 
 /// The rows of `m` all have length `width`.
-fn same_width(m: &[Vec<Integer>], width: usize) -> bool {
+fn same_width<T>(m: &[Vec<T>], width: usize) -> bool {
     m.iter().all(|r| r.len() == width)
 }
 
@@ -87,11 +87,14 @@ fn echelon_big(rows: &[Vec<Integer>], p: &Integer, width: usize) -> Option<Vec<V
     Some(m)
 }
 
-/// [`echelon`] of rows of one length with entries in `[0, p)`, `p` the
-/// modulus of `k`. The pivot row is 0 left of `col` (all rows from `rank`
-/// on are), so scaling and elimination start at `col`.
-fn echelon_words(mut m: Vec<Vec<u64>>, k: Fp) -> Option<Vec<Vec<u64>>> {
+/// [`echelon`] of rows with entries in `[0, p)`, `p` the modulus of `k`;
+/// `None` if the rows differ in length. The pivot row is 0 left of `col`
+/// (all rows from `rank` on are), so scaling and elimination start there.
+pub(crate) fn echelon_words(mut m: Vec<Vec<u64>>, k: Fp) -> Option<Vec<Vec<u64>>> {
     let width = m.first().map_or(0, Vec::len);
+    if !same_width(&m, width) {
+        return None;
+    }
     let mut rank = 0;
     for col in 0..width {
         let nonzero = |r: &Vec<u64>| r.get(col).is_some_and(|&c| c != 0);
@@ -136,28 +139,41 @@ pub fn rank(rows: &[Vec<Integer>], p: &Integer) -> Option<usize> {
 /// are independent as rows of `E`, so they span the left kernel. Their
 /// right parts are in reduced echelon form, since their pivots lie there.
 pub fn kernel(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
+    kernel_with(rows, |m| echelon(&m, p))
+}
+
+/// [`kernel`] for entries in `[0, p)`, `p` the modulus of `k`.
+pub(crate) fn kernel_words(rows: &[Vec<u64>], k: Fp) -> Option<Vec<Vec<u64>>> {
+    kernel_with(rows, |m| echelon_words(m, k))
+}
+
+/// [`kernel`] with the echelon form given by `echelon`.
+fn kernel_with<T: Clone + From<u8> + PartialEq>(
+    rows: &[Vec<T>],
+    echelon: impl FnOnce(Vec<Vec<T>>) -> Option<Vec<Vec<T>>>,
+) -> Option<Vec<Vec<T>>> {
     let width = rows.first().map_or(0, Vec::len);
     if !same_width(rows, width) {
         return None;
     }
     let count = rows.len();
-    let augmented: Vec<Vec<Integer>> = rows
+    let augmented: Vec<Vec<T>> = rows
         .iter()
         .enumerate()
         .map(|(i, r)| {
-            let unit = (0..count).map(|j| Integer::from(u8::from(i == j)));
+            let unit = (0..count).map(|j| T::from(u8::from(i == j)));
             r.iter().cloned().chain(unit).collect()
         })
         .collect();
-    let reduced = echelon(&augmented, p)?;
-    let mut out = Vec::new();
-    for row in reduced {
-        let (left, right) = row.split_at(width.min(row.len()));
-        if left.iter().all(|c| *c == 0) {
-            out.push(right.to_vec());
-        }
-    }
-    Some(out)
+    let zero = T::from(0);
+    let reduced = echelon(augmented)?.into_iter();
+    let left_zero = |row: &Vec<T>| row.iter().take(width).all(|c| *c == zero);
+    Some(
+        reduced
+            .filter(left_zero)
+            .map(|row| row.into_iter().skip(width).collect())
+            .collect(),
+    )
 }
 
 #[cfg(test)]
