@@ -27,11 +27,6 @@ impl Fp {
         (2..1 << 63).contains(&p).then_some(Fp { p })
     }
 
-    /// The modulus `p`.
-    pub fn p(self) -> u64 {
-        self.p
-    }
-
     /// `a + b mod p` for `a, b < p` (callers pass residues; wrapping keeps
     /// any other input from panicking).
     pub(crate) fn add_c(self, a: u64, b: u64) -> u64 {
@@ -390,7 +385,7 @@ impl Fp {
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
     use crate::arith::primes_up_to;
     use crate::field::TestRng;
@@ -625,5 +620,151 @@ mod tests {
         let (q, r) = k.divrem(&a, &[4, 3]).unwrap();
         assert_eq!(k.add(&k.mul(&q, &[4, 3]), &r), a);
         assert_eq!(k.sub(&a, &a), Vec::<u64>::new());
+    }
+
+    /// Primes on both sides of `2^32` and near `2^63`, for the machine-word
+    /// paths: `2^32 - 5`, `2^32 + 15`, `2^61 - 1`, `2^63 - 25` (from memory;
+    /// each is checked here by GMP's probable-prime test).
+    pub(crate) fn word_primes() -> Vec<u64> {
+        let ps = vec![
+            2,
+            3,
+            13,
+            65537,
+            (1 << 32) - 5,
+            (1 << 32) + 15,
+            (1 << 61) - 1,
+            (1 << 63) - 25,
+        ];
+        for &p in &ps {
+            assert_ne!(
+                Integer::from(p).is_probably_prime(30),
+                rug::integer::IsPrime::No
+            );
+        }
+        ps
+    }
+
+    /// `b^e mod p` by square and multiply in `u128` (the definition).
+    fn pow_u128(b: u64, mut e: u64, p: u64) -> u64 {
+        let (mut acc, mut b) = (1u128, u128::from(b) % u128::from(p));
+        while e > 0 {
+            if e & 1 == 1 {
+                acc = acc * b % u128::from(p);
+            }
+            b = b * b % u128::from(p);
+            e >>= 1;
+        }
+        acc as u64
+    }
+
+    #[test]
+    fn word_arithmetic_at_large_primes() {
+        // The u64 and u128 products, inverses, the in-place products mod g
+        // and the Frobenius by composition against the definitions: u128
+        // products, multiplication then division, and x^p, v^p by square
+        // and multiply.
+        let mut rng = TestRng::new(31);
+        for p in word_primes() {
+            let k = Fp::new(p).unwrap();
+            for _ in 0..200 {
+                let (a, b) = (rng.next() % p, rng.next() % p);
+                let small = (rng.next() >> 32) % p;
+                for (x, y) in [(a, b), (small, b), (small, small)] {
+                    let truth = (u128::from(x) * u128::from(y) % u128::from(p)) as u64;
+                    assert_eq!(k.mul_c(x, y), truth);
+                    assert_eq!(
+                        k.add_c(x, y),
+                        ((u128::from(x) + u128::from(y)) % u128::from(p)) as u64
+                    );
+                    assert_eq!(k.add_c(k.sub_c(x, y), y), x);
+                }
+                if a != 0 {
+                    assert_eq!(k.mul_c(a, k.inv_c(a).unwrap()), 1);
+                }
+            }
+            for _ in 0..40 {
+                let deg = rng.range(1, 7) as usize;
+                let mut g: Vec<u64> = (0..deg).map(|_| rng.next() % p).collect();
+                g.push(1);
+                let mut random = || -> Vec<u64> {
+                    let len = rng.range(0, deg as i64) as usize;
+                    k.normalise(&(0..len).map(|_| rng.next() % p).collect::<Vec<_>>())
+                };
+                let (a, b) = (random(), random());
+                let mut r = vec![7; 3];
+                k.mul_mod(&a, &b, &g, &mut r);
+                assert_eq!(r, k.rem(&k.mul(&a, &b), &g).unwrap());
+                let xp = k.x_to_p(&g).unwrap();
+                assert_eq!(Some(xp.clone()), k.powmod(&X, &Integer::from(p), &g));
+                assert_eq!(
+                    Some(k.frobenius(&a, &xp, &g)),
+                    k.powmod(&a, &Integer::from(p), &g)
+                );
+                // x^e for small e against repeated multiplication.
+                let mut slow = k.rem(&[1], &g).unwrap();
+                for e in 0..12u32 {
+                    assert_eq!(k.powmod(&X, &Integer::from(e), &g), Some(slow.clone()));
+                    slow = k.rem(&k.mul(&slow, &X), &g).unwrap();
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn patterns_of_known_products_at_large_primes() {
+        // F = Π (x - a_i) · Π (x^2 - r_j) · (x^3 - c), the a_i distinct,
+        // the r_j distinct non-squares mod p (Euler's criterion), and c a
+        // non-cube when p ≡ 1 mod 3 (then x^3 - c is irreducible; common
+        // practice). Its pattern is known by construction.
+        let mut rng = TestRng::new(32);
+        let mut seen = std::collections::BTreeSet::new();
+        for p in word_primes().into_iter().filter(|&p| p > 100) {
+            let k = Fp::new(p).unwrap();
+            for _ in 0..30 {
+                let mut f = vec![1u64];
+                let mut expect = Vec::new();
+                let mut roots = std::collections::BTreeSet::new();
+                for _ in 0..rng.range(0, 3) {
+                    let a = rng.next() % p;
+                    if roots.insert(a) {
+                        f = k.mul(&f, &[p - a, 1].map(|c| c % p));
+                        expect.push(1);
+                    }
+                }
+                let mut squares = std::collections::BTreeSet::new();
+                for _ in 0..rng.range(0, 2) {
+                    let r = 1 + rng.next() % (p - 1);
+                    if pow_u128(r, (p - 1) / 2, p) == p - 1 && squares.insert(r) {
+                        f = k.mul(&f, &[p - r, 0, 1]);
+                        expect.push(2);
+                    }
+                }
+                let c = 1 + rng.next() % (p - 1);
+                if p % 3 == 1 && pow_u128(c, (p - 1) / 3, p) != 1 {
+                    f = k.mul(&f, &[p - c, 0, 0, 1]);
+                    expect.push(3);
+                }
+                if f.len() < 2 {
+                    continue;
+                }
+                let big: Vec<Integer> = f.iter().map(|&c| Integer::from(c)).collect();
+                assert_eq!(
+                    k.degree_pattern(&big),
+                    Some(expect.clone()),
+                    "{f:?} mod {p}"
+                );
+                if expect.len() == 1 {
+                    assert_eq!(k.is_irreducible(&f), Some(true));
+                } else {
+                    assert_eq!(k.is_irreducible(&f), Some(false));
+                }
+                seen.insert(expect);
+            }
+        }
+        assert!(
+            seen.contains(&vec![1, 1, 2, 2, 3]) && seen.len() >= 10,
+            "{seen:?}"
+        );
     }
 }

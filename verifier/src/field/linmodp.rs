@@ -7,12 +7,11 @@
 //! rows), so every function is plain Gaussian elimination: at most
 //! `rows · width · (rows + width)` operations modulo `p`. That `p` is prime
 //! is the caller's to know; a composite `p` shows up as a pivot with no
-//! inverse, and the answer is `None`, never a panic. For `p < 2^63` the
-//! elimination runs on machine words ([`Fp`]), otherwise on [`Integer`]s;
-//! both take the same pivots, so they give the same answers.
+//! inverse, and the answer is `None`, never a panic. [`echelon_words`] and
+//! [`kernel_words`] do the same on machine words for `p < 2^63` ([`Fp`]),
+//! with the same pivots, so the same answers.
 
 use super::fppoly::Fp;
-use crate::arith::mod_small;
 use rug::Integer;
 
 /// `v mod p`, entries in `[0, p)`, for `p ≥ 1`; for `p < 1`, where no
@@ -43,17 +42,6 @@ pub fn echelon(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> 
     if !same_width(rows, width) {
         return None;
     }
-    if let Some(k) = p.to_u64().and_then(Fp::new) {
-        let m = rows.iter().map(|r| r.iter().map(|c| mod_small(c, k.p())));
-        let e = echelon_words(m.map(Iterator::collect).collect(), k)?;
-        let big = |r: Vec<u64>| r.into_iter().map(Integer::from).collect();
-        return Some(e.into_iter().map(big).collect());
-    }
-    echelon_big(rows, p, width)
-}
-
-/// [`echelon`] on [`Integer`]s, for rows of length `width` and `p ≥ 2`.
-fn echelon_big(rows: &[Vec<Integer>], p: &Integer, width: usize) -> Option<Vec<Vec<Integer>>> {
     let mut m: Vec<Vec<Integer>> = rows.iter().map(|r| reduce(r, p)).collect();
     let mut rank = 0;
     for col in 0..width {
@@ -312,6 +300,53 @@ pub(crate) mod tests {
             for x in &k {
                 assert_eq!(combine(x, &rows, &p, width), zero);
             }
+        }
+    }
+
+    #[test]
+    fn words_match_integers() {
+        // The machine-word echelon form and kernel against the Integer
+        // ones (the plain definitions above), on random matrices with
+        // dependent rows, for primes below and above 2^32 and near 2^63.
+        let mut rng = TestRng::new(22);
+        for p64 in crate::field::fppoly::tests::word_primes() {
+            let (k, p) = (Fp::new(p64).unwrap(), Integer::from(p64));
+            for _ in 0..60 {
+                let (rows_n, width) = (rng.range(1, 7) as usize, rng.range(1, 9) as usize);
+                let mut rows: Vec<Vec<u64>> = Vec::new();
+                for _ in 0..rows_n {
+                    let row: Vec<u64> = match (rows.len(), rng.range(0, 3)) {
+                        (2.., 0) => {
+                            let c = rng.next() % p64;
+                            rows[0]
+                                .iter()
+                                .zip(&rows[1])
+                                .map(|(&x, &y)| k.add_c(x, k.mul_c(c, y)))
+                                .collect()
+                        }
+                        (_, 1) => (0..width).map(|_| rng.next() % 3 % p64).collect(),
+                        _ => (0..width).map(|_| rng.next() % p64).collect(),
+                    };
+                    rows.push(row);
+                }
+                let big: Vec<Vec<Integer>> = rows
+                    .iter()
+                    .map(|r| r.iter().map(|&c| Integer::from(c)).collect())
+                    .collect();
+                let to_big = |m: Vec<Vec<u64>>| -> Vec<Vec<Integer>> {
+                    m.into_iter()
+                        .map(|r| r.into_iter().map(Integer::from).collect())
+                        .collect()
+                };
+                assert_eq!(
+                    echelon_words(rows.clone(), k).map(to_big),
+                    echelon(&big, &p)
+                );
+                assert_eq!(kernel_words(&rows, k).map(to_big), kernel(&big, &p));
+            }
+            let ragged = vec![vec![1, 2], vec![1]];
+            assert_eq!(echelon_words(ragged.clone(), k), None);
+            assert_eq!(kernel_words(&ragged, k), None);
         }
     }
 }
