@@ -27,30 +27,48 @@ impl Fp {
         (2..1 << 63).contains(&p).then_some(Fp { p })
     }
 
-    fn add_c(self, a: u64, b: u64) -> u64 {
-        (a % self.p + b % self.p) % self.p
+    /// `a + b mod p` for `a, b < p` (callers pass residues; wrapping keeps
+    /// any other input from panicking).
+    pub(crate) fn add_c(self, a: u64, b: u64) -> u64 {
+        let s = a.wrapping_add(b);
+        if s >= self.p {
+            s - self.p
+        } else {
+            s
+        }
     }
 
-    fn sub_c(self, a: u64, b: u64) -> u64 {
-        (a % self.p + self.p - b % self.p) % self.p
+    /// `a - b mod p` for `a, b < p`, as [`Fp::add_c`].
+    pub(crate) fn sub_c(self, a: u64, b: u64) -> u64 {
+        if a >= b {
+            a - b
+        } else {
+            a.wrapping_add(self.p.wrapping_sub(b))
+        }
     }
 
-    fn mul_c(self, a: u64, b: u64) -> u64 {
-        (u128::from(a) * u128::from(b) % u128::from(self.p)) as u64
+    /// `a · b mod p`, in `u64` when both are below `2^32` (always so for
+    /// residues of a `p < 2^32`), else in `u128`.
+    pub(crate) fn mul_c(self, a: u64, b: u64) -> u64 {
+        if (a | b) >> 32 == 0 {
+            a * b % self.p
+        } else {
+            (u128::from(a) * u128::from(b) % u128::from(self.p)) as u64
+        }
     }
 
     /// `a^(-1) mod p` by the extended Euclidean algorithm (`O(log p)`
-    /// steps); `None` if `gcd(a, p) ≠ 1`.
-    fn inv_c(self, a: u64) -> Option<u64> {
-        let p = i128::from(self.p);
-        let (mut r0, mut r1) = (p, i128::from(a % self.p));
+    /// steps; remainders in `u64`, cofactors, at most `p` in size, in
+    /// `i128`); `None` if `gcd(a, p) ≠ 1`.
+    pub(crate) fn inv_c(self, a: u64) -> Option<u64> {
+        let (mut r0, mut r1) = (self.p, a % self.p);
         let (mut t0, mut t1) = (0i128, 1i128);
         while r1 != 0 {
             let q = r0 / r1;
             (r0, r1) = (r1, r0 - q * r1);
-            (t0, t1) = (t1, t0 - q * t1);
+            (t0, t1) = (t1, t0 - i128::from(q) * t1);
         }
-        (r0 == 1).then(|| t0.rem_euclid(p) as u64)
+        (r0 == 1).then(|| t0.rem_euclid(i128::from(self.p)) as u64)
     }
 
     /// Reduces the coefficients mod `p` and drops high zeros; `len a` steps.
@@ -70,6 +88,7 @@ impl Fp {
 
     /// `a + b`, or `a - b` if `negate`; `max(len a, len b)` steps.
     fn add_signed(self, a: &[u64], b: &[u64], negate: bool) -> Vec<u64> {
+        let (a, b) = (self.normalise(a), self.normalise(b));
         let n = a.len().max(b.len());
         let out: Vec<u64> = (0..n)
             .map(|i| {
@@ -113,29 +132,36 @@ impl Fp {
         self.normalise(&out)
     }
 
+    /// `r ← r mod b` for normalised `r`, `b`, the quotient's coefficients
+    /// written into `q` (from degree 0) when given; `None` if `b` is zero
+    /// or its leading coefficient has no inverse. `len r · len b` steps.
+    fn rem_in_place(self, r: &mut Vec<u64>, b: &[u64], mut q: Option<&mut [u64]>) -> Option<()> {
+        let k = b.len().checked_sub(1)?;
+        let inv = self.inv_c(*b.last()?)?;
+        // Each pass clears the top coefficient of r: at most len r passes.
+        while r.len() > k {
+            let top = r.pop().unwrap_or(0);
+            let start = r.len() - k;
+            let c = self.mul_c(top, inv);
+            for (rj, &bj) in r.iter_mut().skip(start).zip(b) {
+                *rj = self.sub_c(*rj, self.mul_c(c, bj));
+            }
+            if let Some(slot) = q.as_deref_mut().and_then(|q| q.get_mut(start)) {
+                *slot = c;
+            }
+            while r.last() == Some(&0) {
+                r.pop();
+            }
+        }
+        Some(())
+    }
+
     /// `(q, r)` with `a = q·b + r`, `deg r < deg b`; `None` if `b` is zero
     /// or its leading coefficient has no inverse. `len a · len b` steps.
     pub fn divrem(self, a: &[u64], b: &[u64]) -> Option<(Vec<u64>, Vec<u64>)> {
-        let b = self.normalise(b);
-        let k = b.len().checked_sub(1)?;
-        let inv = self.inv_c(*b.last()?)?;
-        let mut r = self.normalise(a);
-        let mut q = vec![0u64; r.len().saturating_sub(k)];
-        // Each pass clears the top coefficient of r: at most len a passes.
-        while r.len() > k {
-            let d = r.len() - 1;
-            let c = self.mul_c(r.last().copied().unwrap_or(0), inv);
-            for (j, &bj) in b.iter().enumerate() {
-                if let Some(rj) = r.get_mut(d - k + j) {
-                    *rj = self.sub_c(*rj, self.mul_c(c, bj));
-                }
-            }
-            if let Some(slot) = q.get_mut(d - k) {
-                *slot = c;
-            }
-            r.pop();
-            r = self.normalise(&r);
-        }
+        let (b, mut r) = (self.normalise(b), self.normalise(a));
+        let mut q = vec![0u64; (r.len() + 1).saturating_sub(b.len())];
+        self.rem_in_place(&mut r, &b, Some(&mut q))?;
         Some((self.normalise(&q), r))
     }
 
@@ -156,14 +182,68 @@ impl Fp {
     /// `len b + 1` divisions of `len a · len b` steps.
     pub fn gcd(self, a: &[u64], b: &[u64]) -> Option<Vec<u64>> {
         let (mut a, mut b) = (self.normalise(a), self.normalise(b));
+        // Each pass lowers deg b: at most len b + 1 passes.
         while !b.is_empty() {
-            let r = self.rem(&a, &b)?;
-            a = std::mem::replace(&mut b, r);
+            self.rem_in_place(&mut a, &b, None)?;
+            std::mem::swap(&mut a, &mut b);
         }
         if a.is_empty() {
             return Some(a);
         }
         self.monic(&a)
+    }
+
+    /// `r ← a · b mod g` for `g` monic of degree `k` and `a`, `b` with
+    /// entries in `[0, p)`; `r` is reused, so square and multiply allocates
+    /// nothing after its first steps. `len a · len b` products, then at
+    /// most `len a + len b` reduction passes of `k` steps each.
+    fn mul_mod(self, a: &[u64], b: &[u64], g: &[u64], r: &mut Vec<u64>) {
+        r.clear();
+        r.resize((a.len() + b.len()).saturating_sub(1), 0);
+        for (i, &x) in a.iter().enumerate() {
+            for (c, &y) in r.iter_mut().skip(i).zip(b) {
+                *c = self.add_c(*c, self.mul_c(x, y));
+            }
+        }
+        let k = g.len().saturating_sub(1);
+        // Each pass takes off the top coefficient t of degree d and
+        // subtracts t·x^(d-k)·g without its (cancelling) leading term.
+        while r.len() > k {
+            let top = r.pop().unwrap_or(0);
+            let start = r.len() - k;
+            for (c, &gj) in r.iter_mut().skip(start).zip(g) {
+                *c = self.sub_c(*c, self.mul_c(top, gj));
+            }
+        }
+        while r.last() == Some(&0) {
+            r.pop();
+        }
+    }
+
+    /// `base^e mod g` by square and multiply over the `bits` low bits of
+    /// `e`, `bit(i)` giving bit `i`; `None` as [`Fp::divrem`]. `bits`
+    /// squarings and at most `bits` products mod `g`, each `O(deg(g)^2)`
+    /// steps. The remainder mod `g` is the one mod `g` made monic.
+    fn pow_bits(
+        self,
+        base: &[u64],
+        g: &[u64],
+        bits: u32,
+        bit: impl Fn(u32) -> bool,
+    ) -> Option<Vec<u64>> {
+        let g = self.monic(g)?;
+        let base = self.rem(base, &g)?;
+        let mut acc = self.rem(&[1], &g)?;
+        let mut next = Vec::with_capacity(2 * g.len());
+        for i in (0..bits).rev() {
+            self.mul_mod(&acc, &acc, &g, &mut next);
+            std::mem::swap(&mut acc, &mut next);
+            if bit(i) {
+                self.mul_mod(&acc, &base, &g, &mut next);
+                std::mem::swap(&mut acc, &mut next);
+            }
+        }
+        Some(acc)
     }
 
     /// `base^e mod g` by square and multiply, for `e ≥ 0` (`None` if
@@ -173,28 +253,44 @@ impl Fp {
         if *e < 0 {
             return None;
         }
-        let base = self.rem(base, g)?;
-        let mut acc = self.rem(&[1], g)?;
-        for i in (0..e.significant_bits()).rev() {
-            acc = self.rem(&self.mul(&acc, &acc), g)?;
-            if e.get_bit(i) {
-                acc = self.rem(&self.mul(&acc, &base), g)?;
-            }
-        }
-        Some(acc)
+        self.pow_bits(base, g, e.significant_bits(), |i| e.get_bit(i))
     }
 
-    /// `a^p mod g` (the Frobenius), as [`Fp::powmod`] with 64-bit `e`.
-    fn frobenius(self, a: &[u64], g: &[u64]) -> Option<Vec<u64>> {
-        self.powmod(a, &Integer::from(self.p), g)
+    /// `x^p mod g`, as [`Fp::powmod`] with `e = p`.
+    fn x_to_p(self, g: &[u64]) -> Option<Vec<u64>> {
+        let p = self.p;
+        self.pow_bits(&X, g, 64 - p.leading_zeros(), |i| (p >> i) & 1 == 1)
+    }
+
+    /// `v^p mod g` for `g` monic of degree `≥ 1`, `v` reduced mod `g` and
+    /// `xp = x^p mod g`: for `p` prime, `v(x)^p = v(x^p)` in `F_p[x]` (the
+    /// `p`-th power is additive and fixes `F_p`), so Horner's rule gives
+    /// it in `len v` products mod `g` (J. von zur Gathen and V. Shoup,
+    /// "Computing Frobenius maps and factoring polynomials", Comput.
+    /// Complexity 2 (1992); common practice).
+    fn frobenius(self, v: &[u64], xp: &[u64], g: &[u64]) -> Vec<u64> {
+        let (mut acc, mut next) = (Vec::new(), Vec::new());
+        for &c in v.iter().rev() {
+            self.mul_mod(&acc, xp, g, &mut next);
+            match next.first_mut() {
+                Some(c0) => *c0 = self.add_c(*c0, c),
+                None => next.push(c),
+            }
+            while next.last() == Some(&0) {
+                next.pop();
+            }
+            std::mem::swap(&mut acc, &mut next);
+        }
+        acc
     }
 
     /// Distinct-degree factorisation of a squarefree `f` of degree `n ≥ 1`
     /// (H. Cohen, GTM 138, Algorithm 3.4.3): for each `d` with irreducible
     /// factors of degree `d`, the pair `(d, A_d)` with `A_d` the monic
     /// product of those factors, `d` increasing. `None` if `f` is zero,
-    /// constant or not squarefree (`gcd(f, f') ≠ 1`). At most `n/2 + 1`
-    /// Frobenius powers mod a divisor of `f` and as many gcds.
+    /// constant or not squarefree (`gcd(f, f') ≠ 1`). One `x^p mod f`
+    /// ([`Fp::powmod`]), then at most `n/2` Frobenius steps of `n`
+    /// products mod a divisor of `f` ([`Fp::frobenius`]) and as many gcds.
     pub fn distinct_degree(self, f: &[u64]) -> Option<Vec<(usize, Vec<u64>)>> {
         let mut w = self.monic(f)?;
         let n = w.len().checked_sub(1).filter(|&n| n >= 1)?;
@@ -207,6 +303,7 @@ impl Fp {
         if self.gcd(&w, &deriv)?.len() != 1 {
             return None;
         }
+        let mut xp = self.x_to_p(&w)?;
         let mut v = X.to_vec();
         let mut out = Vec::new();
         for d in 1..=n {
@@ -217,11 +314,12 @@ impl Fp {
                 }
                 break;
             }
-            v = self.frobenius(&v, &w)?;
+            v = self.frobenius(&v, &xp, &w);
             let a_d = self.gcd(&self.sub(&v, &X), &w)?;
             if a_d.len() > 1 {
                 w = self.divrem(&w, &a_d)?.0;
                 v = self.rem(&v, &w)?;
+                xp = self.rem(&xp, &w)?;
                 out.push((d, a_d));
             }
         }
@@ -253,16 +351,17 @@ impl Fp {
     /// Rabin's test: `g` of degree `f ≥ 1` is irreducible iff
     /// `g | x^(p^f) - x` and `gcd(x^(p^(f/q)) - x, g) = 1` for each prime
     /// `q | f` (M. O. Rabin, SIAM J. Comput. 9 (1980); common practice).
-    /// `None` if `g` is zero or constant. `f` Frobenius powers mod `g`,
-    /// one gcd per prime factor of `f`.
+    /// `None` if `g` is zero or constant. One `x^p mod g`, `f` Frobenius
+    /// steps mod `g` ([`Fp::frobenius`]), one gcd per prime factor of `f`.
     pub fn is_irreducible(self, g: &[u64]) -> Option<bool> {
         let g = self.monic(g)?;
         let f = g.len().checked_sub(1).filter(|&f| f >= 1)?;
         let x = self.rem(&X, &g)?;
         // powers[k] = x^(p^k) mod g, k = 0..=f
+        let xp = self.x_to_p(&g)?;
         let mut powers = vec![x.clone()];
         for _ in 0..f {
-            let next = self.frobenius(powers.last()?, &g)?;
+            let next = self.frobenius(powers.last()?, &xp, &g);
             powers.push(next);
         }
         if powers.last() != Some(&x) {
@@ -286,7 +385,7 @@ impl Fp {
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
     use crate::arith::primes_up_to;
     use crate::field::TestRng;
@@ -506,8 +605,9 @@ mod tests {
             slow = k.rem(&k.mul(&slow, &X), &g).unwrap();
         }
         let mut frob = X.to_vec();
+        let xp = k.x_to_p(&g).unwrap();
         for j in 1..=8u32 {
-            frob = k.frobenius(&frob, &g).unwrap();
+            frob = k.frobenius(&frob, &xp, &g);
             let e = Integer::from(13).pow(j);
             assert_eq!(k.powmod(&X, &e, &g), Some(frob.clone()));
         }
@@ -520,5 +620,151 @@ mod tests {
         let (q, r) = k.divrem(&a, &[4, 3]).unwrap();
         assert_eq!(k.add(&k.mul(&q, &[4, 3]), &r), a);
         assert_eq!(k.sub(&a, &a), Vec::<u64>::new());
+    }
+
+    /// Primes on both sides of `2^32` and near `2^63`, for the machine-word
+    /// paths: `2^32 - 5`, `2^32 + 15`, `2^61 - 1`, `2^63 - 25` (from memory;
+    /// each is checked here by GMP's probable-prime test).
+    pub(crate) fn word_primes() -> Vec<u64> {
+        let ps = vec![
+            2,
+            3,
+            13,
+            65537,
+            (1 << 32) - 5,
+            (1 << 32) + 15,
+            (1 << 61) - 1,
+            (1 << 63) - 25,
+        ];
+        for &p in &ps {
+            assert_ne!(
+                Integer::from(p).is_probably_prime(30),
+                rug::integer::IsPrime::No
+            );
+        }
+        ps
+    }
+
+    /// `b^e mod p` by square and multiply in `u128` (the definition).
+    fn pow_u128(b: u64, mut e: u64, p: u64) -> u64 {
+        let (mut acc, mut b) = (1u128, u128::from(b) % u128::from(p));
+        while e > 0 {
+            if e & 1 == 1 {
+                acc = acc * b % u128::from(p);
+            }
+            b = b * b % u128::from(p);
+            e >>= 1;
+        }
+        acc as u64
+    }
+
+    #[test]
+    fn word_arithmetic_at_large_primes() {
+        // The u64 and u128 products, inverses, the in-place products mod g
+        // and the Frobenius by composition against the definitions: u128
+        // products, multiplication then division, and x^p, v^p by square
+        // and multiply.
+        let mut rng = TestRng::new(31);
+        for p in word_primes() {
+            let k = Fp::new(p).unwrap();
+            for _ in 0..200 {
+                let (a, b) = (rng.next() % p, rng.next() % p);
+                let small = (rng.next() >> 32) % p;
+                for (x, y) in [(a, b), (small, b), (small, small)] {
+                    let truth = (u128::from(x) * u128::from(y) % u128::from(p)) as u64;
+                    assert_eq!(k.mul_c(x, y), truth);
+                    assert_eq!(
+                        k.add_c(x, y),
+                        ((u128::from(x) + u128::from(y)) % u128::from(p)) as u64
+                    );
+                    assert_eq!(k.add_c(k.sub_c(x, y), y), x);
+                }
+                if a != 0 {
+                    assert_eq!(k.mul_c(a, k.inv_c(a).unwrap()), 1);
+                }
+            }
+            for _ in 0..40 {
+                let deg = rng.range(1, 7) as usize;
+                let mut g: Vec<u64> = (0..deg).map(|_| rng.next() % p).collect();
+                g.push(1);
+                let mut random = || -> Vec<u64> {
+                    let len = rng.range(0, deg as i64) as usize;
+                    k.normalise(&(0..len).map(|_| rng.next() % p).collect::<Vec<_>>())
+                };
+                let (a, b) = (random(), random());
+                let mut r = vec![7; 3];
+                k.mul_mod(&a, &b, &g, &mut r);
+                assert_eq!(r, k.rem(&k.mul(&a, &b), &g).unwrap());
+                let xp = k.x_to_p(&g).unwrap();
+                assert_eq!(Some(xp.clone()), k.powmod(&X, &Integer::from(p), &g));
+                assert_eq!(
+                    Some(k.frobenius(&a, &xp, &g)),
+                    k.powmod(&a, &Integer::from(p), &g)
+                );
+                // x^e for small e against repeated multiplication.
+                let mut slow = k.rem(&[1], &g).unwrap();
+                for e in 0..12u32 {
+                    assert_eq!(k.powmod(&X, &Integer::from(e), &g), Some(slow.clone()));
+                    slow = k.rem(&k.mul(&slow, &X), &g).unwrap();
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn patterns_of_known_products_at_large_primes() {
+        // F = Π (x - a_i) · Π (x^2 - r_j) · (x^3 - c), the a_i distinct,
+        // the r_j distinct non-squares mod p (Euler's criterion), and c a
+        // non-cube when p ≡ 1 mod 3 (then x^3 - c is irreducible; common
+        // practice). Its pattern is known by construction.
+        let mut rng = TestRng::new(32);
+        let mut seen = std::collections::BTreeSet::new();
+        for p in word_primes().into_iter().filter(|&p| p > 100) {
+            let k = Fp::new(p).unwrap();
+            for _ in 0..30 {
+                let mut f = vec![1u64];
+                let mut expect = Vec::new();
+                let mut roots = std::collections::BTreeSet::new();
+                for _ in 0..rng.range(0, 3) {
+                    let a = rng.next() % p;
+                    if roots.insert(a) {
+                        f = k.mul(&f, &[p - a, 1].map(|c| c % p));
+                        expect.push(1);
+                    }
+                }
+                let mut squares = std::collections::BTreeSet::new();
+                for _ in 0..rng.range(0, 2) {
+                    let r = 1 + rng.next() % (p - 1);
+                    if pow_u128(r, (p - 1) / 2, p) == p - 1 && squares.insert(r) {
+                        f = k.mul(&f, &[p - r, 0, 1]);
+                        expect.push(2);
+                    }
+                }
+                let c = 1 + rng.next() % (p - 1);
+                if p % 3 == 1 && pow_u128(c, (p - 1) / 3, p) != 1 {
+                    f = k.mul(&f, &[p - c, 0, 0, 1]);
+                    expect.push(3);
+                }
+                if f.len() < 2 {
+                    continue;
+                }
+                let big: Vec<Integer> = f.iter().map(|&c| Integer::from(c)).collect();
+                assert_eq!(
+                    k.degree_pattern(&big),
+                    Some(expect.clone()),
+                    "{f:?} mod {p}"
+                );
+                if expect.len() == 1 {
+                    assert_eq!(k.is_irreducible(&f), Some(true));
+                } else {
+                    assert_eq!(k.is_irreducible(&f), Some(false));
+                }
+                seen.insert(expect);
+            }
+        }
+        assert!(
+            seen.contains(&vec![1, 1, 2, 2, 3]) && seen.len() >= 10,
+            "{seen:?}"
+        );
     }
 }

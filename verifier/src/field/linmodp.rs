@@ -7,8 +7,11 @@
 //! rows), so every function is plain Gaussian elimination: at most
 //! `rows · width · (rows + width)` operations modulo `p`. That `p` is prime
 //! is the caller's to know; a composite `p` shows up as a pivot with no
-//! inverse, and the answer is `None`, never a panic.
+//! inverse, and the answer is `None`, never a panic. [`echelon_words`] and
+//! [`kernel_words`] do the same on machine words for `p < 2^63` ([`Fp`]),
+//! with the same pivots, so the same answers.
 
+use super::fppoly::Fp;
 use rug::Integer;
 
 /// `v mod p`, entries in `[0, p)`, for `p ≥ 1`; for `p < 1`, where no
@@ -21,7 +24,7 @@ pub fn reduce(v: &[Integer], p: &Integer) -> Vec<Integer> {
 }
 
 /// The rows of `m` all have length `width`.
-fn same_width(m: &[Vec<Integer>], width: usize) -> bool {
+fn same_width<T>(m: &[Vec<T>], width: usize) -> bool {
     m.iter().all(|r| r.len() == width)
 }
 
@@ -72,6 +75,42 @@ pub fn echelon(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> 
     Some(m)
 }
 
+/// [`echelon`] of rows with entries in `[0, p)`, `p` the modulus of `k`;
+/// `None` if the rows differ in length. The pivot row is 0 left of `col`
+/// (all rows from `rank` on are), so scaling and elimination start there.
+pub(crate) fn echelon_words(mut m: Vec<Vec<u64>>, k: Fp) -> Option<Vec<Vec<u64>>> {
+    let width = m.first().map_or(0, Vec::len);
+    if !same_width(&m, width) {
+        return None;
+    }
+    let mut rank = 0;
+    for col in 0..width {
+        let nonzero = |r: &Vec<u64>| r.get(col).is_some_and(|&c| c != 0);
+        let Some(found) = (rank..m.len()).find(|&i| m.get(i).is_some_and(nonzero)) else {
+            continue;
+        };
+        // rank ≤ found < m.len(): both in range.
+        m.swap(rank, found);
+        let row = m.get_mut(rank)?;
+        let inv = k.inv_c(*row.get(col)?)?;
+        for c in row.iter_mut().skip(col) {
+            *c = k.mul_c(*c, inv);
+        }
+        let pivot = row.clone();
+        for (i, r) in m.iter_mut().enumerate() {
+            let c = r.get(col).copied().unwrap_or(0);
+            if i != rank && c != 0 {
+                for (x, &y) in r.iter_mut().zip(&pivot).skip(col) {
+                    *x = k.sub_c(*x, k.mul_c(c, y));
+                }
+            }
+        }
+        rank += 1;
+    }
+    m.truncate(rank);
+    Some(m)
+}
+
 /// The rank of the rows modulo `p`; `None` as [`echelon`].
 pub fn rank(rows: &[Vec<Integer>], p: &Integer) -> Option<usize> {
     echelon(rows, p).map(|e| e.len())
@@ -88,28 +127,41 @@ pub fn rank(rows: &[Vec<Integer>], p: &Integer) -> Option<usize> {
 /// are independent as rows of `E`, so they span the left kernel. Their
 /// right parts are in reduced echelon form, since their pivots lie there.
 pub fn kernel(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
+    kernel_with(rows, |m| echelon(&m, p))
+}
+
+/// [`kernel`] for entries in `[0, p)`, `p` the modulus of `k`.
+pub(crate) fn kernel_words(rows: &[Vec<u64>], k: Fp) -> Option<Vec<Vec<u64>>> {
+    kernel_with(rows, |m| echelon_words(m, k))
+}
+
+/// [`kernel`] with the echelon form given by `echelon`.
+fn kernel_with<T: Clone + From<u8> + PartialEq>(
+    rows: &[Vec<T>],
+    echelon: impl FnOnce(Vec<Vec<T>>) -> Option<Vec<Vec<T>>>,
+) -> Option<Vec<Vec<T>>> {
     let width = rows.first().map_or(0, Vec::len);
     if !same_width(rows, width) {
         return None;
     }
     let count = rows.len();
-    let augmented: Vec<Vec<Integer>> = rows
+    let augmented: Vec<Vec<T>> = rows
         .iter()
         .enumerate()
         .map(|(i, r)| {
-            let unit = (0..count).map(|j| Integer::from(u8::from(i == j)));
+            let unit = (0..count).map(|j| T::from(u8::from(i == j)));
             r.iter().cloned().chain(unit).collect()
         })
         .collect();
-    let reduced = echelon(&augmented, p)?;
-    let mut out = Vec::new();
-    for row in reduced {
-        let (left, right) = row.split_at(width.min(row.len()));
-        if left.iter().all(|c| *c == 0) {
-            out.push(right.to_vec());
-        }
-    }
-    Some(out)
+    let zero = T::from(0);
+    let reduced = echelon(augmented)?.into_iter();
+    let left_zero = |row: &Vec<T>| row.iter().take(width).all(|c| *c == zero);
+    Some(
+        reduced
+            .filter(left_zero)
+            .map(|row| row.into_iter().skip(width).collect())
+            .collect(),
+    )
 }
 
 #[cfg(test)]
@@ -248,6 +300,53 @@ pub(crate) mod tests {
             for x in &k {
                 assert_eq!(combine(x, &rows, &p, width), zero);
             }
+        }
+    }
+
+    #[test]
+    fn words_match_integers() {
+        // The machine-word echelon form and kernel against the Integer
+        // ones (the plain definitions above), on random matrices with
+        // dependent rows, for primes below and above 2^32 and near 2^63.
+        let mut rng = TestRng::new(22);
+        for p64 in crate::field::fppoly::tests::word_primes() {
+            let (k, p) = (Fp::new(p64).unwrap(), Integer::from(p64));
+            for _ in 0..60 {
+                let (rows_n, width) = (rng.range(1, 7) as usize, rng.range(1, 9) as usize);
+                let mut rows: Vec<Vec<u64>> = Vec::new();
+                for _ in 0..rows_n {
+                    let row: Vec<u64> = match (rows.len(), rng.range(0, 3)) {
+                        (2.., 0) => {
+                            let c = rng.next() % p64;
+                            rows[0]
+                                .iter()
+                                .zip(&rows[1])
+                                .map(|(&x, &y)| k.add_c(x, k.mul_c(c, y)))
+                                .collect()
+                        }
+                        (_, 1) => (0..width).map(|_| rng.next() % 3 % p64).collect(),
+                        _ => (0..width).map(|_| rng.next() % p64).collect(),
+                    };
+                    rows.push(row);
+                }
+                let big: Vec<Vec<Integer>> = rows
+                    .iter()
+                    .map(|r| r.iter().map(|&c| Integer::from(c)).collect())
+                    .collect();
+                let to_big = |m: Vec<Vec<u64>>| -> Vec<Vec<Integer>> {
+                    m.into_iter()
+                        .map(|r| r.into_iter().map(Integer::from).collect())
+                        .collect()
+                };
+                assert_eq!(
+                    echelon_words(rows.clone(), k).map(to_big),
+                    echelon(&big, &p)
+                );
+                assert_eq!(kernel_words(&rows, k).map(to_big), kernel(&big, &p));
+            }
+            let ragged = vec![vec![1, 2], vec![1]];
+            assert_eq!(echelon_words(ragged.clone(), k), None);
+            assert_eq!(kernel_words(&ragged, k), None);
         }
     }
 }

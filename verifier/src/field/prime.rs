@@ -9,6 +9,7 @@
 use super::fppoly::Fp;
 use super::linmodp;
 use super::order::{FieldOrder, OrderError};
+use crate::arith::mod_small;
 use crate::primality::bpsw::{primality_evidence, Evidence};
 use rug::Integer;
 
@@ -176,12 +177,13 @@ pub fn check_prime(
     {
         return Err(PrimeError::NotMaximal);
     }
-    // Step 3.
+    // Steps 3 and 4 in machine words: p < 2^63 (`field`).
+    let words = |v: &[Integer]| -> Vec<u64> { v.iter().map(|c| mod_small(c, p)).collect() };
     let pi = linmodp::reduce(pi, &pz);
-    let images: Vec<Vec<Integer>> = (0..n)
-        .map(|j| linmodp::reduce(&order.mul(&pi, &unit(n, j)), &pz))
+    let images: Vec<Vec<u64>> = (0..n)
+        .map(|j| words(&order.mul(&pi, &unit(n, j))))
         .collect();
-    let rows = linmodp::echelon(&images, &pz).ok_or(PrimeError::NotPrime(p))?;
+    let rows = linmodp::echelon_words(images, field).ok_or(PrimeError::NotPrime(p))?;
     if rows.len() + fu != n {
         return Err(PrimeError::Norm {
             rank: rows.len(),
@@ -190,14 +192,15 @@ pub fn check_prime(
     }
     // Step 4: powers[j] = g^j mod p, j = 0..=f.
     let g = linmodp::reduce(generator, &pz);
-    let mut powers = vec![linmodp::reduce(&order.one(), &pz)];
+    let mut power = linmodp::reduce(&order.one(), &pz);
+    let mut powers = vec![words(&power)];
     for _ in 0..f {
-        let next = powers.last().map(|x| order.mul(x, &g)).unwrap_or_default();
-        powers.push(linmodp::reduce(&next, &pz));
+        power = linmodp::reduce(&order.mul(&power, &g), &pz);
+        powers.push(words(&power));
     }
-    let mut low: Vec<Vec<Integer>> = powers.iter().take(fu).cloned().collect();
+    let mut low: Vec<Vec<u64>> = powers.iter().take(fu).cloned().collect();
     low.extend(rows.iter().cloned());
-    if linmodp::rank(&low, &pz) != Some(n) {
+    if linmodp::echelon_words(low, field).map(|e| e.len()) != Some(n) {
         return Err(PrimeError::Generator);
     }
     // The n + 1 vectors g^0..g^f and the rows have rank n: a kernel of
@@ -205,19 +208,16 @@ pub fn check_prime(
     // independent).
     let mut all = powers;
     all.extend(rows.iter().cloned());
-    let kernel = linmodp::kernel(&all, &pz).ok_or(PrimeError::NotPrime(p))?;
+    let kernel = linmodp::kernel_words(&all, field).ok_or(PrimeError::NotPrime(p))?;
     let [relation] = kernel.as_slice() else {
         return Err(PrimeError::Generator);
     };
-    let lead = relation
-        .get(fu)
-        .and_then(|c| c.invert_ref(&pz))
-        .map(Integer::from);
+    let lead = relation.get(fu).and_then(|&c| field.inv_c(c));
     let lead = lead.ok_or(PrimeError::Generator)?;
     let residue: Vec<u64> = relation
         .iter()
         .take(fu + 1)
-        .map(|c| Integer::from(c * &lead).modulo(&pz).to_u64().unwrap_or(0))
+        .map(|&c| field.mul_c(c, lead))
         .collect();
     if field.is_irreducible(&residue) != Some(true) {
         return Err(PrimeError::Reducible);
@@ -239,7 +239,10 @@ pub fn check_prime(
         pi,
         anti,
         anti_rows,
-        rows,
+        rows: rows
+            .into_iter()
+            .map(|r| r.into_iter().map(Integer::from).collect())
+            .collect(),
         residue,
     };
     // Step 6.
