@@ -161,7 +161,11 @@ fn verifier_exit_codes() {
     let r = run(&verify, &[cert_s]);
     assert_eq!(r.status.code(), Some(0));
     let r = run(&verify, &[cert_s, "--json", "--require", "unconditional"]);
-    assert_eq!(r.status.code(), Some(1), "a GRH result fails the policy");
+    assert_eq!(
+        r.status.code(),
+        Some(3),
+        "a GRH result fails the policy: exit 3"
+    );
     assert!(
         stdout(&r).contains("\"reason\": \"policy\""),
         "{}",

@@ -82,10 +82,11 @@ pub const MAX_FIELD_DEGREE: usize = 6;
 /// Bits of a coefficient of `F`, of the common denominator of an order's
 /// basis and of an entry of its Hermite form.
 pub const MAX_ORDER_ENTRY_BITS: u32 = 1024;
-/// Bits of the prime `p` in the `p`-maximality test (its Frobenius powers
-/// cost about `bits(p)·⌈log_p n⌉` squarings of an element, for each of the
-/// `n` basis elements).
-pub const MAX_MAXIMALITY_PRIME_BITS: u32 = 2048;
+/// Bits of the prime `p` in the `p`-maximality test, run on machine words
+/// (its Frobenius powers cost about `bits(p)·⌈log_p n⌉` squarings of an
+/// element, for each of the `n` basis elements). The prover enlarges an
+/// order only at primes below 2^63 too.
+pub const MAX_MAXIMALITY_PRIME_BITS: u32 = 63;
 /// Bits of a power `a^e` of an element, estimated before it is computed.
 pub const MAX_POWER_BITS: u64 = 1 << 20;
 

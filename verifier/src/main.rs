@@ -141,9 +141,7 @@ fn main() -> ExitCode {
         Ok(c) => c,
         Err(e) => {
             if e.use_stderr() && args.iter().any(|a| a == "--json") {
-                let detail = e.kind().to_string();
-                print_out(&json::error("usage", &detail).render());
-                return ExitCode::from(2);
+                return usage_error(true, "usage", &e.kind().to_string());
             }
             let _ = e.print();
             return ExitCode::from(if e.use_stderr() { 2 } else { 0 });
@@ -151,14 +149,7 @@ fn main() -> ExitCode {
     };
     let (policy, trusted) = match policy(&cli) {
         Ok(p) => p,
-        Err(detail) => {
-            if cli.json {
-                print_out(&json::error("usage", &detail).render());
-            } else {
-                eprintln!("classcert-verify: {detail}");
-            }
-            return ExitCode::from(2);
-        }
+        Err(detail) => return usage_error(cli.json, "usage", &detail),
     };
     let bytes = match read_bounded(&cli.file) {
         Ok(b) => b,
@@ -168,13 +159,7 @@ fn main() -> ExitCode {
             } else {
                 cli.file.clone()
             };
-            let detail = format!("cannot read {what}: {e}");
-            if cli.json {
-                print_out(&json::error("io-error", &detail).render());
-            } else {
-                eprintln!("classcert-verify: {detail}");
-            }
-            return ExitCode::from(2);
+            return usage_error(cli.json, "io-error", &format!("cannot read {what}: {e}"));
         }
     };
     // The ticker thread starts only once a run has taken QUIET_FOR: a
@@ -210,6 +195,15 @@ fn main() -> ExitCode {
         Err(r) if r.reason == Reason::Policy => ExitCode::from(3),
         Err(_) => ExitCode::from(1),
     }
+}
+
+/// Says what stopped the run before any check (exit code 2).
+fn usage_error(as_json: bool, code: &str, detail: &str) -> ExitCode {
+    match as_json {
+        true => print_out(&json::error(code, detail).render()),
+        false => eprintln!("classcert-verify: {detail}"),
+    }
+    ExitCode::from(2)
 }
 
 /// Writes to standard output; a closed pipe (`| head`) is not an error.

@@ -367,17 +367,11 @@ fn from_order_witness(
     witnesses: WitnessesOk,
     bound: WitnessBoundOk,
 ) -> Verified {
-    let mut theorems = Vec::new();
-    if let Some(t) = witnesses.theorem() {
-        theorems.push(t);
-    }
-    for t in bound.bound().theorems() {
-        push_unique(&mut theorems, t);
-    }
     let max_evidence = maximality.evidence().copied();
-    for t in max_evidence
-        .iter()
-        .flat_map(|e| e.theorems())
+    let mut theorems = Vec::new();
+    for t in (witnesses.theorem().into_iter())
+        .chain(bound.bound().theorems().iter().copied())
+        .chain(max_evidence.iter().flat_map(|e| e.theorems()))
         .chain(h.evidence().theorems())
     {
         push_unique(&mut theorems, t);

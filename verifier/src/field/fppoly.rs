@@ -27,6 +27,11 @@ impl Fp {
         (2..1 << 63).contains(&p).then_some(Fp { p })
     }
 
+    /// `p`.
+    pub fn modulus(self) -> u64 {
+        self.p
+    }
+
     /// `a + b mod p` for `a, b < p` (callers pass residues; wrapping keeps
     /// any other input from panicking).
     pub(crate) fn add_c(self, a: u64, b: u64) -> u64 {

@@ -1,17 +1,16 @@
-//! Small linear algebra over `F_p` for a prime `p` given as an [`Integer`]
-//! (it may exceed a machine word: the primes whose square divides a
-//! discriminant can be large).
+//! Small linear algebra over `F_p` for a prime `p < 2^63` ([`Fp`]), on
+//! machine words (vectors `Vec<u64>` with entries in `[0, p)`; a matrix is
+//! a list of rows of one length).
 //!
-//! Vectors are `Vec<Integer>` and a matrix is a list of rows of one length.
 //! The sizes here are small (at most `n^2 = 36` columns and a few dozen
 //! rows), so every function is plain Gaussian elimination: at most
 //! `rows · width · (rows + width)` operations modulo `p`. That `p` is prime
 //! is the caller's to know; a composite `p` shows up as a pivot with no
-//! inverse, and the answer is `None`, never a panic. [`echelon_words`] and
-//! [`kernel_words`] do the same on machine words for `p < 2^63` ([`Fp`]),
-//! with the same pivots, so the same answers.
+//! inverse, and the answer is `None`, never a panic. The unit tests check
+//! them against the same elimination on [`Integer`]s.
 
 use super::fppoly::Fp;
+use crate::arith::mod_small;
 use rug::Integer;
 
 /// `v mod p`, entries in `[0, p)`, for `p ≥ 1`; for `p < 1`, where no
@@ -23,61 +22,24 @@ pub fn reduce(v: &[Integer], p: &Integer) -> Vec<Integer> {
     v.iter().map(|c| Integer::from(c.modulo_ref(p))).collect()
 }
 
+/// `v mod p` in machine words, `p` the modulus of `k`.
+pub(crate) fn words(v: &[Integer], k: Fp) -> Vec<u64> {
+    v.iter().map(|c| mod_small(c, k.modulus())).collect()
+}
+
 /// The rows of `m` all have length `width`.
 fn same_width<T>(m: &[Vec<T>], width: usize) -> bool {
     m.iter().all(|r| r.len() == width)
 }
 
-/// The reduced row echelon form of the rows modulo `p`, zero rows dropped:
-/// each row starts with a 1 (its pivot) further right than the row before,
-/// and the other rows are 0 in that column. It depends only on the row
-/// space, so two row spaces are equal iff their echelon forms are (common
-/// practice). `None` if `p < 2`, the rows differ in length, or a pivot has
-/// no inverse modulo `p`.
-pub fn echelon(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
-    if *p < 2 {
-        return None;
-    }
-    let width = rows.first().map_or(0, Vec::len);
-    if !same_width(rows, width) {
-        return None;
-    }
-    let mut m: Vec<Vec<Integer>> = rows.iter().map(|r| reduce(r, p)).collect();
-    let mut rank = 0;
-    for col in 0..width {
-        let nonzero = |r: &Vec<Integer>| r.get(col).is_some_and(|c| *c != 0);
-        let Some(found) = (rank..m.len()).find(|&i| m.get(i).is_some_and(nonzero)) else {
-            continue;
-        };
-        // rank ≤ found < m.len(): both in range.
-        m.swap(rank, found);
-        let row = m.get(rank)?;
-        let inv = Integer::from(row.get(col)?.invert_ref(p)?);
-        let pivot: Vec<Integer> = row
-            .iter()
-            .map(|c| Integer::from(c * &inv).modulo(p))
-            .collect();
-        for (i, r) in m.iter_mut().enumerate() {
-            if i == rank {
-                r.clone_from(&pivot);
-                continue;
-            }
-            let c = r.get(col).cloned().unwrap_or_default();
-            if c != 0 {
-                for (x, y) in r.iter_mut().zip(&pivot) {
-                    *x = Integer::from(&*x - &c * y).modulo(p);
-                }
-            }
-        }
-        rank += 1;
-    }
-    m.truncate(rank);
-    Some(m)
-}
-
-/// [`echelon`] of rows with entries in `[0, p)`, `p` the modulus of `k`;
-/// `None` if the rows differ in length. The pivot row is 0 left of `col`
-/// (all rows from `rank` on are), so scaling and elimination start there.
+/// The reduced row echelon form of rows with entries in `[0, p)`, `p` the
+/// modulus of `k`, zero rows dropped: each row starts with a 1 (its pivot)
+/// further right than the row before, and the other rows are 0 in that
+/// column. It depends only on the row space, so two row spaces are equal
+/// iff their echelon forms are (common practice). `None` if the rows
+/// differ in length or a pivot has no inverse modulo `p`. The pivot row is
+/// 0 left of `col` (all rows from `rank` on are), so scaling and
+/// elimination start there.
 pub(crate) fn echelon_words(mut m: Vec<Vec<u64>>, k: Fp) -> Option<Vec<Vec<u64>>> {
     let width = m.first().map_or(0, Vec::len);
     if !same_width(&m, width) {
@@ -111,14 +73,9 @@ pub(crate) fn echelon_words(mut m: Vec<Vec<u64>>, k: Fp) -> Option<Vec<Vec<u64>>
     Some(m)
 }
 
-/// The rank of the rows modulo `p`; `None` as [`echelon`].
-pub fn rank(rows: &[Vec<Integer>], p: &Integer) -> Option<usize> {
-    echelon(rows, p).map(|e| e.len())
-}
-
 /// A basis, in reduced echelon form, of the vectors `x` with
-/// `Σ_i x_i · rows[i] = 0` modulo `p` (the left kernel); `None` as
-/// [`echelon`].
+/// `Σ_i x_i · rows[i] = 0` modulo `p` (the left kernel), for entries in
+/// `[0, p)`, `p` the modulus of `k`; `None` as [`echelon_words`].
 ///
 /// Method (common practice): reduce `[rows | identity]` to echelon form
 /// `[E·rows | E]` with `E` invertible. The rows whose left part vanished
@@ -126,16 +83,11 @@ pub fn rank(rows: &[Vec<Integer>], p: &Integer) -> Option<usize> {
 /// them (the rows with a pivot in the left part number the rank), and they
 /// are independent as rows of `E`, so they span the left kernel. Their
 /// right parts are in reduced echelon form, since their pivots lie there.
-pub fn kernel(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
-    kernel_with(rows, |m| echelon(&m, p))
-}
-
-/// [`kernel`] for entries in `[0, p)`, `p` the modulus of `k`.
 pub(crate) fn kernel_words(rows: &[Vec<u64>], k: Fp) -> Option<Vec<Vec<u64>>> {
     kernel_with(rows, |m| echelon_words(m, k))
 }
 
-/// [`kernel`] with the echelon form given by `echelon`.
+/// The left kernel with the echelon form given by `echelon`.
 fn kernel_with<T: Clone + From<u8> + PartialEq>(
     rows: &[Vec<T>],
     echelon: impl FnOnce(Vec<Vec<T>>) -> Option<Vec<Vec<T>>>,
@@ -167,6 +119,74 @@ fn kernel_with<T: Clone + From<u8> + PartialEq>(
 #[cfg(test)]
 pub(crate) mod tests {
     use super::*;
+
+    // The same elimination on Integers (any p), the reference for the
+    // word versions.
+    /// The reduced row echelon form of the rows modulo `p`, zero rows dropped:
+    /// each row starts with a 1 (its pivot) further right than the row before,
+    /// and the other rows are 0 in that column. It depends only on the row
+    /// space, so two row spaces are equal iff their echelon forms are (common
+    /// practice). `None` if `p < 2`, the rows differ in length, or a pivot has
+    /// no inverse modulo `p`.
+    pub(crate) fn echelon(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
+        if *p < 2 {
+            return None;
+        }
+        let width = rows.first().map_or(0, Vec::len);
+        if !same_width(rows, width) {
+            return None;
+        }
+        let mut m: Vec<Vec<Integer>> = rows.iter().map(|r| reduce(r, p)).collect();
+        let mut rank = 0;
+        for col in 0..width {
+            let nonzero = |r: &Vec<Integer>| r.get(col).is_some_and(|c| *c != 0);
+            let Some(found) = (rank..m.len()).find(|&i| m.get(i).is_some_and(nonzero)) else {
+                continue;
+            };
+            // rank ≤ found < m.len(): both in range.
+            m.swap(rank, found);
+            let row = m.get(rank)?;
+            let inv = Integer::from(row.get(col)?.invert_ref(p)?);
+            let pivot: Vec<Integer> = row
+                .iter()
+                .map(|c| Integer::from(c * &inv).modulo(p))
+                .collect();
+            for (i, r) in m.iter_mut().enumerate() {
+                if i == rank {
+                    r.clone_from(&pivot);
+                    continue;
+                }
+                let c = r.get(col).cloned().unwrap_or_default();
+                if c != 0 {
+                    for (x, y) in r.iter_mut().zip(&pivot) {
+                        *x = Integer::from(&*x - &c * y).modulo(p);
+                    }
+                }
+            }
+            rank += 1;
+        }
+        m.truncate(rank);
+        Some(m)
+    }
+
+    /// The rank of the rows modulo `p`; `None` as [`echelon`].
+    pub(crate) fn rank(rows: &[Vec<Integer>], p: &Integer) -> Option<usize> {
+        echelon(rows, p).map(|e| e.len())
+    }
+
+    /// A basis, in reduced echelon form, of the vectors `x` with
+    /// `Σ_i x_i · rows[i] = 0` modulo `p` (the left kernel); `None` as
+    /// [`echelon`].
+    ///
+    /// Method (common practice): reduce `[rows | identity]` to echelon form
+    /// `[E·rows | E]` with `E` invertible. The rows whose left part vanished
+    /// are rows of `E` with `E_i · rows = 0`; there are `len(rows) - rank` of
+    /// them (the rows with a pivot in the left part number the rank), and they
+    /// are independent as rows of `E`, so they span the left kernel. Their
+    /// right parts are in reduced echelon form, since their pivots lie there.
+    pub(crate) fn kernel(rows: &[Vec<Integer>], p: &Integer) -> Option<Vec<Vec<Integer>>> {
+        kernel_with(rows, |m| echelon(&m, p))
+    }
 
     /// Whether `v` lies in the row space of `rows` modulo `p`: adding it
     /// does not raise the rank.

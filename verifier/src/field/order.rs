@@ -15,6 +15,7 @@
 //! factors, `Q[x]/(F)` is a product of fields and every statement below
 //! holds for it as well.
 
+use super::fppoly::Fp;
 use super::{linmodp, zpoly};
 use crate::limits::{
     MAX_FIELD_DEGREE, MAX_MAXIMALITY_PRIME_BITS, MAX_ORDER_ENTRY_BITS, MAX_POWER_BITS,
@@ -435,8 +436,9 @@ impl FieldOrder {
     }
 
     /// Steps 1 to 3 of [`FieldOrder::is_p_maximal`]: `I_p/pO` in reduced
-    /// echelon form, for `p ≥ 2` (`None` if a pivot has no inverse mod `p`).
-    fn radical_mod_p(&self, p: &Integer) -> Option<Vec<Vec<Integer>>> {
+    /// echelon form, `p` the modulus of `k` (`None` if a pivot has no
+    /// inverse mod `p`).
+    fn radical_mod_p(&self, p: &Integer, k: Fp) -> Option<Vec<Vec<u64>>> {
         let n = self.degree();
         // Step 1: at most 3 passes, as p ≥ 2 and n ≤ 6.
         let mut q = p.clone();
@@ -447,9 +449,10 @@ impl FieldOrder {
             q *= p;
         }
         // Steps 2 and 3.
-        let frobenius: Vec<Vec<Integer>> =
-            (0..n).map(|i| self.pow_mod(&unit(n, i), &q, p)).collect();
-        linmodp::kernel(&frobenius, p).and_then(|k| linmodp::echelon(&k, p))
+        let frobenius: Vec<Vec<u64>> = (0..n)
+            .map(|i| linmodp::words(&self.pow_mod(&unit(n, i), &q, p), k))
+            .collect();
+        linmodp::kernel_words(&frobenius, k).and_then(|r| linmodp::echelon_words(r, k))
     }
 
     /// Whether `O` is `p`-maximal (`p ∤ [O_K : O]`), for a prime `p` (the
@@ -493,13 +496,14 @@ impl FieldOrder {
         if !is_bpsw_probable_prime(p) {
             return Err(OrderError::NotPrime);
         }
+        let k = (p.to_u64().and_then(Fp::new)).ok_or(OrderError::PrimeOutOfRange)?;
         let n = self.degree();
-        let radical = self.radical_mod_p(p).ok_or(OrderError::NotPrime)?;
+        let radical = self.radical_mod_p(p, k).ok_or(OrderError::NotPrime)?;
         // Step 4.
-        let pivot = |r: &&Vec<Integer>| r.iter().position(|c| *c != 0);
+        let pivot = |r: &&Vec<u64>| r.iter().position(|c| *c != 0);
         let beta: Vec<Vec<Integer>> = (0..n)
             .map(|j| match radical.iter().find(|r| pivot(r) == Some(j)) {
-                Some(row) => row.clone(),
+                Some(row) => row.iter().map(|&c| Integer::from(c)).collect(),
                 None => unit(n, j).into_iter().map(|c| c * p).collect(),
             })
             .collect();
@@ -510,12 +514,13 @@ impl FieldOrder {
             for b in &beta {
                 let y = self.mul(&unit(n, i), b);
                 let c = solve_triangular(&beta, &y, 0..n).ok_or(OrderError::Radical)?;
-                flat.extend(linmodp::reduce(&c, p));
+                flat.extend(linmodp::words(&c, k));
             }
             images.push(flat);
         }
         // Step 6.
-        Ok(linmodp::rank(&images, p).ok_or(OrderError::NotPrime)? == n)
+        let rank = linmodp::echelon_words(images, k).map(|e| e.len());
+        Ok(rank.ok_or(OrderError::NotPrime)? == n)
     }
 }
 
@@ -720,21 +725,29 @@ pub(crate) mod tests {
         let zt = power_order(&[5, 0, 1]);
         assert_eq!(*zt.discriminant(), -20);
         assert!(maximal(&zt, 2) && maximal(&zt, 5));
-        // A prime beyond a machine word: p = 2^127 - 1 (a Mersenne prime,
-        // common practice), F = x^2 - 3p^2, θ = p√3. Z[θ] is not p-maximal,
-        // Z[θ/p] = Z[√3] (discriminant 12) is.
-        let p: Integer = (Integer::from(1) << 127) - 1;
-        let f = vec![
-            Integer::from(-3) * Integer::from(p.square_ref()),
-            Integer::new(),
-            Integer::from(1),
-        ];
-        let one = Integer::from(1);
-        let zt = FieldOrder::new(&f, &[unit(2, 0), unit(2, 1)], &one).unwrap();
-        assert_eq!(zt.is_p_maximal(&p), Ok(false));
-        let o = FieldOrder::new(&f, &[vec![p.clone(), Integer::new()], unit(2, 1)], &p).unwrap();
-        assert_eq!(*o.discriminant(), 12);
-        assert_eq!(o.is_p_maximal(&p), Ok(true));
+        // A prime near the top of a machine word: p = 2^61 - 1 (a Mersenne
+        // prime, common practice), F = x^2 - 3p^2, θ = p√3. Z[θ] is not
+        // p-maximal, Z[θ/p] = Z[√3] (discriminant 12) is. The test runs on
+        // words, so p = 2^127 - 1 is refused as out of range.
+        for bits in [61u32, 127] {
+            let p: Integer = (Integer::from(1) << bits) - 1;
+            let f = vec![
+                Integer::from(-3) * Integer::from(p.square_ref()),
+                Integer::new(),
+                Integer::from(1),
+            ];
+            let one = Integer::from(1);
+            let zt = FieldOrder::new(&f, &[unit(2, 0), unit(2, 1)], &one).unwrap();
+            let o =
+                FieldOrder::new(&f, &[vec![p.clone(), Integer::new()], unit(2, 1)], &p).unwrap();
+            assert_eq!(*o.discriminant(), 12);
+            if bits == 61 {
+                assert_eq!(zt.is_p_maximal(&p), Ok(false));
+                assert_eq!(o.is_p_maximal(&p), Ok(true));
+            } else {
+                assert_eq!(zt.is_p_maximal(&p), Err(OrderError::PrimeOutOfRange));
+            }
+        }
     }
 
     #[test]
@@ -947,7 +960,12 @@ pub(crate) mod tests {
             let o = FieldOrder::new(&z(&f), &basis, &den).unwrap();
             for p in [2u64, 3] {
                 let pz = Integer::from(p);
-                let radical = o.radical_mod_p(&pz).unwrap();
+                let radical: Vec<Vec<Integer>> = o
+                    .radical_mod_p(&pz, Fp::new(p).unwrap())
+                    .unwrap()
+                    .into_iter()
+                    .map(|r| r.into_iter().map(Integer::from).collect())
+                    .collect();
                 proper += usize::from(!radical.is_empty());
                 for i in 0..p.pow(n as u32) {
                     let x: Vec<Integer> = (0..n)

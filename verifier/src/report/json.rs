@@ -25,40 +25,29 @@ pub fn generator(order: Option<&Integer>, g: &GeneratorView) -> Json {
             ("order", order),
             ("form", Json::Arr(vec![num(a), num(b), num(c)])),
         ]),
-        GeneratorView::FieldIdeals(f) => Json::obj(vec![
-            ("order", order),
-            (
-                "prime_ideals",
-                Json::Arr(
-                    f.iter()
-                        .map(|(p, k, e)| {
-                            Json::obj(vec![
-                                ("p", Json::str(p.to_string())),
-                                ("factor_base_index", Json::Num(k.to_string())),
-                                ("e", num(e)),
-                            ])
-                        })
-                        .collect(),
-                ),
-            ),
-        ]),
-        GeneratorView::Ideals(f) => Json::obj(vec![
-            ("order", order),
-            (
-                "prime_ideals",
-                Json::Arr(
-                    f.iter()
-                        .map(|(p, b, e)| {
-                            Json::obj(vec![
-                                ("p", Json::str(p.to_string())),
-                                ("b", Json::str(b.to_string())),
-                                ("e", num(e)),
-                            ])
-                        })
-                        .collect(),
-                ),
-            ),
-        ]),
+        GeneratorView::Ideals(f) | GeneratorView::FieldIdeals(f) => {
+            // `b` for a quadratic ideal, the factor base index for a field's
+            let (label, field) = match g {
+                GeneratorView::Ideals(_) => ("b", false),
+                _ => ("factor_base_index", true),
+            };
+            let ideal = |(p, b, e): &(u64, u64, Integer)| {
+                let b = if field {
+                    Json::Num(b.to_string())
+                } else {
+                    Json::str(b.to_string())
+                };
+                Json::obj(vec![
+                    ("p", Json::str(p.to_string())),
+                    (label, b),
+                    ("e", num(e)),
+                ])
+            };
+            Json::obj(vec![
+                ("order", order),
+                ("prime_ideals", Json::Arr(f.iter().map(ideal).collect())),
+            ])
+        }
     }
 }
 

@@ -24,71 +24,65 @@ pub struct Policy {
 impl Policy {
     /// The rules, one phrase each (empty: no policy).
     pub fn rules(&self) -> Vec<String> {
-        let mut out = Vec::new();
-        if let Some(a) = &self.allow {
-            let names: Vec<&str> = a.iter().map(|x| x.name()).collect();
-            out.push(match names.is_empty() {
+        let names = |a: &Vec<Assumption>| a.iter().map(|x| x.name()).collect::<Vec<_>>().join(", ");
+        [
+            self.allow.as_ref().map(|a| match a.is_empty() {
                 true => "no assumption allowed".to_string(),
-                false => format!("assumptions allowed: {}", names.join(", ")),
-            });
-        }
-        if self.maximal {
-            out.push("the maximal order".into());
-        }
-        if let Some(h) = &self.class_number {
-            out.push(format!("class number {h}"));
-        }
-        if let Some(d) = &self.invariants {
-            out.push(format!("invariants {}", super::invariants_text(d)));
-        }
-        if self.signed {
-            out.push("signed by a trusted key".into());
-        }
-        out
+                false => format!("assumptions allowed: {}", names(a)),
+            }),
+            self.maximal.then(|| "the maximal order".into()),
+            self.class_number
+                .as_ref()
+                .map(|h| format!("class number {h}")),
+            (self.invariants.as_ref()).map(|d| format!("invariants {}", super::invariants_text(d))),
+            self.signed.then(|| "signed by a trusted key".into()),
+        ]
+        .into_iter()
+        .flatten()
+        .collect()
     }
 
     /// The first rule that `v` breaks, in words.
     fn broken(&self, summary: &Summary, v: &Verified) -> Option<String> {
-        if let Some(allowed) = &self.allow {
-            let extra: Vec<&str> = (v.assumptions().iter())
+        let text = super::invariants_text;
+        let extra: Vec<&str> = match &self.allow {
+            Some(allowed) => (v.assumptions().iter())
                 .filter(|a| !allowed.contains(a))
                 .map(|a| a.name())
-                .collect();
-            if !extra.is_empty() {
-                return Some(format!(
-                    "the result rests on {}, which the policy does not allow",
-                    extra.join(", ")
-                ));
-            }
-        }
-        if self.maximal && !v.maximal() {
-            return Some("the policy requires the maximal order, which was not claimed".into());
-        }
-        if let Some(h) = self
+                .collect(),
+            None => Vec::new(),
+        };
+        if !extra.is_empty() {
+            Some(format!(
+                "the result rests on {}, which the policy does not allow",
+                extra.join(", ")
+            ))
+        } else if self.maximal && !v.maximal() {
+            Some("the policy requires the maximal order, which was not claimed".into())
+        } else if let Some(h) = self
             .class_number
             .as_ref()
             .filter(|h| *h != v.class_number())
         {
-            return Some(format!(
+            Some(format!(
                 "the class number is {}, not the expected {h}",
                 v.class_number()
-            ));
-        }
-        if let Some(d) = self
+            ))
+        } else if let Some(d) = self
             .invariants
             .as_ref()
             .filter(|d| d.as_slice() != v.invariants())
         {
-            return Some(format!(
+            Some(format!(
                 "the group is {}, not the expected {}",
-                super::invariants_text(v.invariants()),
-                super::invariants_text(d)
-            ));
+                text(v.invariants()),
+                text(d)
+            ))
+        } else if self.signed && summary.signer.as_ref().is_none_or(|s| !s.trusted) {
+            Some("the policy requires a signature under a trusted key, and the certificate is not signed".into())
+        } else {
+            None
         }
-        if self.signed && summary.signer.as_ref().is_none_or(|s| !s.trusted) {
-            return Some("the policy requires a signature under a trusted key, and the certificate is not signed".into());
-        }
-        None
     }
 
     /// Reads a policy file: `key = value` lines (a subset of TOML), `#`
