@@ -35,6 +35,44 @@ impl Json {
         out
     }
 
+    /// On one line, `", "` and `": "` between items (JSON Lines), with the
+    /// same key order as [`Json::render`].
+    pub fn line(&self) -> String {
+        let mut out = String::new();
+        self.write_line(&mut out);
+        out.push('\n');
+        out
+    }
+
+    fn write_line(&self, out: &mut String) {
+        let sep = |out: &mut String, k: usize| {
+            if k > 0 {
+                out.push_str(", ")
+            }
+        };
+        match self {
+            Json::Arr(items) => {
+                out.push('[');
+                for (k, i) in items.iter().enumerate() {
+                    sep(out, k);
+                    i.write_line(out);
+                }
+                out.push(']');
+            }
+            Json::Obj(entries) => {
+                out.push('{');
+                for (k, (key, v)) in entries.iter().enumerate() {
+                    sep(out, k);
+                    escape(key, out);
+                    out.push_str(": ");
+                    v.write_line(out);
+                }
+                out.push('}');
+            }
+            scalar => scalar.write(out, 0),
+        }
+    }
+
     fn write(&self, out: &mut String, indent: usize) {
         match self {
             Json::Null => out.push_str("null"),

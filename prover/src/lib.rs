@@ -45,6 +45,7 @@ pub mod rng;
 pub mod setup;
 pub mod show;
 pub mod sign;
+pub mod table;
 pub mod units;
 
 pub use drivers::field::{field_to_bytes, prove_field};

@@ -276,6 +276,52 @@ pub fn read_published(name: &str) -> Published {
     Published { header, rows }
 }
 
+/// The two programs, for tests of the command line. Cargo exposes
+/// `CARGO_BIN_EXE_*` only to tests of the package that owns a binary, so
+/// they are looked up in the target directory a test runs from
+/// (`target/<profile>/`); a missing one fails the test (a test that passes
+/// without checking proves nothing).
+pub mod programs {
+    use std::path::{Path, PathBuf};
+    use std::process::{Command, Output};
+
+    pub fn bin(name: &str) -> PathBuf {
+        // .../target/<profile>/deps/<test>-<hash>  ->  .../target/<profile>/<name>
+        let exe = std::env::current_exe().expect("the test's own path");
+        let dir = exe
+            .parent()
+            .and_then(Path::parent)
+            .expect("target/<profile>");
+        let path = dir.join(format!("{name}{}", std::env::consts::EXE_SUFFIX));
+        assert!(
+            path.is_file(),
+            "{} not found; run `cargo build --release --workspace` first",
+            path.display()
+        );
+        path
+    }
+
+    /// A fresh scratch directory for one test.
+    pub fn scratch(test: &str) -> PathBuf {
+        let dir = std::env::temp_dir().join(format!("classcert-{}-{test}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).expect("create scratch dir");
+        dir
+    }
+
+    /// Runs `name` (classcert or classcert-verify) with `args`.
+    pub fn run(name: &str, args: &[&str]) -> Output {
+        Command::new(bin(name))
+            .args(args)
+            .output()
+            .unwrap_or_else(|e| panic!("cannot run {name}: {e}"))
+    }
+
+    pub fn stdout(o: &Output) -> String {
+        String::from_utf8_lossy(&o.stdout).into_owned()
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -12,7 +12,7 @@
 )]
 
 use classcert_prover::sign;
-use classcert_tests::support::vectors_dir;
+use classcert_tests::support::{programs, vectors_dir};
 use classcert_verifier::report::{Assumption, Policy, Report};
 use classcert_verifier::signature::TrustedKey;
 use classcert_verifier::verify_signed_with;
@@ -20,8 +20,6 @@ use ed25519_dalek::pkcs8::spki::der::pem::LineEnding;
 use ed25519_dalek::pkcs8::EncodePublicKey;
 use ed25519_dalek::{Signer, SigningKey, VerifyingKey};
 use rug::Integer;
-use std::path::PathBuf;
-use std::process::Command;
 
 fn golden(name: &str) -> Vec<u8> {
     std::fs::read(vectors_dir().join("golden").join(name)).unwrap()
@@ -202,20 +200,12 @@ fn policy_files() {
     }
 }
 
-fn bin(name: &str) -> PathBuf {
-    let exe = std::env::current_exe().unwrap();
-    let dir = exe.parent().and_then(|p| p.parent()).unwrap();
-    dir.join(format!("{name}{}", std::env::consts::EXE_SUFFIX))
-}
-
 #[test]
 fn keygen_sign_and_verify_from_the_command_line() {
-    let dir = std::env::temp_dir().join(format!("classcert-signing-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = programs::scratch("signing");
     let p = |f: &str| dir.join(f).to_string_lossy().into_owned();
     std::fs::write(p("c.cert"), golden("minus-3299.cert")).unwrap();
-    let run = |exe: &str, args: &[&str]| Command::new(bin(exe)).args(args).output().unwrap();
+    let run = programs::run;
     assert!(run("classcert", &["keygen", "-o", &p("alice")])
         .status
         .success());

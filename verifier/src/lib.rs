@@ -45,6 +45,7 @@ mod field;
 mod ideals;
 mod lattice;
 pub mod limits;
+pub mod manifest;
 mod order;
 mod pipeline;
 mod primality;

@@ -67,6 +67,10 @@ pub const MAX_FILE_BYTES: usize = 256 << 20;
 /// Lines read from a policy file (`--policy`), and its size in bytes.
 pub const MAX_POLICY_LINES: usize = 1000;
 pub const MAX_POLICY_BYTES: u64 = 64 << 10;
+/// Certificates one manifest may list.
+pub const MAX_MANIFEST_ENTRIES: usize = 1_000_000;
+/// Bytes read of a manifest file.
+pub const MAX_MANIFEST_BYTES: u64 = 128 << 20;
 /// Nesting depth of CBOR items.
 pub const MAX_CBOR_DEPTH: usize = 24;
 /// CBOR items in one file.

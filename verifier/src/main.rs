@@ -8,9 +8,13 @@
 #![forbid(unsafe_code)]
 
 use clap::{Parser, ValueEnum};
-use classcert_verifier::report::{json, Assumption, Policy, Reason};
+use classcert_format::json::Json;
+use classcert_verifier::report::reason::Rejection;
+use classcert_verifier::report::{json, Assumption, Policy, Reason, Report};
+use classcert_verifier::signature::Signer;
 use classcert_verifier::signature::TrustedKey;
 use classcert_verifier::STAGES;
+use classcert_verifier::{limits, manifest, signature};
 use std::io::{IsTerminal, Read, Write};
 use std::process::ExitCode;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -41,8 +45,15 @@ usage and I/O errors (kind \"error\").";
     after_help = AFTER_HELP
 )]
 struct Cli {
-    /// The certificate file, or - for standard input.
-    file: String,
+    /// The certificate files (- for standard input). With more than one,
+    /// or with --manifest, one line per file (JSON: one object per line).
+    #[arg(required_unless_present = "manifest")]
+    files: Vec<String>,
+    /// Verify every certificate a manifest lists (written by classcert
+    /// prove --batch), checking each file's id against it; a signed
+    /// manifest is checked against --trusted-key, and vouches for the ids.
+    #[arg(long, value_name = "MANIFEST")]
+    manifest: Option<String>,
     /// Print one JSON object instead of text.
     #[arg(long)]
     json: bool,
@@ -151,14 +162,17 @@ fn main() -> ExitCode {
         Ok(p) => p,
         Err(detail) => return usage_error(cli.json, "usage", &detail),
     };
-    let bytes = match read_bounded(&cli.file) {
+    if cli.files.len() != 1 || cli.manifest.is_some() {
+        return match jobs(&cli, &trusted) {
+            Ok((jobs, signer)) => several(&cli, &jobs, signer.as_ref(), &trusted, &policy),
+            Err(detail) => usage_error(cli.json, "io-error", &detail),
+        };
+    }
+    let file = cli.files.first().map_or("-", String::as_str);
+    let bytes = match read_bounded(file) {
         Ok(b) => b,
         Err(e) => {
-            let what = if cli.file == "-" {
-                "standard input".to_string()
-            } else {
-                cli.file.clone()
-            };
+            let what = if file == "-" { "standard input" } else { file };
             return usage_error(cli.json, "io-error", &format!("cannot read {what}: {e}"));
         }
     };
@@ -190,11 +204,147 @@ fn main() -> ExitCode {
         report.to_text()
     };
     print_out(&text);
-    match &report.outcome {
-        Ok(_) => ExitCode::SUCCESS,
-        Err(r) if r.reason == Reason::Policy => ExitCode::from(3),
-        Err(_) => ExitCode::from(1),
+    exit_code(&[report])
+}
+
+/// 0 when every report verified; else 1 when a check failed in any; else
+/// 3 (only the policy refused).
+fn exit_code(reports: &[Report]) -> ExitCode {
+    let reasons = reports.iter().filter_map(|r| r.outcome.as_ref().err());
+    match reasons.map(|e| e.reason == Reason::Policy).min() {
+        None => ExitCode::SUCCESS,
+        Some(true) => ExitCode::from(3),
+        Some(false) => ExitCode::from(1),
     }
+}
+
+/// One file to verify: its name, and the id a manifest lists for it.
+type Job = (String, Option<String>);
+
+/// What `several` prints after the lines.
+const SEVERAL_CAUTION: &str = "Each line is the verdict on one file; verify a file on its own for what it rests on and what it does not prove. A class group certificate is not a security proof of any cryptosystem.";
+
+/// The files named on the command line, then those of the manifest, and
+/// the manifest's signer when it is signed (its signature checked first).
+fn jobs(cli: &Cli, trusted: &[TrustedKey]) -> Result<(Vec<Job>, Option<Signer>), String> {
+    let mut out: Vec<Job> = cli.files.iter().map(|f| (f.clone(), None)).collect();
+    let Some(m) = &cli.manifest else {
+        return Ok((out, None));
+    };
+    let mut bytes = Vec::new();
+    std::fs::File::open(m)
+        .and_then(|h| h.take(limits::MAX_MANIFEST_BYTES).read_to_end(&mut bytes))
+        .map_err(|e| format!("cannot read the manifest {m}: {e}"))?;
+    let (text, signer) = match classcert_format::cose::is_signed(&bytes) {
+        true => signature::check(&bytes, trusted)
+            .map(|(payload, signer)| (payload.to_vec(), Some(signer)))
+            .map_err(|r| format!("the manifest {m}: {}: {}", r.reason.code(), r.detail))?,
+        false => (bytes, None),
+    };
+    let text = String::from_utf8(text).map_err(|_| format!("the manifest {m} is not UTF-8"))?;
+    let dir = std::path::Path::new(m)
+        .parent()
+        .unwrap_or(std::path::Path::new(""));
+    for e in manifest::parse(&text).map_err(|e| format!("{m}: {e}"))? {
+        out.push((dir.join(&e.file).to_string_lossy().into_owned(), Some(e.id)));
+    }
+    Ok((out, signer))
+}
+
+/// Verifies several files on all cores and prints one line (or JSON
+/// object) per file in their order, then a count.
+fn several(
+    cli: &Cli,
+    jobs: &[Job],
+    vouched: Option<&Signer>,
+    trusted: &[TrustedKey],
+    policy: &Policy,
+) -> ExitCode {
+    let next = AtomicUsize::new(0);
+    let threads = std::thread::available_parallelism()
+        .map_or(1, |n| n.get())
+        .min(jobs.len().max(1));
+    let done: Option<Vec<Vec<(usize, Report)>>> = std::thread::scope(|scope| {
+        let workers: Vec<_> = (0..threads)
+            .map(|_| {
+                scope.spawn(|| {
+                    let mut out = Vec::new();
+                    loop {
+                        let i = next.fetch_add(1, Ordering::Relaxed);
+                        let Some((file, id)) = jobs.get(i) else {
+                            return out;
+                        };
+                        out.push((i, one(file, id.as_deref(), vouched, trusted)));
+                    }
+                })
+            })
+            .collect();
+        workers.into_iter().map(|w| w.join().ok()).collect()
+    });
+    let Some(done) = done else {
+        return usage_error(cli.json, "internal", "a verifying thread stopped early");
+    };
+    let mut done: Vec<(usize, Report)> = done.into_iter().flatten().collect();
+    done.sort_by_key(|(i, _)| *i);
+    let reports: Vec<Report> = done.into_iter().map(|(_, r)| r.apply(policy)).collect();
+    let mut out = String::new();
+    for ((file, _), r) in jobs.iter().zip(&reports) {
+        match (cli.json, &r.outcome) {
+            (true, _) => {
+                let mut j = r.to_json();
+                if let Json::Obj(e) = &mut j {
+                    e.insert(2, ("file".into(), Json::str(file.clone())));
+                }
+                out.push_str(&j.line());
+            }
+            (false, Ok(_)) => out.push_str(&format!("VERIFIED  {file}\n")),
+            (false, Err(e)) => out.push_str(&format!(
+                "REJECTED: {}  {file}  ({})\n",
+                e.reason.code(),
+                e.detail
+            )),
+        }
+    }
+    if !cli.json {
+        let ok = reports.iter().filter(|r| r.is_verified()).count();
+        out.push_str(&format!(
+            "{ok} of {} verified. {SEVERAL_CAUTION}\n",
+            reports.len()
+        ));
+    }
+    print_out(&out);
+    exit_code(&reports)
+}
+
+/// Verifies one file; a manifest's id must match the certificate's, and
+/// an unsigned certificate it lists is vouched for by the manifest's
+/// signer.
+fn one(file: &str, id: Option<&str>, vouched: Option<&Signer>, trusted: &[TrustedKey]) -> Report {
+    let bytes = match read_bounded(file) {
+        Ok(b) => b,
+        Err(e) => {
+            let r = Rejection {
+                reason: Reason::NotACertificate,
+                detail: format!("cannot read {file}: {e}"),
+            };
+            return Report {
+                summary: Default::default(),
+                outcome: Err(r),
+            };
+        }
+    };
+    let mut report = classcert_verifier::verify_signed_with(&bytes, trusted, &mut |_| {});
+    let Some(id) = id else { return report };
+    if report.summary.certificate_sha256.as_deref() != Some(id) {
+        let detail = format!("the manifest lists the id {id}, and {file} has another");
+        report.outcome = Err(Rejection {
+            reason: Reason::ManifestMismatch,
+            detail,
+        });
+    } else if report.summary.signer.is_none() {
+        report.summary.signer = vouched.cloned();
+    }
+    report
 }
 
 /// Says what stopped the run before any check (exit code 2).

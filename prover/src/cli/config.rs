@@ -46,7 +46,7 @@ pub struct Claim {
 pub struct ProveArgs {
     /// The discriminant D: an optional '-' and decimal digits only, ≡ 0 or
     /// 1 mod 4, not a square; e.g. -3299 or 316.
-    #[arg(allow_hyphen_values = true, required_unless_present = "polynomial")]
+    #[arg(allow_hyphen_values = true, required_unless_present_any = ["polynomial", "batch", "range"])]
     pub discriminant: Option<String>,
     /// Instead of D: the maximal order of the number field Q[x]/(F), for a
     /// monic irreducible F of degree 3 to 6, written as usual, e.g.
@@ -57,9 +57,31 @@ pub struct ProveArgs {
     /// A second discriminant (refused with a clear message).
     #[arg(hide = true, allow_negative_numbers = true)]
     pub more: Vec<String>,
-    /// Where to write the certificate (its directory must exist).
+    /// Where to write the certificate (its directory must exist); with
+    /// --batch or --range, a directory (created if missing) for one
+    /// certificate per order (dD.cert, e.g. d-23.cert) and their manifest.
     #[arg(short, long)]
     pub output: PathBuf,
+    /// Prove many orders: one discriminant per line of FILE (# comments),
+    /// on all cores. A certificate already in the -o directory for the
+    /// same D is kept (after it verifies): an interrupted batch resumes.
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["discriminant", "polynomial", "claim_class_number", "resume", "range"])]
+    pub batch: Option<PathBuf>,
+    /// Prove the fundamental discriminants in A..B (both included, |A|,
+    /// |B| <= 10^14), as --batch does; e.g. --range=-1000000001000..-1000000000000.
+    #[arg(long, value_name = "A..B", allow_hyphen_values = true, conflicts_with_all = ["discriminant", "polynomial", "claim_class_number", "resume"])]
+    pub range: Option<String>,
+    /// With --range: every discriminant in it (≡ 0, 1 mod 4, not a
+    /// square), not only the fundamental ones.
+    #[arg(long, requires = "range")]
+    pub every_discriminant: bool,
+    /// Print the verified summary as JSON on stdout (schema classcert/1,
+    /// kind "row"; one object per line for a batch); messages go to stderr.
+    #[arg(long)]
+    pub json: bool,
+    /// With --batch or --range: the summary as CSV.
+    #[arg(long, conflicts_with = "json")]
+    pub csv: bool,
     #[command(flatten)]
     pub search: SearchArgs,
     /// Certify this class number with order witnesses (classes of exact

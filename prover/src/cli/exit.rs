@@ -14,6 +14,7 @@ pub enum Exit {
     Refuted = 3,
     Failed = 4,
     Internal = 5,
+    Rejected = 6,
 }
 
 impl From<Exit> for ExitCode {
@@ -58,6 +59,8 @@ Exit status:
      the checkpoint directory failed
   5  internal error: the verifier rejected the prover's own certificate
      (a bug; please report it)
+  6  a certificate did not verify (table, show --format markdown|latex|
+     csv): nothing was tabulated
   1 is not used.";
 
 /// Prints `msg` on stderr and returns `code`.

@@ -3,6 +3,7 @@
 //! terminal (`sink`), and every outcome maps to one exit status
 //! ([`Exit`] in `exit`, documented in `--help`).
 
+mod batch;
 mod config;
 mod demo;
 mod exit;
@@ -10,6 +11,7 @@ mod keys;
 mod parse;
 mod rounds;
 mod sink;
+mod table;
 
 use clap::{Parser, Subcommand};
 use classcert_format::json::Json;
@@ -75,6 +77,28 @@ enum Cmd {
         /// One JSON object (schema "classcert/1", kind "claims"; errors as kind "error").
         #[arg(long)]
         json: bool,
+        /// text and json show the claims as stated (not checked); markdown,
+        /// latex and csv give the row for a paper, after the verifier has
+        /// checked the certificate (as classcert table does).
+        #[arg(long, value_enum, value_name = "FORMAT", conflicts_with = "json")]
+        format: Option<classcert_prover::table::Format>,
+    },
+    /// One table of many verified certificates, for a paper or a script.
+    ///
+    /// Every certificate is verified first (on all cores); one that does
+    /// not verify stops the table (exit 6). Columns: D or F, h, the group,
+    /// R and the unit's norm when any row has them, the order's
+    /// maximality when any is not claimed maximal, the assumptions, the
+    /// certificate's SHA-256.
+    #[command(after_help = EXIT_HELP)]
+    Table {
+        /// Certificate files (signed or not; a signature is not checked here).
+        files: Vec<PathBuf>,
+        /// Also every certificate a manifest lists (prove --batch writes one).
+        #[arg(long, value_name = "MANIFEST")]
+        manifest: Option<PathBuf>,
+        #[arg(long, value_enum, default_value = "text")]
+        format: classcert_prover::table::Format,
     },
     /// Write a new Ed25519 key: KEY (PKCS#8 PEM, the secret, mode 0600) and
     /// KEY.pub (SPKI PEM, for classcert-verify --trusted-key).
@@ -130,20 +154,44 @@ pub fn style() -> Style {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.cmd {
-        Cmd::Prove { args, quiet } => match ProveConfig::new(args) {
-            Ok(config) => prove(config, quiet),
-            Err(e) => fail(Exit::Usage, &e),
-        },
+        Cmd::Prove { args, quiet } if args.batch.is_some() || args.range.is_some() => {
+            batch::run(&args, quiet, args.json, args.csv)
+        }
+        Cmd::Prove { args, quiet } => {
+            if args.csv {
+                return fail(Exit::Usage, "--csv is for a batch (--batch or --range)");
+            }
+            let json = args.json;
+            match ProveConfig::new(args) {
+                Ok(config) => prove(config, quiet, json),
+                Err(e) => fail(Exit::Usage, &e),
+            }
+        }
         Cmd::Collect { args, quiet } => rounds::collect(args, quiet),
         Cmd::Combine { args } => rounds::combine_dirs(args),
-        Cmd::Show { file, json } => show_file(&file, json),
+        Cmd::Show { file, json, format } => {
+            use classcert_prover::table::Format;
+            match format {
+                Some(f @ (Format::Markdown | Format::Latex | Format::Csv)) => {
+                    table::run(&[file], None, f)
+                }
+                Some(Format::Json) => show_file(&file, true),
+                Some(Format::Text) | None => show_file(&file, json),
+            }
+        }
+        Cmd::Table {
+            files,
+            manifest,
+            format,
+        } => table::run(&files, manifest.as_deref(), format),
         Cmd::Demo { dir, quiet } => demo::run(dir, quiet),
         Cmd::Keygen { output } => keys::keygen(&output),
         Cmd::Sign { file, key, output } => keys::sign(&file, &key, &output),
     }
 }
 
-fn prove(mut config: ProveConfig, quiet: bool) -> ExitCode {
+fn prove(mut config: ProveConfig, quiet: bool, json: bool) -> ExitCode {
+    let start = std::time::Instant::now();
     let sink = sink::CliSink::install(quiet);
     config.opts.progress = sink.hook();
     let result = match (config.claim, &config.polynomial) {
@@ -166,13 +214,30 @@ fn prove(mut config: ProveConfig, quiet: bool) -> ExitCode {
                     &format!("cannot write {}: {e}", config.output.display()),
                 );
             }
-            println!(
+            let wrote = format!(
                 "wrote {} ({} bytes, id {})",
                 config.output.display(),
                 bytes.len(),
                 classcert_format::hex(&id)
             );
-            Exit::Success.into()
+            if !json {
+                println!("{wrote}");
+                return Exit::Success.into();
+            }
+            eprintln!("classcert: {wrote}");
+            match table::row_of(&bytes) {
+                Ok(mut row) => {
+                    row.seconds = Some(start.elapsed().as_secs_f64());
+                    row.bytes = Some(bytes.len());
+                    row.file = Some(config.output.display().to_string());
+                    print!("{}", classcert_prover::table::row_json(&row).render());
+                    Exit::Success.into()
+                }
+                Err(e) => fail(
+                    Exit::Internal,
+                    &format!("the certificate written does not verify: {e}"),
+                ),
+            }
         }
         Err(e) => fail(Exit::of(&e), &e.to_string()),
     }

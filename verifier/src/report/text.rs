@@ -1,6 +1,7 @@
 //! The verdict as text: `VERIFIED` or `REJECTED: <reason>` on the first
 //! line, then what was shown, what it rests on and what it does not prove.
 
+use super::reason::Reason;
 use super::view::CertificateKind;
 use super::{generator_text, invariants_text, Report, Verified};
 use crate::analytic::Method;
@@ -97,7 +98,12 @@ impl Report {
                     None => s.push_str(&format!("  order         D = {disc}\n")),
                 }
                 s.push_str(&format!("  why           {}\n", r.detail));
-                s.push_str("  Nothing in this certificate should be relied on.\n");
+                s.push_str(match r.reason {
+                    Reason::Policy => {
+                        "  Every check passed: the certificate holds, but not under this policy.\n"
+                    }
+                    _ => "  Nothing in this certificate should be relied on.\n",
+                });
                 return s;
             }
         };
