@@ -213,3 +213,52 @@ fn a_batch_of_published_class_numbers() {
     assert!(bad[0].contains("\"reason\": \"manifest-mismatch\"") && bad[0].contains("d-4.cert"));
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn completions_manual_pages_and_plain_output_off_a_terminal() {
+    for shell in ["bash", "zsh", "fish"] {
+        for program in ["classcert", "classcert-verify"] {
+            let o = programs::run("classcert", &["completions", shell, "--program", program]);
+            assert!(o.status.success(), "{shell} {program}");
+            let script = programs::stdout(&o);
+            assert!(script.contains(program), "{shell} {program}");
+        }
+    }
+    let o = programs::run(
+        "classcert",
+        &["completions", "bash", "--program", "classcert-verify"],
+    );
+    assert!(
+        programs::stdout(&o).contains("--trusted-key"),
+        "the verifier's own options"
+    );
+    let dir = programs::scratch("manual");
+    let o = programs::run("classcert", &["man", "--dir", dir.to_str().unwrap()]);
+    assert!(o.status.success());
+    let page = std::fs::read_to_string(dir.join("classcert-verify.1")).unwrap();
+    assert!(
+        page.starts_with(".ie \\n(.g") || page.contains(".TH"),
+        "roff"
+    );
+    assert!(page.contains("manifest") && page.contains("Exit codes"));
+    assert!(std::fs::read_to_string(dir.join("classcert.1"))
+        .unwrap()
+        .contains(".TH"));
+    // output to a pipe has no colour codes, and several files (one from
+    // standard input is not among them) give one line each
+    let a = golden("golden/minus-3299.cert");
+    let b = golden("golden/plus-316.cert");
+    let o = programs::run(
+        "classcert-verify",
+        &[a.to_str().unwrap(), b.to_str().unwrap()],
+    );
+    assert!(o.status.success());
+    let out = programs::stdout(&o);
+    assert!(!out.contains('\x1b'), "no escape codes off a terminal");
+    assert_eq!(
+        out.lines().filter(|l| l.starts_with("VERIFIED  ")).count(),
+        2,
+        "{out}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -7,10 +7,10 @@
 
 #![forbid(unsafe_code)]
 
-use clap::{Parser, ValueEnum};
+use clap::Parser;
 use classcert_format::json::Json;
 use classcert_verifier::report::reason::Rejection;
-use classcert_verifier::report::{json, Assumption, Policy, Reason, Report};
+use classcert_verifier::report::{json, Policy, Reason, Report};
 use classcert_verifier::signature::Signer;
 use classcert_verifier::signature::TrustedKey;
 use classcert_verifier::STAGES;
@@ -21,82 +21,8 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-const AFTER_HELP: &str = "\
-FILE may be - to read the certificate from standard input.
-
-Exit codes:
-  0  verified, and the policy (if any) holds
-  1  not verified: a check failed, the file is not a certificate, is
-     malformed, is over the verifier's limits, or its signature fails
-  2  usage or I/O error (bad arguments, unreadable file or key)
-  3  every check passed, but the policy refused the result (reason
-     policy): an assumption not allowed, not maximal, another group,
-     or not signed by a trusted key
-
-The first line of the text output is VERIFIED or REJECTED: <reason>.
-With --json, one JSON object (schema classcert/1) is printed, also for
-usage and I/O errors (kind \"error\").";
-
-#[derive(Parser)]
-#[command(
-    name = "classcert-verify",
-    version,
-    about = "Re-checks a classcert certificate on its own and prints a verdict",
-    after_help = AFTER_HELP
-)]
-struct Cli {
-    /// The certificate files (- for standard input). With more than one,
-    /// or with --manifest, one line per file (JSON: one object per line).
-    #[arg(required_unless_present = "manifest")]
-    files: Vec<String>,
-    /// Verify every certificate a manifest lists (written by classcert
-    /// prove --batch), checking each file's id against it; a signed
-    /// manifest is checked against --trusted-key, and vouches for the ids.
-    #[arg(long, value_name = "MANIFEST")]
-    manifest: Option<String>,
-    /// Print one JSON object instead of text.
-    #[arg(long)]
-    json: bool,
-    /// Refuse, with reason `policy`, a verified result that does not meet
-    /// this requirement.
-    #[arg(long, value_enum, value_name = "WHAT")]
-    require: Vec<Require>,
-    /// Accept only these assumptions (repeatable): GRH, bpsw-probable-prime,
-    /// squarefree-cofactor; any other refuses the result.
-    #[arg(long, value_name = "ASSUMPTION", value_parser = parse_assumption)]
-    allow: Vec<Assumption>,
-    /// Refuse the result unless its class number is H.
-    #[arg(long, value_name = "H")]
-    expect_class_number: Option<rug::Integer>,
-    /// Refuse the result unless its invariants are d1,d2,... (empty for the
-    /// trivial group).
-    #[arg(long, value_name = "D1,D2,...", value_delimiter = ',', num_args = 0..)]
-    expect_invariants: Option<Vec<rug::Integer>>,
-    /// Accept only a certificate signed by this key (an Ed25519 public key,
-    /// SPKI PEM, as `classcert keygen` writes it); repeatable.
-    #[arg(long, value_name = "PUB")]
-    trusted_key: Vec<String>,
-    /// Read the same settings from a policy file (key = value lines: allow,
-    /// require, expect-class-number, expect-invariants, trusted-keys).
-    #[arg(long, value_name = "FILE")]
-    policy: Option<String>,
-    /// Print only the verdict line (text) and no progress.
-    #[arg(short, long)]
-    quiet: bool,
-}
-
-#[derive(Clone, Copy, ValueEnum)]
-enum Require {
-    /// No assumption at all: neither GRH nor "BPSW probable prime".
-    Unconditional,
-    /// The maximal order, certified.
-    Maximal,
-}
-
-fn parse_assumption(s: &str) -> Result<Assumption, String> {
-    Assumption::from_name(s)
-        .ok_or_else(|| "expected GRH, bpsw-probable-prime or squarefree-cofactor".to_string())
-}
+mod cli;
+use cli::{Cli, Require};
 
 /// The policy from the options and the policy file, and the trusted keys.
 fn policy(cli: &Cli) -> Result<(Policy, Vec<TrustedKey>), String> {
@@ -203,8 +129,24 @@ fn main() -> ExitCode {
     } else {
         report.to_text()
     };
-    print_out(&text);
+    print_out(&paint(text));
     exit_code(&[report])
+}
+
+/// The verdict word in colour (green, red) when standard output is a
+/// terminal and `NO_COLOR` is unset or empty (no-color.org).
+fn paint(text: String) -> String {
+    let plain = std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty());
+    if plain || !std::io::stdout().is_terminal() {
+        return text;
+    }
+    match text.strip_prefix("VERIFIED") {
+        Some(rest) => format!("\x1b[1;32mVERIFIED\x1b[0m{rest}"),
+        None => match text.strip_prefix("REJECTED") {
+            Some(rest) => format!("\x1b[1;31mREJECTED\x1b[0m{rest}"),
+            None => text,
+        },
+    }
 }
 
 /// 0 when every report verified; else 1 when a check failed in any; else
@@ -297,12 +239,12 @@ fn several(
                 }
                 out.push_str(&j.line());
             }
-            (false, Ok(_)) => out.push_str(&format!("VERIFIED  {file}\n")),
-            (false, Err(e)) => out.push_str(&format!(
+            (false, Ok(_)) => out.push_str(&paint(format!("VERIFIED  {file}\n"))),
+            (false, Err(e)) => out.push_str(&paint(format!(
                 "REJECTED: {}  {file}  ({})\n",
                 e.reason.code(),
                 e.detail
-            )),
+            ))),
         }
     }
     if !cli.json {

@@ -27,7 +27,7 @@ use std::process::ExitCode;
 #[command(
     name = "classcert",
     version,
-    about = "Certified class groups of quadratic orders, imaginary or real (with the unit and regulator of real ones)",
+    about = "Certified class groups, units and regulators of quadratic orders (imaginary or real) and of number fields of degree 3 to 6",
     after_help = EXIT_HELP
 )]
 struct Cli {
@@ -121,6 +121,22 @@ enum Cmd {
         #[arg(short, long, value_name = "SIGNED")]
         output: PathBuf,
     },
+    /// Print a shell completion script for classcert or classcert-verify.
+    ///
+    /// e.g. `classcert completions bash > /etc/bash_completion.d/classcert`.
+    Completions {
+        shell: clap_complete::Shell,
+        #[arg(long, value_enum, default_value = "classcert")]
+        program: Program,
+    },
+    /// Write the manual pages classcert.1 and classcert-verify.1 (roff, from
+    /// the same definitions as --help) into DIR.
+    #[command(after_help = EXIT_HELP)]
+    Man {
+        /// An existing directory, e.g. /usr/local/share/man/man1.
+        #[arg(long, value_name = "DIR")]
+        dir: PathBuf,
+    },
     /// Prove and verify the demo scenario (a few seconds in release builds).
     #[command(after_help = EXIT_HELP)]
     Demo {
@@ -132,6 +148,50 @@ enum Cmd {
         #[arg(short, long)]
         quiet: bool,
     },
+}
+
+/// The verifier's command line, read from its own definition so that the
+/// completions and the manual page describe exactly what it accepts.
+#[allow(dead_code)]
+#[path = "../../../verifier/src/cli.rs"]
+mod verifier_cli;
+
+#[derive(Clone, Copy, clap::ValueEnum)]
+enum Program {
+    Classcert,
+    ClasscertVerify,
+}
+
+/// The clap definition of `program`.
+fn command(program: Program) -> clap::Command {
+    use clap::CommandFactory;
+    match program {
+        Program::Classcert => Cli::command(),
+        Program::ClasscertVerify => verifier_cli::Cli::command(),
+    }
+}
+
+/// `classcert man --dir DIR`.
+fn man(dir: &std::path::Path) -> ExitCode {
+    if let Err(e) = config::writable_dir(dir) {
+        return fail(Exit::Usage, &e);
+    }
+    for program in [Program::Classcert, Program::ClasscertVerify] {
+        let cmd = command(program);
+        let path = dir.join(format!("{}.1", cmd.get_name()));
+        let mut page = Vec::new();
+        let written = clap_mangen::Man::new(cmd)
+            .render(&mut page)
+            .and_then(|_| std::fs::write(&path, &page));
+        if let Err(e) = written {
+            return fail(
+                Exit::Failed,
+                &format!("cannot write {}: {e}", path.display()),
+            );
+        }
+        println!("wrote {}", path.display());
+    }
+    Exit::Success.into()
 }
 
 /// Whether the locale promises UTF-8 output (else text output is ASCII).
@@ -185,6 +245,13 @@ pub fn main() -> ExitCode {
             format,
         } => table::run(&files, manifest.as_deref(), format),
         Cmd::Demo { dir, quiet } => demo::run(dir, quiet),
+        Cmd::Completions { shell, program } => {
+            let mut cmd = command(program);
+            let name = cmd.get_name().to_string();
+            clap_complete::generate(shell, &mut cmd, name, &mut std::io::stdout());
+            Exit::Success.into()
+        }
+        Cmd::Man { dir } => man(&dir),
         Cmd::Keygen { output } => keys::keygen(&output),
         Cmd::Sign { file, key, output } => keys::sign(&file, &key, &output),
     }
