@@ -21,15 +21,17 @@ const AFTER_HELP: &str = "\
 FILE may be - to read the certificate from standard input.
 
 Exit codes:
-  0  verified, and the policy (if any) holds
+  0  verified, and the policy (if any) and the --answer (if any) hold
   1  not verified: a check failed, the file is not a certificate, is
-     malformed, is over the verifier's limits, or its signature fails
+     malformed, is over the verifier's limits, or its signature fails;
+     or the --answer was rejected
   2  usage or I/O error (bad arguments, unreadable file or key)
   3  every check passed, but the policy refused the result (reason
      policy): an assumption not allowed, not maximal, another group,
      or not signed by a trusted key
 
-The first line of the text output is VERIFIED or REJECTED: <reason>.
+The first line of the text output is VERIFIED or REJECTED: <reason>;
+with --answer, the second is ANSWER VERIFIED or ANSWER REJECTED.
 With --json, one JSON object (schema classcert/1) is printed, also for
 usage and I/O errors (kind \"error\").";
 
@@ -72,6 +74,10 @@ struct Cli {
     /// Print only the verdict line (text) and no progress.
     #[arg(short, long)]
     quiet: bool,
+    /// Check this answer of `classcert ask` against the certificate: its
+    /// verdict follows the certificate's (JSON key `answer`).
+    #[arg(long, value_name = "ANSWER")]
+    answer: Option<String>,
 }
 
 #[derive(Clone, Copy, ValueEnum)]
@@ -162,6 +168,12 @@ fn main() -> ExitCode {
             return usage_error(cli.json, "io-error", &format!("cannot read {what}: {e}"));
         }
     };
+    let answer = (cli.answer.as_deref().map(read_bounded).transpose())
+        .map_err(|e| format!("cannot read the answer: {e}"));
+    let answer = match answer {
+        Ok(a) => a,
+        Err(detail) => return usage_error(cli.json, "io-error", &detail),
+    };
     // The ticker thread starts only once a run has taken QUIET_FOR: a
     // second thread makes every allocation pay for thread safety (about 7%
     // of a short run), which a run that ends quickly need not pay.
@@ -179,21 +191,22 @@ fn main() -> ExitCode {
     if let Some(t) = ticker {
         t.stop();
     }
-    let report = report.apply(&policy);
+    let report = report.apply(&policy).check_answer(answer.as_deref());
     let text = if cli.json {
         report.to_json().render()
     } else if cli.quiet {
         let mut t = report.to_text();
-        t.truncate(t.find('\n').map_or(t.len(), |i| i + 1));
+        let n = usize::from(answer.is_some());
+        t.truncate(t.match_indices('\n').nth(n).map_or(t.len(), |(i, _)| i + 1));
         t
     } else {
         report.to_text()
     };
     print_out(&text);
     match &report.outcome {
-        Ok(_) => ExitCode::SUCCESS,
+        Ok(_) if report.answer_holds() => ExitCode::SUCCESS,
         Err(r) if r.reason == Reason::Policy => ExitCode::from(3),
-        Err(_) => ExitCode::from(1),
+        _ => ExitCode::from(1),
     }
 }
 
