@@ -3,6 +3,7 @@
 //! terminal (`sink`), and every outcome maps to one exit status
 //! ([`Exit`] in `exit`, documented in `--help`).
 
+mod ask;
 mod config;
 mod demo;
 mod exit;
@@ -68,6 +69,11 @@ enum Cmd {
         #[command(flatten)]
         args: rounds::CombineArgs,
     },
+    /// The exponents of a class over a certificate's generators (a discrete
+    /// log), and its order: D < 0; writes an answer file for
+    /// classcert-verify CERT --answer FILE.
+    #[command(after_help = EXIT_HELP)]
+    Ask(ask::AskArgs),
     /// Print what a certificate claims (without checking it).
     #[command(after_help = EXIT_HELP)]
     Show {
@@ -136,6 +142,7 @@ pub fn main() -> ExitCode {
         },
         Cmd::Collect { args, quiet } => rounds::collect(args, quiet),
         Cmd::Combine { args } => rounds::combine_dirs(args),
+        Cmd::Ask(args) => ask::run(args),
         Cmd::Show { file, json } => show_file(&file, json),
         Cmd::Demo { dir, quiet } => demo::run(dir, quiet),
         Cmd::Keygen { output } => keys::keygen(&output),
