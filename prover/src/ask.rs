@@ -27,11 +27,11 @@
 //! reduction the verifier repeats: `I · ∏ g_i^{-e_i}` reduces to the
 //! principal form.
 
-use crate::fb::sqrt_mod;
+use crate::fb::prime_b;
 use crate::rng::Rng;
 use crate::ProveError;
 use classcert_format::{Answer, Document, Form as StatedForm, Lattice, Witness};
-use classcert_verifier::math::{kronecker_prime, mod_small, Form};
+use classcert_verifier::math::{kronecker_prime, Form};
 use rug::integer::IsPrime;
 use rug::ops::RemRounding;
 use rug::Integer;
@@ -111,21 +111,7 @@ pub fn prime_form(d: &Integer, p: u64) -> Result<StatedForm, ProveError> {
             "{p} is inert in the order of discriminant {d}: no prime ideal has norm {p}"
         )));
     }
-    let b = if p == 2 {
-        match d.mod_u(8) {
-            1 => 1,
-            0 => 0,
-            _ => 2,
-        }
-    } else {
-        let s = sqrt_mod(mod_small(d, p), p);
-        // of the solutions b and 2p - b mod 2p, the one below p
-        if (s % 2 == 1) == d.is_odd() {
-            s
-        } else {
-            p - s
-        }
-    };
+    let b = prime_b(d, p);
     let (b, p) = (Integer::from(b), Integer::from(p));
     let c = (Integer::from(b.square_ref()) - d) / Integer::from(&p * 4u32);
     if Integer::from(p.gcd_ref(&b)).gcd(&c) != 1 {

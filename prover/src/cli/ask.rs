@@ -52,27 +52,33 @@ pub fn run(args: AskArgs) -> ExitCode {
             print!("{out}");
             Exit::Success.into()
         }
-        Err((code, e)) if args.json => {
-            let reason = match code {
-                Exit::Usage => "usage",
-                Exit::Failed => "search-failed",
-                _ => "internal",
-            };
+        Err((code, reason, e)) if args.json => {
             print!(
                 "{}",
                 classcert_prover::show::error_json(reason, &e).render()
             );
             code.into()
         }
-        Err((code, e)) => fail(code, &e),
+        Err((code, _, e)) => fail(code, &e),
     }
 }
 
-fn answer(args: &AskArgs) -> Result<String, (Exit, String)> {
-    let prove_error = |e: ProveError| (Exit::of(&e), e.to_string());
-    let usage = |e: String| (Exit::Usage, e);
+/// A refusal: the exit status, the JSON reason and the message.
+type Refusal = (Exit, &'static str, String);
+
+fn answer(args: &AskArgs) -> Result<String, Refusal> {
+    let prove_error = |e: ProveError| {
+        let reason = match e {
+            ProveError::SearchFailed(_) => "search-failed",
+            ProveError::SelfCheckFailed(_) => "internal",
+            _ => "usage",
+        };
+        (Exit::of(&e), reason, e.to_string())
+    };
+    let usage = |e: String| (Exit::Usage, "usage", e);
+    let io = |e: String| (Exit::Usage, "io-error", e);
     let bytes = std::fs::read(&args.cert)
-        .map_err(|e| usage(format!("cannot read {}: {e}", args.cert.display())))?;
+        .map_err(|e| io(format!("cannot read {}: {e}", args.cert.display())))?;
     let c = certified(&bytes).map_err(prove_error)?;
     let form = match (&args.class, args.prime) {
         (Some(s), _) => parse_form(s).map_err(usage)?,
@@ -82,10 +88,8 @@ fn answer(args: &AskArgs) -> Result<String, (Exit, String)> {
     let asked = c.ask(&form, args.seed).map_err(prove_error)?;
     if let Some(path) = &args.output {
         classcert_prover::write_certificate(path, &asked.bytes).map_err(|e| {
-            (
-                Exit::Failed,
-                format!("cannot write {}: {e}", path.display()),
-            )
+            let why = format!("cannot write {}: {e}", path.display());
+            (Exit::Failed, "io-error", why)
         })?;
     }
     Ok(match args.json {

@@ -12,7 +12,7 @@
 use super::OrderArithmetic;
 use crate::field::order::FieldOrder;
 use crate::field::prime::{check_decomposition, check_prime, valuation, CheckedPrime};
-use crate::limits::{MAX_ELEMENT_BITS, MAX_FACTOR_BASE};
+use crate::limits::MAX_ELEMENT_BITS;
 use crate::order::MaximalityOk;
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, reject_if, Check, Reason};
@@ -175,16 +175,7 @@ pub(crate) fn check_field_generation(
     disc_f: &Integer,
     x: u64,
 ) -> Check<FieldGenerationOk> {
-    reject_if(
-        !maximality.is_maximal(),
-        Reason::GenerationTheoremNotApplicable,
-        "this generation bound holds for the maximal order only, and maximality is not certified",
-    )?;
-    reject_if(
-        factor_base.len() > MAX_FACTOR_BASE,
-        Reason::OverLimit,
-        "factor base too large",
-    )?;
+    super::generation::check_applicable(true, maximality, factor_base.len())?;
     let mut ideals = Vec::with_capacity(factor_base.len());
     for (i, entry) in factor_base.iter().enumerate() {
         if ideals

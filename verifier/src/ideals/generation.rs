@@ -77,6 +77,18 @@ impl<I> GenerationOk<I> {
     }
 }
 
+/// A bound for the maximal order only (`field_only`) needs certified
+/// maximality; and the factor base has at most [`MAX_FACTOR_BASE`] entries.
+pub(crate) fn check_applicable(field_only: bool, m: &MaximalityOk, entries: usize) -> Check<()> {
+    reject_if(
+        field_only && !m.is_maximal(),
+        Reason::GenerationTheoremNotApplicable,
+        "this generation bound holds for the maximal order only, and maximality is not certified",
+    )?;
+    let why = "factor base too large";
+    reject_if(entries > MAX_FACTOR_BASE, Reason::OverLimit, why)
+}
+
 /// Checks the factor base against `statement`; `primes` holds every prime
 /// up to the trial-division bound, which is at least `B_gen`.
 pub(crate) fn check_generation<A: OrderArithmetic>(
@@ -88,16 +100,7 @@ pub(crate) fn check_generation<A: OrderArithmetic>(
 ) -> Check<GenerationOk<A::Ideal>> {
     let Statement { theorem, bound } = statement;
     let field_only = theorem.id == registry::BACH_FIELD || theorem.id == registry::REDUCED_FORMS;
-    reject_if(
-        field_only && !maximality.is_maximal(),
-        Reason::GenerationTheoremNotApplicable,
-        "this generation bound holds for the maximal order only, and maximality is not certified",
-    )?;
-    reject_if(
-        factor_base.len() > MAX_FACTOR_BASE,
-        Reason::OverLimit,
-        "factor base too large",
-    )?;
+    check_applicable(field_only, maximality, factor_base.len())?;
     let mut ideals = Vec::with_capacity(factor_base.len());
     let mut prev = 0u64;
     for (i, entry) in factor_base.iter().enumerate() {
