@@ -59,7 +59,7 @@ impl Report {
 fn check(report: &Report, a: &Answer) -> Check<()> {
     let v = report.outcome.as_ref().map_err(|r| Rejection {
         reason: r.reason,
-        detail: "the certificate is not verified: no answer is checked".into(),
+        detail: "the certificate was not accepted, so no answer is checked".into(),
     })?;
     let id = classcert_format::hex(&a.certificate);
     reject_if(
