@@ -434,6 +434,27 @@ fn the_prover_refuses_what_it_cannot_answer() {
         ask(&witness, &one, 1),
         Err(ProveError::Unsupported(_))
     ));
+    // the verifier still checks an answer against an order witness, whose
+    // classes of exact orders d_i (independent, prod d_i = h) are a basis
+    // too: here Cl(-23) = <g> of order 3 (OEIS A006641: h(-23) = 3)
+    let report = classcert_verifier::verify_bytes(&witness);
+    let (gens, inv) = structure(&report);
+    assert_eq!(inv, vec![Integer::from(3)]);
+    let id = classcert_format::decode_document(&witness).unwrap().id;
+    let g2 = compose(&gens[0], &gens[0], &Integer::from(-23));
+    let answer = |e: u32, order: u32| Answer {
+        certificate: id,
+        form: stated(&g2),
+        exponents: vec![Integer::from(e)],
+        order: Integer::from(order),
+        witness: classcert_format::Witness::FormReduction,
+    };
+    assert_eq!(
+        answer_reason(&report, &answer(2, 3).encode().unwrap()),
+        None
+    );
+    let wrong = answer(1, 3).encode().unwrap();
+    assert_eq!(answer_reason(&report, &wrong), Some("answer-not-principal"));
     // no prime ideal of norm 7 ((-13196/7) = (6/7) = -1: 7 is inert), nor
     // an invertible one of norm 2 (2 divides the conductor: -13196/4 =
     // -3299 is a discriminant)
