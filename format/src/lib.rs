@@ -16,12 +16,14 @@
 
 #![forbid(unsafe_code)]
 
+pub mod answer;
 pub mod cbor;
 pub mod cose;
 pub mod field;
 pub mod json;
 pub mod model;
 
+pub use answer::Answer;
 pub use cbor::DecodeError;
 pub use field::{Embedding, FieldBody, FieldPrime, FieldUnits};
 pub use model::*;

@@ -462,7 +462,7 @@ pub(crate) fn sparse(v: &[(u32, Integer)]) -> Value {
     )
 }
 
-fn witness(w: &Witness) -> Value {
+pub(crate) fn witness(w: &Witness) -> Value {
     let kind = |k: &str| ("kind", Value::Text(k.into()));
     match w {
         Witness::FormReduction => cbor::map(vec![kind("form-reduction")]),
@@ -544,7 +544,7 @@ fn evidence(e: &PrimalityEvidence) -> Value {
     }
 }
 
-fn form(f: &Form) -> Value {
+pub(crate) fn form(f: &Form) -> Value {
     Value::Array(vec![cbor::int(&f.a), cbor::int(&f.b), cbor::int(&f.c)])
 }
 
@@ -823,7 +823,7 @@ pub(crate) fn get_sparse(v: &Value, what: &str) -> Result<Vec<(u32, Integer)>, D
         .collect()
 }
 
-fn get_witness(v: &Value, what: &str) -> Result<Witness, DecodeError> {
+pub(crate) fn get_witness(v: &Value, what: &str) -> Result<Witness, DecodeError> {
     let (kind, mut m) = get_kind(v, what)?;
     let w = match kind.as_str() {
         "form-reduction" => Witness::FormReduction,
@@ -907,7 +907,7 @@ fn get_evidence(v: &Value) -> Result<PrimalityEvidence, DecodeError> {
     Ok(e)
 }
 
-fn get_form(v: &Value, what: &str) -> Result<Form, DecodeError> {
+pub(crate) fn get_form(v: &Value, what: &str) -> Result<Form, DecodeError> {
     match cbor::get_array(v, what)? {
         [a, b, c] => Ok(Form {
             a: cbor::get_int(a, what)?,

@@ -59,6 +59,26 @@ pub fn sqrt_mod(a: u64, p: u64) -> u64 {
     r
 }
 
+/// The `b` of the prime ideal `(p, (b + sqrt D)/2)` with the smaller
+/// `b >= 0` (so `0 <= b <= p`), for a prime `p` with `(D/p) != -1`: of the
+/// two solutions `b` and `2p - b` of `b^2 ≡ D (mod 4p)` modulo `2p`, the
+/// one below `p` (or `p` itself when `p | D` and `D` is odd).
+pub fn prime_b(d: &Integer, p: u64) -> u64 {
+    if p == 2 {
+        return match d.mod_u(8) {
+            1 => 1,
+            0 => 0,
+            _ => 2,
+        };
+    }
+    let s = sqrt_mod(mod_small(d, p), p);
+    if (s % 2 == 1) == d.is_odd() {
+        s
+    } else {
+        p - s
+    }
+}
+
 #[derive(Debug, Clone)]
 pub struct FactorBase {
     pub primes: Vec<u64>,
@@ -74,25 +94,11 @@ impl FactorBase {
             bs: Vec::new(),
             forms: Vec::new(),
         };
-        let d_odd = d.is_odd();
         for &p in primes.iter().take_while(|&&p| p <= bound) {
             if conductor.contains(&p) || kronecker_prime(d, p) == -1 {
                 continue;
             }
-            let b = if p == 2 {
-                match d.mod_u(8) {
-                    1 => 1,
-                    0 => 0,
-                    _ => 2,
-                }
-            } else {
-                let s = sqrt_mod(mod_small(d, p), p);
-                if (s % 2 == 1) == d_odd {
-                    s
-                } else {
-                    p - s
-                }
-            };
+            let b = prime_b(d, p);
             let form = Form::new(Integer::from(p), Integer::from(b), d)
                 .expect("b^2 = D mod 4p by construction");
             fb.primes.push(p);

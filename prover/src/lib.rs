@@ -32,6 +32,7 @@
     clippy::panic
 )]
 
+pub mod ask;
 pub mod checkpoint;
 pub mod drivers;
 pub mod factor;

@@ -71,12 +71,22 @@ fn untag(v: Value) -> Value {
 
 /// Both passes: the bytes as they are, then with bignums made visible.
 fn validate(bytes: &[u8]) -> Result<(), String> {
-    cddl::validate_cbor_from_slice(SCHEMA, bytes, None).map_err(|e| e.to_string())?;
+    validate_against(SCHEMA, bytes)
+}
+
+/// [`validate`] for an answer file: the validator takes the schema's first
+/// rule as the root, so a rule naming `answer-file` is put first.
+fn validate_answer(bytes: &[u8]) -> Result<(), String> {
+    validate_against(&format!("answer-root = answer-file\n{SCHEMA}"), bytes)
+}
+
+fn validate_against(schema: &str, bytes: &[u8]) -> Result<(), String> {
+    cddl::validate_cbor_from_slice(schema, bytes, None).map_err(|e| e.to_string())?;
     assert!(
-        SCHEMA.contains(INTEGER_RULE),
+        schema.contains(INTEGER_RULE),
         "certificate.cddl no longer defines {INTEGER_RULE:?}"
     );
-    let schema = SCHEMA.replace(INTEGER_RULE, UNTAGGED_INTEGER_RULE);
+    let schema = schema.replace(INTEGER_RULE, UNTAGGED_INTEGER_RULE);
     let ast = cddl::cddl_from_str(&schema, true)?;
     let tree = untag(decode_cbor(bytes).map_err(|e| e.to_string())?);
     let mut v = CBORValidator::new(&ast, tree, None);
@@ -492,4 +502,51 @@ fn field_certificates_match_the_schema() {
             panic!("{f}: the certificate does not match the schema: {e}");
         }
     }
+}
+
+#[test]
+fn answer_files_match_the_schema() {
+    // the class of a prime form of D = -3299, the same answer with a bignum
+    // order, and damaged answers
+    let bytes = certificate(-3299);
+    let d = Integer::from(-3299);
+    let p = classcert_prover::ask::prime_form(&d, 5).expect("5 splits");
+    let asked = classcert_prover::ask::ask(&bytes, &p, 1).expect("an answer");
+    let answer = asked.bytes;
+    if let Err(e) = validate_answer(&answer) {
+        panic!("an answer the format crate wrote does not match answer-file:\n{e}");
+    }
+    assert!(validate(&answer).is_err(), "an answer is not a certificate");
+    let mut big = asked.answer.clone();
+    big.order = Integer::from(1) << 80u32;
+    assert!(
+        validate_answer(&big.encode().unwrap()).is_ok(),
+        "a bignum order"
+    );
+    for key in [
+        "kind",
+        "form",
+        "order",
+        "format",
+        "witness",
+        "exponents",
+        "certificate-sha256",
+    ] {
+        let out = damaged!(&answer, |t| {
+            remove!(t, key);
+        });
+        assert!(validate_answer(&out).is_err(), "an answer without {key}");
+    }
+    let out = damaged!(&answer, |t| {
+        field!(t, "certificate-sha256")
+            .as_bytes_mut()
+            .expect("bytes")
+            .pop();
+    });
+    assert!(validate_answer(&out).is_err(), "a 31-byte id");
+    let out = damaged!(&answer, |t| {
+        let kind = field!(field!(t, "witness"), "kind");
+        *kind.as_text_mut().expect("text") = "element".into();
+    });
+    assert!(validate_answer(&out).is_err(), "another witness kind");
 }

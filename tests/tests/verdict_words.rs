@@ -8,6 +8,7 @@
 //! * The Morrison entry states the general-Q theorem the check uses.
 //! * The reduced-forms generation entry holds for D < 0 only.
 //! * A non-maximal order's verdict says that maximality was not claimed.
+//! * Every reason code is documented in the README.
 
 // Tests report failures by panicking (the panic-free set is the
 // verifier's rule for its library, not for tests).
@@ -233,4 +234,22 @@ fn show_and_verify_share_one_vocabulary() {
         checked += 1;
     }
     assert!(checked > 40, "{checked} keys compared");
+}
+
+/// Every reason code a verdict can give is in the README's tables, once
+/// (`verifier/src/report/reason.rs` lists them all in one place).
+#[test]
+fn every_reason_code_is_documented_once() {
+    use classcert_verifier::report::Reason;
+    let readme =
+        std::fs::read_to_string(classcert_tests::support::workspace_dir().join("README.md"))
+            .expect("README.md");
+    let mut codes: Vec<&str> = Reason::ALL.iter().map(|r| r.code()).collect();
+    for code in &codes {
+        let row = format!("| `{code}` |");
+        assert_eq!(readme.matches(&row).count(), 1, "README rows for {code}");
+    }
+    codes.sort_unstable();
+    codes.dedup();
+    assert_eq!(codes.len(), Reason::ALL.len(), "codes are distinct");
 }

@@ -11,15 +11,17 @@ files or --manifest, one line per file (--json: one object per line).
 VERIFIED and REJECTED are coloured on a terminal unless NO_COLOR is set.
 
 Exit codes:
-  0  verified, and the policy (if any) holds
+  0  verified, and the policy (if any) and the --answer (if any) hold
   1  not verified: a check failed, the file is not a certificate, is
-     malformed, is over the verifier's limits, or its signature fails
+     malformed, is over the verifier's limits, or its signature fails;
+     or the --answer was rejected
   2  usage or I/O error (bad arguments, unreadable file or key)
   3  every check passed, but the policy refused the result (reason
      policy): an assumption not allowed, not maximal, another group,
      or not signed by a trusted key
 
-The first line of the text output is VERIFIED or REJECTED: <reason>.
+The first line of the text output is VERIFIED or REJECTED: <reason>;
+with --answer, the second is ANSWER VERIFIED or ANSWER REJECTED.
 With --json, one JSON object (schema classcert/1) is printed, also for
 usage and I/O errors (kind \"error\").";
 
@@ -69,6 +71,10 @@ pub struct Cli {
     /// Print only the verdict line (text) and no progress.
     #[arg(short, long)]
     pub quiet: bool,
+    /// Check this answer of `classcert ask` against the certificate: its
+    /// verdict follows the certificate's (JSON key `answer`).
+    #[arg(long, value_name = "ANSWER", conflicts_with = "manifest")]
+    pub answer: Option<String>,
 }
 
 #[derive(Clone, Copy, ValueEnum)]

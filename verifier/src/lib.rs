@@ -40,6 +40,7 @@
 )]
 
 mod analytic;
+pub mod answer;
 mod arith;
 mod field;
 mod ideals;
@@ -119,6 +120,21 @@ use classcert_format::{DecodeError, Document, FileError, Order};
 use report::reason::Reason;
 use report::{Rejection, Report, Summary};
 
+/// The reason code for a file the decoder refused.
+fn decode_reason(e: &FileError) -> Reason {
+    match e {
+        FileError::TooLarge { .. } => Reason::OverLimit,
+        FileError::NotACertificate(_) => Reason::NotACertificate,
+        FileError::UnsupportedVersion(_) => Reason::UnsupportedVersion,
+        FileError::DigestMismatch => Reason::DigestMismatch,
+        FileError::Decode(DecodeError::Truncated) => Reason::DecodeTruncated,
+        FileError::Decode(DecodeError::TrailingData) => Reason::DecodeTrailingData,
+        FileError::Decode(DecodeError::NonCanonical(_)) => Reason::DecodeNonCanonical,
+        FileError::Decode(DecodeError::OverLimit(_)) => Reason::OverLimit,
+        _ => Reason::DecodeMalformed,
+    }
+}
+
 /// Verifies the bytes of a certificate file.
 pub fn verify_bytes(bytes: &[u8]) -> Report {
     verify_bytes_with(bytes, &mut |_| {})
@@ -156,22 +172,10 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
     let decoded = match classcert_format::decode_document_with(bytes, &limits::DECODE) {
         Ok(d) => d,
         Err(e) => {
-            let reason = match &e {
-                FileError::TooLarge { .. } => Reason::OverLimit,
-                FileError::NotACertificate(_) => Reason::NotACertificate,
-                FileError::UnsupportedVersion(_) => Reason::UnsupportedVersion,
-                FileError::DigestMismatch => Reason::DigestMismatch,
-                FileError::Decode(DecodeError::Truncated) => Reason::DecodeTruncated,
-                FileError::Decode(DecodeError::TrailingData) => Reason::DecodeTrailingData,
-                FileError::Decode(DecodeError::NonCanonical(_)) => Reason::DecodeNonCanonical,
-                FileError::Decode(DecodeError::OverLimit(_)) => Reason::OverLimit,
-                FileError::Decode(_) => Reason::DecodeMalformed,
-                _ => Reason::DecodeMalformed,
-            };
             return Report {
                 summary: Summary::default(),
                 outcome: Err(Rejection {
-                    reason,
+                    reason: decode_reason(&e),
                     detail: e.to_string(),
                 }),
             };
@@ -202,15 +206,13 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
                 summary: Summary {
                     certificate_sha256: id,
                     kind: Some(report::CertificateKind::Relations),
-                    discriminant: None,
                     polynomial: match &body.order {
                         Order::Polynomial { polynomial, .. } => Some(polynomial.clone()),
                         Order::Quadratic { .. } => None,
                     },
                     claimed_class_number: Some(body.claim.class_number.clone()),
                     claimed_invariants: Some(body.claim.invariants.clone()),
-                    signer: None,
-                    policy: Vec::new(),
+                    ..Summary::default()
                 },
                 outcome: pipeline::verify_field(body, progress),
             }
@@ -226,11 +228,9 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
             certificate_sha256: id,
             kind: Some(kind),
             discriminant,
-            polynomial: None,
             claimed_class_number: Some(h),
             claimed_invariants: Some(inv),
-            signer: None,
-            policy: Vec::new(),
+            ..Summary::default()
         },
         outcome,
     }

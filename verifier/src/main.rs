@@ -89,6 +89,9 @@ fn main() -> ExitCode {
         Err(detail) => return usage_error(cli.json, "usage", &detail),
     };
     if cli.files.len() != 1 || cli.manifest.is_some() {
+        if cli.answer.is_some() {
+            return usage_error(cli.json, "usage", "--answer goes with one certificate");
+        }
         return match jobs(&cli, &trusted) {
             Ok((jobs, signer)) => several(&cli, &jobs, signer.as_ref(), &trusted, &policy),
             Err(detail) => usage_error(cli.json, "io-error", &detail),
@@ -101,6 +104,12 @@ fn main() -> ExitCode {
             let what = if file == "-" { "standard input" } else { file };
             return usage_error(cli.json, "io-error", &format!("cannot read {what}: {e}"));
         }
+    };
+    let answer = (cli.answer.as_deref().map(read_bounded).transpose())
+        .map_err(|e| format!("cannot read the answer: {e}"));
+    let answer = match answer {
+        Ok(a) => a,
+        Err(detail) => return usage_error(cli.json, "io-error", &detail),
     };
     // The ticker thread starts only once a run has taken QUIET_FOR: a
     // second thread makes every allocation pay for thread safety (about 7%
@@ -119,12 +128,13 @@ fn main() -> ExitCode {
     if let Some(t) = ticker {
         t.stop();
     }
-    let report = report.apply(&policy);
+    let report = report.apply(&policy).check_answer(answer.as_deref());
     let text = if cli.json {
         report.to_json().render()
     } else if cli.quiet {
         let mut t = report.to_text();
-        t.truncate(t.find('\n').map_or(t.len(), |i| i + 1));
+        let n = usize::from(answer.is_some());
+        t.truncate(t.match_indices('\n').nth(n).map_or(t.len(), |(i, _)| i + 1));
         t
     } else {
         report.to_text()
@@ -149,12 +159,13 @@ fn paint(text: String) -> String {
     }
 }
 
-/// 0 when every report verified; else 1 when a check failed in any; else
-/// 3 (only the policy refused).
+/// 0 when every report verified (with its answer, if any); else 1 when a
+/// check failed in any; else 3 (only the policy refused).
 fn exit_code(reports: &[Report]) -> ExitCode {
     let reasons = reports.iter().filter_map(|r| r.outcome.as_ref().err());
     match reasons.map(|e| e.reason == Reason::Policy).min() {
-        None => ExitCode::SUCCESS,
+        None if reports.iter().all(|r| r.answer_holds()) => ExitCode::SUCCESS,
+        None => ExitCode::from(1),
         Some(true) => ExitCode::from(3),
         Some(false) => ExitCode::from(1),
     }

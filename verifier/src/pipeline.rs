@@ -33,7 +33,7 @@ use crate::order::{check_conductor, check_discriminant, check_maximality, Maxima
 use crate::registry;
 use crate::registry::{Hypothesis, Theorem};
 use crate::relations::{check_raw_relations, RawOk, Witnesses};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::{Assumption, CertificateKind, FieldSummary, GeneratorView, UnitSummary};
 use crate::units::field::check_field_units;
 use crate::units::{check_units, UnitsOk};
@@ -139,12 +139,11 @@ pub(crate) fn verify_relations(body: &Body, progress: &mut dyn FnMut(&str)) -> C
     let order = check_discriminant(&body.order)?;
     let statement = generation::statement(&body.generation_theorem, &order)?;
     let trial_bound = statement.bound().max(analytic::primes_needed(&body.euler));
-    if trial_bound > MAX_SIEVE {
-        return reject(
-            Reason::OverLimit,
-            format!("the trial-division bound {trial_bound} exceeds {MAX_SIEVE}"),
-        );
-    }
+    reject_if(
+        trial_bound > MAX_SIEVE,
+        Reason::OverLimit,
+        format_args!("the trial-division bound {trial_bound} exceeds {MAX_SIEVE}"),
+    )?;
     let cond = check_conductor(&body.conductor_small, order.d(), trial_bound)?;
     let maximality = check_maximality(&body.maximality, order.d())?;
     // The analytic bound needs only the order and the Euler trace: it runs
@@ -255,19 +254,17 @@ pub(crate) fn verify_order_witness(
     progress: &mut dyn FnMut(&str),
 ) -> Check<Verified> {
     let order = check_discriminant(&w.order)?;
-    if order.is_real() {
-        return reject(
-            Reason::UnsupportedOrder,
-            "order witnesses are checked for D < 0 only (the unit group is needed for D > 0)",
-        );
-    }
+    reject_if(
+        order.is_real(),
+        Reason::UnsupportedOrder,
+        "order witnesses are checked for D < 0 only (the unit group is needed for D > 0)",
+    )?;
     let trial_bound = analytic::primes_needed(&w.euler);
-    if trial_bound > MAX_SIEVE {
-        return reject(
-            Reason::OverLimit,
-            format!("X = {trial_bound} exceeds {MAX_SIEVE}"),
-        );
-    }
+    reject_if(
+        trial_bound > MAX_SIEVE,
+        Reason::OverLimit,
+        format_args!("X = {trial_bound} exceeds {MAX_SIEVE}"),
+    )?;
     progress("order");
     let cond = check_conductor(&w.conductor_small, order.d(), trial_bound)?;
     let maximality = check_maximality(&w.maximality, order.d())?;
@@ -407,12 +404,11 @@ pub(crate) fn verify_field(body: &FieldBody, progress: &mut dyn FnMut(&str)) -> 
     let abs_disc = Integer::from(order.discriminant().abs_ref());
     let statement = field_bound(&body.generation_theorem, &abs_disc)?;
     let trial_bound = statement.1.max(body.euler.x);
-    if trial_bound > MAX_SIEVE {
-        return reject(
-            Reason::OverLimit,
-            format!("the prime bound {trial_bound} exceeds {MAX_SIEVE}"),
-        );
-    }
+    reject_if(
+        trial_bound > MAX_SIEVE,
+        Reason::OverLimit,
+        format_args!("the prime bound {trial_bound} exceeds {MAX_SIEVE}"),
+    )?;
     let primes = crate::arith::primes_up_to(trial_bound);
     progress("factor base");
     let arith = FieldArith { order };
@@ -520,12 +516,8 @@ fn check_field_algebra(
     progress("lattice");
     let mut witnesses = Witnesses::new(&raw, Vec::new(), arith.order.discriminant());
     let lat = check_lattice(&body.lattice, gen.ideals().len(), &mut witnesses)?;
-    let labels: Vec<_> = gen
-        .ideals()
-        .iter()
-        .enumerate()
-        .map(|(k, q)| (q.p(), k as u64))
-        .collect();
+    let labels = (gen.ideals().iter().enumerate()).map(|(k, q)| (q.p(), k as u64));
+    let labels: Vec<_> = labels.collect();
     let claim = check_claim(
         &body.claim,
         &body.lattice,

@@ -55,6 +55,7 @@ pub const FIELD_UNITS: &str = "field-units-power-products";
 pub const FIELD_TORSION: &str = "roots-of-unity-residue-fields";
 pub const FIELD_ROOTS: &str = "krawczyk-root-enclosures";
 pub const CLASS_NUMBER_FORMULA_FIELDS: &str = "class-number-formula-number-fields";
+pub const CLASS_COORDINATES: &str = "class-coordinates";
 
 /// Safety factor applied to the Belabas–Friedman error term until its
 /// constants are checked against the paper itself (see that entry's note).
@@ -214,6 +215,13 @@ pub static REGISTRY: &[Theorem] = &[
         hypothesis: Hypothesis::None,
         statement: "the residue of zeta_K at s = 1 is kappa_K = 2^r1 (2 pi)^r2 h R / (w sqrt|Delta|)",
         note: "",
+    },
+    Theorem {
+        id: CLASS_COORDINATES,
+        citation: "Gauss's reduction theory: a class of primitive positive definite forms holds exactly one reduced form (H. Cohen, GTM 138, section 5.3); the order of an element of a direct sum of cyclic groups (common practice)",
+        hypothesis: Hypothesis::None,
+        statement: "if Cl(O) is the direct sum of the cyclic groups <g_i> of orders d_i (D < 0) and I prod g_i^(-e_i) reduces to the principal form, then [I] = prod g_i^e_i, and [I] has order lcm_i d_i / gcd(d_i, e_i)",
+        note: "used by answers (classcert ask); the structure of Cl(O) is the certificate's verified result, so an answer rests on what the certificate rests on",
     },
 ];
 

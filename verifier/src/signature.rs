@@ -4,7 +4,7 @@
 //! that its mathematics holds: the payload is verified as any other
 //! certificate, after the signature.
 
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::cose;
 use ed25519_dalek::pkcs8::DecodePublicKey;
 use ed25519_dalek::{Signature, VerifyingKey};
@@ -87,12 +87,11 @@ pub fn check<'a>(bytes: &'a [u8], trusted: &[TrustedKey]) -> Check<(&'a [u8], Si
     };
     let tbs = cose::to_be_signed(msg.protected, msg.payload);
     let sig = Signature::from_bytes(&msg.signature);
-    if key.key.verify_strict(&tbs, &sig).is_err() {
-        return reject(
-            Reason::SignatureInvalid,
-            format!("the signature does not verify under the trusted key {fp}"),
-        );
-    }
+    reject_if(
+        key.key.verify_strict(&tbs, &sig).is_err(),
+        Reason::SignatureInvalid,
+        format_args!("the signature does not verify under the trusted key {fp}"),
+    )?;
     let signer = Signer {
         fingerprint: fp,
         trusted: true,

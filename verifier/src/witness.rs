@@ -17,7 +17,7 @@ use crate::limits::{
 use crate::order::{check_factorisation, Factorisation};
 use crate::registry::{self, Theorem};
 use crate::relations::forms::Budget;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::short_number;
 use crate::report::view::GeneratorView;
 use classcert_format::{PrimePower, WitnessGenerator};
@@ -42,12 +42,11 @@ impl FactorsOk<'_> {
 }
 
 pub(crate) fn check_h<'a>(h: &'a Integer, factors: &'a [PrimePower]) -> Check<FactorsOk<'a>> {
-    if *h < 1 || h.significant_bits() > MAX_ENTRY_BITS {
-        return reject(
-            Reason::OrderWitnessFactorisation,
-            "H must be a positive integer within the limits",
-        );
-    }
+    reject_if(
+        *h < 1 || h.significant_bits() > MAX_ENTRY_BITS,
+        Reason::OrderWitnessFactorisation,
+        "H must be a positive integer within the limits",
+    )?;
     let mut work = MAX_PROOF_POWERS;
     let evidence = check_factorisation(
         factors,
@@ -103,53 +102,47 @@ pub(crate) fn check_witnesses(
     h: &FactorsOk,
     d: &Integer,
 ) -> Check<WitnessesOk> {
-    if gens.len() > MAX_RANK {
-        return reject(Reason::OverLimit, "too many witnesses");
-    }
+    reject_if(
+        gens.len() > MAX_RANK,
+        Reason::OverLimit,
+        "too many witnesses",
+    )?;
     let mut prod = Integer::from(1);
     let mut forms: Vec<(Integer, Form)> = Vec::with_capacity(gens.len());
     for (i, wg) in gens.iter().enumerate() {
-        let f = &wg.form;
-        let Ok(g) = Form::new(f.a.clone(), f.b.clone(), d) else {
-            return reject(
-                Reason::OrderWitnessForm,
-                format!("witness {i} is not a form of discriminant D"),
-            );
-        };
-        let primitive = Integer::from(g.a.gcd_ref(&g.b)).gcd(&g.c) == 1;
-        if g.c != f.c || !g.is_reduced() || !primitive {
+        let Some(g) = Form::primitive(&wg.form, d).filter(Form::is_reduced) else {
             return reject(
                 Reason::OrderWitnessForm,
                 format!("witness {i} must be a reduced primitive form of discriminant D"),
             );
-        }
+        };
         let ok_order = wg.order > 1
             && wg.order.significant_bits() <= MAX_ENTRY_BITS
             && forms
                 .last()
                 .is_none_or(|(prev, _)| wg.order.is_divisible(prev));
-        if !ok_order {
-            return reject(
-                Reason::OrderWitnessFactorisation,
-                "the witnesses' orders must exceed 1 and divide each other in turn",
-            );
-        }
+        reject_if(
+            !ok_order,
+            Reason::OrderWitnessFactorisation,
+            "the witnesses' orders must exceed 1 and divide each other in turn",
+        )?;
         prod *= &wg.order;
-        if prod.significant_bits() > MAX_ENTRY_BITS {
-            return reject(Reason::OverLimit, "the witnesses' orders are too large");
-        }
+        reject_if(
+            prod.significant_bits() > MAX_ENTRY_BITS,
+            Reason::OverLimit,
+            "the witnesses' orders are too large",
+        )?;
         forms.push((wg.order.clone(), g));
     }
-    if prod != *h.h {
-        return reject(
-            Reason::OrderWitnessFactorisation,
-            format!(
-                "the witnesses' orders multiply to {}, not H = {}",
-                short_number(&prod),
-                short_number(h.h)
-            ),
-        );
-    }
+    reject_if(
+        prod != *h.h,
+        Reason::OrderWitnessFactorisation,
+        format_args!(
+            "the witnesses' orders multiply to {}, not H = {}",
+            short_number(&prod),
+            short_number(h.h)
+        ),
+    )?;
     let mut budget = Budget::new(MAX_COMPOSITIONS);
     let exact = check_exact_orders(&forms, h.factors, d, &mut budget)?;
     let independent = check_independent(&forms, &exact, h.factors, d, &mut budget)?;
@@ -177,25 +170,23 @@ fn check_exact_orders(
 ) -> Check<ExactOrdersOk> {
     let principal = Form::principal(d);
     for (i, (di, g)) in forms.iter().enumerate() {
-        if power(g, di, d, budget)? != principal {
-            return reject(
-                Reason::OrderWitnessPower,
-                format!(
-                    "g_{i}^{di} is not the principal form: {di} is not a multiple of its order"
-                ),
-            );
-        }
+        reject_if(
+            power(g, di, d, budget)? != principal,
+            Reason::OrderWitnessPower,
+            format_args!(
+                "g_{i}^{di} is not the principal form: {di} is not a multiple of its order"
+            ),
+        )?;
         for pp in factors.iter().filter(|pp| di.is_divisible(&pp.prime)) {
             let e = Integer::from(di / &pp.prime);
-            if power(g, &e, d, budget)? == principal {
-                return reject(
-                    Reason::OrderWitnessNotExact,
-                    format!(
-                        "g_{i}^({di}/{}) is the principal form: g_{i} has order below {di}",
-                        pp.prime
-                    ),
-                );
-            }
+            reject_if(
+                power(g, &e, d, budget)? == principal,
+                Reason::OrderWitnessNotExact,
+                format_args!(
+                    "g_{i}^({di}/{}) is the principal form: g_{i} has order below {di}",
+                    pp.prime
+                ),
+            )?;
         }
     }
     Ok(ExactOrdersOk(()))
@@ -233,9 +224,11 @@ fn check_independent(
             size = size.saturating_mul(pu);
         }
         combos = combos.saturating_add(size);
-        if combos > MAX_SOCLE_COMBINATIONS {
-            return reject(Reason::OverLimit, "a socle too large to search");
-        }
+        reject_if(
+            combos > MAX_SOCLE_COMBINATIONS,
+            Reason::OverLimit,
+            "a socle too large to search",
+        )?;
         // every c in (Z/p)^r \ {0}, as counters
         let mut c = vec![0u64; socle.len()];
         for _ in 1..size {
@@ -252,14 +245,13 @@ fn check_independent(
             let Ok(x) = Form::product(&terms, d) else {
                 return reject(Reason::OrderWitnessForm, "form arithmetic failed");
             };
-            if x == principal {
-                return reject(
-                    Reason::OrderWitnessDependent,
-                    format!(
-                        "the witnesses are not independent: a combination of order {p} is trivial"
-                    ),
-                );
-            }
+            reject_if(
+                x == principal,
+                Reason::OrderWitnessDependent,
+                format_args!(
+                    "the witnesses are not independent: a combination of order {p} is trivial"
+                ),
+            )?;
         }
     }
     Ok(IndependentOk(()))
@@ -284,27 +276,25 @@ pub(crate) fn check_witness_bound(bound: BoundOk, h: &Integer) -> Check<WitnessB
     let Some(log_big_h) = Interval::int(h).ln() else {
         return reject(Reason::OverLimit, "interval arithmetic failed");
     };
-    if log_big_h.lo > log_h.hi {
-        return reject(
-            Reason::AnalyticInconsistent,
-            format!(
-                "H = {} exceeds the analytic upper bound exp({:.6}): the witness and the analytic bound cannot both hold",
-                short_number(h),
-                log_h.hi.to_f64()
-            ),
-        );
-    }
-    if log_big_h.lo <= log_h.sub(&Interval::ln2()).hi {
-        return reject(
-            Reason::ClassNumberNotConfirmed,
-            format!(
-                "H = {} is too small: log H = {:.6}, but #Cl may be as large as exp({:.6}), so #Cl = k H with k >= 2 is not excluded",
-                short_number(h),
-                log_big_h.lo.to_f64(),
-                log_h.hi.to_f64()
-            ),
-        );
-    }
+    reject_if(
+        log_big_h.lo > log_h.hi,
+        Reason::AnalyticInconsistent,
+        format_args!(
+            "H = {} exceeds the analytic upper bound exp({:.6}): the witness and the analytic bound cannot both hold",
+            short_number(h),
+            log_h.hi.to_f64()
+        ),
+    )?;
+    reject_if(
+        log_big_h.lo <= log_h.sub(&Interval::ln2()).hi,
+        Reason::ClassNumberNotConfirmed,
+        format_args!(
+            "H = {} is too small: log H = {:.6}, but #Cl may be as large as exp({:.6}), so #Cl = k H with k >= 2 is not excluded",
+            short_number(h),
+            log_big_h.lo.to_f64(),
+            log_h.hi.to_f64()
+        ),
+    )?;
     Ok(WitnessBoundOk { bound })
 }
 

@@ -3,6 +3,7 @@
 //! terminal (`sink`), and every outcome maps to one exit status
 //! ([`Exit`] in `exit`, documented in `--help`).
 
+mod ask;
 mod batch;
 mod config;
 mod demo;
@@ -70,6 +71,11 @@ enum Cmd {
         #[command(flatten)]
         args: rounds::CombineArgs,
     },
+    /// The exponents of a class over a certificate's generators (a discrete
+    /// log), and its order: D < 0; writes an answer file for
+    /// classcert-verify CERT --answer FILE.
+    #[command(after_help = EXIT_HELP)]
+    Ask(ask::AskArgs),
     /// Print what a certificate claims (without checking it).
     #[command(after_help = EXIT_HELP)]
     Show {
@@ -229,6 +235,7 @@ pub fn main() -> ExitCode {
         }
         Cmd::Collect { args, quiet } => rounds::collect(args, quiet),
         Cmd::Combine { args } => rounds::combine_dirs(args),
+        Cmd::Ask(args) => ask::run(args),
         Cmd::Show { file, json, format } => {
             use classcert_prover::table::Format;
             match format {

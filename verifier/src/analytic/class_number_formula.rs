@@ -14,7 +14,7 @@
 use super::interval::Interval;
 use super::BoundOk;
 use crate::arith::kronecker_prime;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::short_number;
 use rug::Integer;
 
@@ -104,16 +104,15 @@ pub(crate) fn check_conclusion(
     // h* R* = k h R with k >= 1 (R = R* = 1 for D < 0). If
     // log h* R* < lo(log h R) + log 2 then k = 1.
     if log_hs.hi >= log_h.add(&ln2).lo {
-        if regulator.is_some() {
-            return reject(
-                Reason::ClassNumberRegulatorNotConfirmed,
-                format!(
-                    "h* R* is too large: log h* R* = {:.6} but log h R <= {:.6} + log 2 is all the analytic bound allows for h = h*, R = R*",
-                    log_hs.hi.to_f64(),
-                    log_h.lo.to_f64()
-                ),
-            );
-        }
+        reject_if(
+            regulator.is_some(),
+            Reason::ClassNumberRegulatorNotConfirmed,
+            format_args!(
+                "h* R* is too large: log h* R* = {:.6} but log h R <= {:.6} + log 2 is all the analytic bound allows for h = h*, R = R*",
+                log_hs.hi.to_f64(),
+                log_h.lo.to_f64()
+            ),
+        )?;
         return reject(
             Reason::ClassNumberNotConfirmed,
             format!(
@@ -124,12 +123,16 @@ pub(crate) fn check_conclusion(
             ),
         );
     }
-    if log_hs.hi < log_h.lo {
-        return reject(
-            Reason::AnalyticInconsistent,
-            format!("h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold", short_number(h_star), regulator.map_or(1.0, |r| r.mid_f64()), log_h.lo.to_f64()),
-        );
-    }
+    reject_if(
+        log_hs.hi < log_h.lo,
+        Reason::AnalyticInconsistent,
+        format_args!(
+            "h* R* = {} · {:.6} is below the analytic lower bound exp({:.6}): the relations and the analytic bound cannot both hold",
+            short_number(h_star),
+            regulator.map_or(1.0, |r| r.mid_f64()),
+            log_h.lo.to_f64()
+        ),
+    )?;
     Ok(AnalyticOk { bound })
 }
 

@@ -19,7 +19,7 @@ use crate::arith::kronecker_prime;
 use crate::limits::{MAX_CHECKPOINTS, MAX_EULER_X};
 use crate::order::{ConductorOk, OrderOk};
 use crate::registry::EULER_SAFETY_FACTOR;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::EulerTrace;
 use rug::Integer;
 
@@ -233,12 +233,11 @@ pub(crate) fn trace_prelude(
     n: u64,
 ) -> Check<(Interval, Vec<u64>)> {
     let x = e.x;
-    if !(MIN_X..=MAX_EULER_X).contains(&x) {
-        return reject(
-            Reason::EulerXOutOfRange,
-            format!("X = {x} must lie in [{}, {MAX_EULER_X}]", MIN_X),
-        );
-    }
+    reject_if(
+        !(MIN_X..=MAX_EULER_X).contains(&x),
+        Reason::EulerXOutOfRange,
+        format_args!("X = {x} must lie in [{}, {MAX_EULER_X}]", MIN_X),
+    )?;
     let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
     let Some(log_delta) = Interval::int(abs_disc).ln() else {
         return bad();
@@ -246,25 +245,25 @@ pub(crate) fn trace_prelude(
     let Some(err) = error_bound_degree(x, &log_delta, n) else {
         return bad();
     };
-    if Interval::u64(2).mul(&err).hi >= Interval::ln2().lo {
-        return reject(
-            Reason::EulerXTooSmall,
-            format!(
-                "at X = {x} the error term is {:.4}; twice it must stay below log 2",
-                err.hi.to_f64()
-            ),
-        );
-    }
-    if e.checkpoints.len() > MAX_CHECKPOINTS {
-        return reject(Reason::OverLimit, "too many Euler checkpoints");
-    }
+    reject_if(
+        Interval::u64(2).mul(&err).hi >= Interval::ln2().lo,
+        Reason::EulerXTooSmall,
+        format_args!(
+            "at X = {x} the error term is {:.4}; twice it must stay below log 2",
+            err.hi.to_f64()
+        ),
+    )?;
+    reject_if(
+        e.checkpoints.len() > MAX_CHECKPOINTS,
+        Reason::OverLimit,
+        "too many Euler checkpoints",
+    )?;
     let limits: Vec<u64> = e.checkpoints.iter().map(|c| c.limit).collect();
-    if limits.windows(2).any(|w| w.first() >= w.get(1)) || limits.iter().any(|&l| l > x) {
-        return reject(
-            Reason::EulerTraceMismatch,
-            "checkpoint limits must increase and not exceed X",
-        );
-    }
+    reject_if(
+        limits.windows(2).any(|w| w.first() >= w.get(1)) || limits.iter().any(|&l| l > x),
+        Reason::EulerTraceMismatch,
+        "checkpoint limits must increase and not exceed X",
+    )?;
     Ok((log_delta, limits))
 }
 
@@ -281,12 +280,16 @@ pub(crate) fn trace_agrees(e: &EulerTrace, res: &EulerResult, what: &str) -> Che
                 "a checkpoint interval is out of range",
             );
         };
-        if !a.contains(&mine.a) || !c.contains(&mine.c) {
-            return reject(
-                Reason::EulerTraceMismatch,
-                format!("the partial sums up to {} disagree with the recomputation (A in [{:.12}, {:.12}])", mine.limit, mine.a.lo.to_f64(), mine.a.hi.to_f64()),
-            );
-        }
+        reject_if(
+            !a.contains(&mine.a) || !c.contains(&mine.c),
+            Reason::EulerTraceMismatch,
+            format_args!(
+                "the partial sums up to {} disagree with the recomputation (A in [{:.12}, {:.12}])",
+                mine.limit,
+                mine.a.lo.to_f64(),
+                mine.a.hi.to_f64()
+            ),
+        )?;
     }
     stated_contains(&e.log_l, &res.log_l, Reason::EulerIntervalUnderstated, what)?;
     Ok(())

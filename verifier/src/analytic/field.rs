@@ -14,7 +14,7 @@ use super::interval::Interval;
 use super::{BoundOk, Method};
 use crate::field::fppoly::Fp;
 use crate::registry;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::EulerTrace;
 use rug::Integer;
 
@@ -35,15 +35,14 @@ pub(crate) fn check_field_bound(
     primes: &[u64],
     beat: &mut dyn FnMut(),
 ) -> Check<BoundOk> {
-    if registry::lookup(&e.theorem).map(|t| t.id) != Some(registry::BELABAS_FRIEDMAN) {
-        return reject(
-            Reason::UnknownTheorem,
-            format!(
-                "\"{}\" is not an analytic theorem for number fields",
-                registry::short_id(&e.theorem)
-            ),
-        );
-    }
+    reject_if(
+        registry::lookup(&e.theorem).map(|t| t.id) != Some(registry::BELABAS_FRIEDMAN),
+        Reason::UnknownTheorem,
+        format_args!(
+            "\"{}\" is not an analytic theorem for number fields",
+            registry::short_id(&e.theorem)
+        ),
+    )?;
     let x = e.x;
     let n = k.polynomial.len().saturating_sub(1) as u64;
     let (log_delta, limits) = trace_prelude(e, k.abs_disc, n)?;

@@ -3,7 +3,7 @@
 //! operation on any points of the inputs lies inside (MPFR's functions are
 //! correctly rounded in each direction).
 
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Bounds, Dyadic};
 use rug::float::{Constant, Round};
 use rug::{Float, Integer};
@@ -313,18 +313,17 @@ pub(crate) fn stated_contains(
     let Some(claimed) = Interval::from_bounds(stated) else {
         return reject(reason, format!("the stated {what} is out of range"));
     };
-    if !claimed.contains(mine) {
-        return reject(
-            reason,
-            format!(
-                "the stated {what} [{:.15}, {:.15}] does not contain the rigorous enclosure [{:.15}, {:.15}]",
-                claimed.lo.to_f64(),
-                claimed.hi.to_f64(),
-                mine.lo.to_f64(),
-                mine.hi.to_f64()
-            ),
-        );
-    }
+    reject_if(
+        !claimed.contains(mine),
+        reason,
+        format_args!(
+            "the stated {what} [{:.15}, {:.15}] does not contain the rigorous enclosure [{:.15}, {:.15}]",
+            claimed.lo.to_f64(),
+            claimed.hi.to_f64(),
+            mine.lo.to_f64(),
+            mine.hi.to_f64()
+        ),
+    )?;
     Ok(claimed)
 }
 

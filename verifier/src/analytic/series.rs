@@ -20,7 +20,7 @@ use super::interval::{stated_contains, Interval};
 use crate::arith::kronecker_prime;
 use crate::limits::MAX_SERIES_TERMS;
 use crate::order::OrderOk;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::EulerTrace;
 use rug::Integer;
 
@@ -131,29 +131,26 @@ pub(crate) fn check_series(
     maximal: bool,
     beat: &mut dyn FnMut(),
 ) -> Check<Interval> {
-    if order.is_real() || *order.d() > -5 || !maximal {
-        return reject(
-            Reason::GenerationTheoremNotApplicable,
-            "the unconditional series applies to maximal orders with D < -4 only",
-        );
-    }
+    reject_if(
+        order.is_real() || *order.d() > -5 || !maximal,
+        Reason::GenerationTheoremNotApplicable,
+        "the unconditional series applies to maximal orders with D < -4 only",
+    )?;
     let n = e.x;
-    if n == 0 || n > MAX_SERIES_TERMS || !e.checkpoints.is_empty() {
-        return reject(
-            Reason::EulerXOutOfRange,
-            format!("the series needs 1 to {MAX_SERIES_TERMS} terms and no checkpoints"),
-        );
-    }
+    reject_if(
+        n == 0 || n > MAX_SERIES_TERMS || !e.checkpoints.is_empty(),
+        Reason::EulerXOutOfRange,
+        format_args!("the series needs 1 to {MAX_SERIES_TERMS} terms and no checkpoints"),
+    )?;
     let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
     let Some(h) = class_number_with(order.d(), n, beat) else {
         return bad();
     };
-    if h.lo <= 0 {
-        return reject(
-            Reason::EulerXTooSmall,
-            format!("{n} terms do not bound h away from 0"),
-        );
-    }
+    reject_if(
+        h.lo <= 0,
+        Reason::EulerXTooSmall,
+        format_args!("{n} terms do not bound h away from 0"),
+    )?;
     let Some(log_h) = h.ln() else { return bad() };
     let Some(log_l) = log_l_from_log_h(&log_h, order.w(), order.abs_d()) else {
         return bad();

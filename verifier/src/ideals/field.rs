@@ -12,10 +12,10 @@
 use super::OrderArithmetic;
 use crate::field::order::FieldOrder;
 use crate::field::prime::{check_decomposition, check_prime, valuation, CheckedPrime};
-use crate::limits::{MAX_ELEMENT_BITS, MAX_FACTOR_BASE};
+use crate::limits::MAX_ELEMENT_BITS;
 use crate::order::MaximalityOk;
 use crate::registry::{self, Theorem};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{FieldPrime, Relation, Witness};
 use rug::ops::Pow;
 use rug::Integer;
@@ -70,12 +70,13 @@ impl OrderArithmetic for FieldArith<'_> {
         if a.len() != self.order.degree() {
             return bad("the element has the wrong number of coordinates".into());
         }
-        if a.iter().any(|c| c.significant_bits() > MAX_ELEMENT_BITS) {
-            return reject(
-                Reason::OverLimit,
-                format!("raw relation {index}: a coordinate has more than {MAX_ELEMENT_BITS} bits"),
-            );
-        }
+        reject_if(
+            a.iter().any(|c| c.significant_bits() > MAX_ELEMENT_BITS),
+            Reason::OverLimit,
+            format_args!(
+                "raw relation {index}: a coordinate has more than {MAX_ELEMENT_BITS} bits"
+            ),
+        )?;
         let norm = self.order.norm(a);
         if norm == 0 {
             return bad("the element is zero".into());
@@ -174,15 +175,7 @@ pub(crate) fn check_field_generation(
     disc_f: &Integer,
     x: u64,
 ) -> Check<FieldGenerationOk> {
-    if !maximality.is_maximal() {
-        return reject(
-            Reason::GenerationTheoremNotApplicable,
-            "this generation bound holds for the maximal order only, and maximality is not certified",
-        );
-    }
-    if factor_base.len() > MAX_FACTOR_BASE {
-        return reject(Reason::OverLimit, "factor base too large");
-    }
+    super::generation::check_applicable(true, maximality, factor_base.len())?;
     let mut ideals = Vec::with_capacity(factor_base.len());
     for (i, entry) in factor_base.iter().enumerate() {
         if ideals
@@ -215,12 +208,13 @@ pub(crate) fn check_field_generation(
         if p > bound && p >= x {
             break;
         }
-        if needed && !listed(p) {
-            return reject(
-                Reason::FactorBaseGap,
-                format!("the prime ideals above p = {p} are not listed (generation bound {bound}, X = {x})"),
-            );
-        }
+        reject_if(
+            needed && !listed(p),
+            Reason::FactorBaseGap,
+            format_args!(
+                "the prime ideals above p = {p} are not listed (generation bound {bound}, X = {x})"
+            ),
+        )?;
     }
     Ok(FieldGenerationOk {
         theorem,

@@ -51,6 +51,14 @@ impl Form {
         Ok(Form { a, b, c })
     }
 
+    /// The stated `(a, b, c)`, if it is a primitive form of discriminant
+    /// `d` with `a > 0`.
+    pub fn primitive(f: &classcert_format::Form, d: &Integer) -> Option<Form> {
+        let g = Form::new(f.a.clone(), f.b.clone(), d).ok()?;
+        let content = Integer::from(g.a.gcd_ref(&g.b)).gcd(&g.c);
+        (g.c == f.c && content == 1).then_some(g)
+    }
+
     /// The principal form `(1, D mod 2, (D mod 2 - D)/4)`.
     pub fn principal(d: &Integer) -> Form {
         let b = Integer::from(d.is_odd());

@@ -12,7 +12,7 @@ use super::OrderArithmetic;
 use crate::limits::MAX_FACTOR_BASE;
 use crate::order::{MaximalityOk, OrderOk};
 use crate::registry::{self, Theorem};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 
 /// The generation statement a certificate names, with its bound. Not yet
 /// a token: nothing has been checked against it.
@@ -45,12 +45,11 @@ pub(crate) fn statement(id: &str, order: &OrderOk) -> Check<Statement> {
             format!("\"{}\" is not a generation bound", theorem.id),
         );
     };
-    if theorem.id == registry::REDUCED_FORMS && order.is_real() {
-        return reject(
-            Reason::GenerationTheoremNotApplicable,
-            "the reduced-forms bound holds for definite forms, that is for D < 0 only",
-        );
-    }
+    reject_if(
+        theorem.id == registry::REDUCED_FORMS && order.is_real(),
+        Reason::GenerationTheoremNotApplicable,
+        "the reduced-forms bound holds for definite forms, that is for D < 0 only",
+    )?;
     Ok(Statement { theorem, bound })
 }
 
@@ -78,6 +77,18 @@ impl<I> GenerationOk<I> {
     }
 }
 
+/// A bound for the maximal order only (`field_only`) needs certified
+/// maximality; and the factor base has at most [`MAX_FACTOR_BASE`] entries.
+pub(crate) fn check_applicable(field_only: bool, m: &MaximalityOk, entries: usize) -> Check<()> {
+    reject_if(
+        field_only && !m.is_maximal(),
+        Reason::GenerationTheoremNotApplicable,
+        "this generation bound holds for the maximal order only, and maximality is not certified",
+    )?;
+    let why = "factor base too large";
+    reject_if(entries > MAX_FACTOR_BASE, Reason::OverLimit, why)
+}
+
 /// Checks the factor base against `statement`; `primes` holds every prime
 /// up to the trial-division bound, which is at least `B_gen`.
 pub(crate) fn check_generation<A: OrderArithmetic>(
@@ -89,15 +100,7 @@ pub(crate) fn check_generation<A: OrderArithmetic>(
 ) -> Check<GenerationOk<A::Ideal>> {
     let Statement { theorem, bound } = statement;
     let field_only = theorem.id == registry::BACH_FIELD || theorem.id == registry::REDUCED_FORMS;
-    if field_only && !maximality.is_maximal() {
-        return reject(
-            Reason::GenerationTheoremNotApplicable,
-            "this generation bound holds for the maximal order only, and maximality is not certified",
-        );
-    }
-    if factor_base.len() > MAX_FACTOR_BASE {
-        return reject(Reason::OverLimit, "factor base too large");
-    }
+    check_applicable(field_only, maximality, factor_base.len())?;
     let mut ideals = Vec::with_capacity(factor_base.len());
     let mut prev = 0u64;
     for (i, entry) in factor_base.iter().enumerate() {
@@ -105,12 +108,13 @@ pub(crate) fn check_generation<A: OrderArithmetic>(
         let p = A::prime_below(&ideal);
         // One ideal per prime: a quadratic order needs one of a conjugate
         // pair, since the other is its inverse.
-        if p <= prev {
-            return reject(
-                Reason::FactorBaseInvalid,
-                format!("factor base entry {i}: entries must be in strictly increasing order of p"),
-            );
-        }
+        reject_if(
+            p <= prev,
+            Reason::FactorBaseInvalid,
+            format_args!(
+                "factor base entry {i}: entries must be in strictly increasing order of p"
+            ),
+        )?;
         prev = p;
         ideals.push(ideal);
     }
@@ -119,14 +123,13 @@ pub(crate) fn check_generation<A: OrderArithmetic>(
         while listed.peek().is_some_and(|&q| q < p) {
             listed.next();
         }
-        if arith.needs_ideal_above(p) && listed.peek() != Some(&p) {
-            return reject(
-                Reason::FactorBaseGap,
-                format!(
-                    "no prime ideal above p = {p} in the factor base (generation bound {bound})"
-                ),
-            );
-        }
+        reject_if(
+            arith.needs_ideal_above(p) && listed.peek() != Some(&p),
+            Reason::FactorBaseGap,
+            format_args!(
+                "no prime ideal above p = {p} in the factor base (generation bound {bound})"
+            ),
+        )?;
     }
     Ok(GenerationOk {
         theorem,

@@ -7,7 +7,7 @@ use super::LatticeOk;
 use crate::ideals::form::Form;
 use crate::limits::MAX_COMPOSITIONS;
 use crate::relations::forms::{product, Budget};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::{short_number, GeneratorView};
 use classcert_format::{Claim, Lattice};
 use rug::Integer;
@@ -46,45 +46,37 @@ pub(crate) fn check_claim(
     d: &Integer,
     reduced_forms: bool,
 ) -> Check<ClaimOk> {
-    if c.class_number != *lat.h_star() {
-        return reject(
-            Reason::ClassNumberMismatch,
-            format!(
-                "claimed class number {} but the Smith diagonal multiplies to {}",
-                short_number(&c.class_number),
-                short_number(lat.h_star())
-            ),
-        );
-    }
-    let nontrivial: Vec<(usize, &Integer)> = lat
-        .diagonal()
-        .iter()
-        .enumerate()
-        .filter(|(_, d)| **d > 1)
-        .collect();
+    reject_if(
+        c.class_number != *lat.h_star(),
+        Reason::ClassNumberMismatch,
+        format_args!(
+            "claimed class number {} but the Smith diagonal multiplies to {}",
+            short_number(&c.class_number),
+            short_number(lat.h_star())
+        ),
+    )?;
+    let diagonal = lat.diagonal().iter().enumerate();
+    let nontrivial: Vec<(usize, &Integer)> = diagonal.filter(|(_, d)| **d > 1).collect();
     let inv: Vec<Integer> = nontrivial.iter().map(|(_, d)| (*d).clone()).collect();
-    if c.invariants != inv {
-        return reject(
-            Reason::InvariantsMismatch,
-            "claimed invariants differ from the Smith diagonal entries > 1",
-        );
-    }
-    if c.generators.len() != nontrivial.len() {
-        return reject(
-            Reason::GeneratorMismatch,
-            "one generator per invariant factor is required",
-        );
-    }
+    reject_if(
+        c.invariants != inv,
+        Reason::InvariantsMismatch,
+        "claimed invariants differ from the Smith diagonal entries > 1",
+    )?;
+    reject_if(
+        c.generators.len() != nontrivial.len(),
+        Reason::GeneratorMismatch,
+        "one generator per invariant factor is required",
+    )?;
     let r = l.generators.len();
     let mut budget = Budget::new(MAX_COMPOSITIONS);
     let mut out = Vec::with_capacity(c.generators.len());
     for ((i, _), g) in nontrivial.iter().zip(c.generators.iter()) {
-        if g.exponents.len() != r {
-            return reject(
-                Reason::GeneratorMismatch,
-                "generator exponent vector has the wrong length",
-            );
-        }
+        reject_if(
+            g.exponents.len() != r,
+            Reason::GeneratorMismatch,
+            "generator exponent vector has the wrong length",
+        )?;
         // x V ≡ e_i (mod d_j) in every coordinate j
         for (j, dj) in lat.diagonal().iter().enumerate() {
             let mut s = Integer::new();
@@ -94,27 +86,19 @@ pub(crate) fn check_claim(
                 }
             }
             s -= Integer::from(j == *i);
-            if !s.is_divisible(dj) {
-                return reject(
-                    Reason::GeneratorMismatch,
-                    format!("generator {i} does not map to the unit vector of factor {i}"),
-                );
-            }
+            reject_if(
+                !s.is_divisible(dj),
+                Reason::GeneratorMismatch,
+                format_args!("generator {i} does not map to the unit vector of factor {i}"),
+            )?;
         }
-        let entries: Vec<(usize, &Integer)> = l
-            .generators
-            .iter()
-            .zip(g.exponents.iter())
-            .filter(|(_, e)| !e.is_zero())
-            .map(|(gi, e)| (*gi as usize, e))
-            .collect();
+        let entries = super::over_factor_base(&l.generators, &g.exponents);
         if !reduced_forms {
-            if g.form.is_some() {
-                return reject(
-                    Reason::GeneratorMismatch,
-                    "for D > 0 a generator is given by its exponents, without a form",
-                );
-            }
+            reject_if(
+                g.form.is_some(),
+                Reason::GeneratorMismatch,
+                "for D > 0 a generator is given by its exponents, without a form",
+            )?;
             let ideals = entries
                 .iter()
                 .filter_map(|(gi, e)| ideals.get(*gi).map(|&(p, b)| (p, b, (*e).clone())))
@@ -123,23 +107,20 @@ pub(crate) fn check_claim(
             continue;
         }
         let Some(stated) = &g.form else {
-            return reject(
-                Reason::GeneratorMismatch,
-                format!("generator {i} has no reduced form"),
-            );
+            let why = format!("generator {i} has no reduced form");
+            return reject(Reason::GeneratorMismatch, why);
         };
         let Some(acc) = product(forms, &entries, d, &mut budget)? else {
             return reject(Reason::GeneratorMismatch, "form arithmetic failed");
         };
-        if acc.a != stated.a || acc.b != stated.b || acc.c != stated.c {
-            return reject(
-                Reason::GeneratorMismatch,
-                format!(
-                    "generator {i} reduces to ({}, {}, {}), not the stated form",
-                    acc.a, acc.b, acc.c
-                ),
-            );
-        }
+        reject_if(
+            acc.a != stated.a || acc.b != stated.b || acc.c != stated.c,
+            Reason::GeneratorMismatch,
+            format_args!(
+                "generator {i} reduces to ({}, {}, {}), not the stated form",
+                acc.a, acc.b, acc.c
+            ),
+        )?;
         out.push(GeneratorView::Form(acc.a, acc.b, acc.c));
     }
     Ok(ClaimOk {

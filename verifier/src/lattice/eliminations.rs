@@ -5,7 +5,7 @@
 
 use crate::limits::MAX_RELATION_ENTRIES;
 use crate::relations::Witnesses;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::Elimination;
 use rug::Integer;
 
@@ -16,35 +16,34 @@ pub(crate) fn check_eliminations(
     known: &mut [bool],
     witnesses: &mut Witnesses,
 ) -> Check<()> {
-    if eliminations.len() > known.len() {
-        return reject(
-            Reason::EliminationStructure,
-            "more eliminations than factor-base ideals",
-        );
-    }
+    reject_if(
+        eliminations.len() > known.len(),
+        Reason::EliminationStructure,
+        "more eliminations than factor-base ideals",
+    )?;
     for (k, el) in eliminations.iter().enumerate() {
         let p = el.pivot as usize;
-        if known.get(p).copied() != Some(false) {
-            return reject(
-                Reason::EliminationStructure,
-                format!("elimination {k}: pivot {p} is already accounted for or out of range"),
-            );
-        }
+        reject_if(
+            known.get(p).copied() != Some(false),
+            Reason::EliminationStructure,
+            format_args!("elimination {k}: pivot {p} is already accounted for or out of range"),
+        )?;
         let ents = &el.relation.entries;
-        if ents.len() > MAX_RELATION_ENTRIES {
-            return reject(Reason::OverLimit, "a relation has too many entries");
-        }
+        reject_if(
+            ents.len() > MAX_RELATION_ENTRIES,
+            Reason::OverLimit,
+            "a relation has too many entries",
+        )?;
         let mut prev: Option<u32> = None;
         let mut pivot_ok = false;
         for (i, e) in ents {
-            if prev.is_some_and(|q| q >= *i) || e.is_zero() {
-                return reject(
-                    Reason::EliminationStructure,
-                    format!(
-                        "elimination {k}: entries must be nonzero and in increasing index order"
-                    ),
-                );
-            }
+            reject_if(
+                prev.is_some_and(|q| q >= *i) || e.is_zero(),
+                Reason::EliminationStructure,
+                format_args!(
+                    "elimination {k}: entries must be nonzero and in increasing index order"
+                ),
+            )?;
             prev = Some(*i);
             if *i as usize == p {
                 pivot_ok = *e == 1 || *e == -1;
@@ -55,19 +54,17 @@ pub(crate) fn check_eliminations(
                 );
             }
         }
-        if !pivot_ok {
-            return reject(
-                Reason::EliminationStructure,
-                format!("elimination {k}: the pivot's coefficient must be ±1"),
-            );
-        }
+        reject_if(
+            !pivot_ok,
+            Reason::EliminationStructure,
+            format_args!("elimination {k}: the pivot's coefficient must be ±1"),
+        )?;
         let entries: Vec<(usize, &Integer)> = ents.iter().map(|(i, e)| (*i as usize, e)).collect();
-        if !witnesses.holds(&entries, &el.relation.witness, &format!("elimination {k}"))? {
-            return reject(
-                witnesses.failure(true),
-                format!("elimination {k} (pivot {p}) does not hold by its witness"),
-            );
-        }
+        reject_if(
+            !witnesses.holds(&entries, &el.relation.witness, &format!("elimination {k}"))?,
+            witnesses.failure(true),
+            format_args!("elimination {k} (pivot {p}) does not hold by its witness"),
+        )?;
         if let Some(slot) = known.get_mut(p) {
             *slot = true;
         }

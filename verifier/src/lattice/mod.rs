@@ -16,7 +16,7 @@ mod smith;
 use crate::limits::MAX_RANK;
 use crate::registry::{self, Theorem};
 use crate::relations::Witnesses;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Lattice, Witness};
 use rug::Integer;
 
@@ -46,12 +46,11 @@ impl LatticeOk {
 /// by `witnesses`.
 pub(crate) fn check_lattice(l: &Lattice, n: usize, witnesses: &mut Witnesses) -> Check<LatticeOk> {
     let r = l.generators.len();
-    if r > MAX_RANK {
-        return reject(
-            Reason::OverLimit,
-            format!("{r} generators; the limit is {MAX_RANK}"),
-        );
-    }
+    reject_if(
+        r > MAX_RANK,
+        Reason::OverLimit,
+        format_args!("{r} generators; the limit is {MAX_RANK}"),
+    )?;
     let mut known = vec![false; n];
     for &g in &l.generators {
         match known.get_mut(g as usize) {
@@ -65,20 +64,13 @@ pub(crate) fn check_lattice(l: &Lattice, n: usize, witnesses: &mut Witnesses) ->
         }
     }
     // Relations among the generators (rows of H).
-    if !smith::is_square(&l.relations, r) {
-        return reject(
-            Reason::SmithShape,
-            format!("the relation matrix must be {r} x {r}"),
-        );
-    }
+    reject_if(
+        !smith::is_square(&l.relations, r),
+        Reason::SmithShape,
+        format_args!("the relation matrix must be {r} x {r}"),
+    )?;
     for (i, row) in l.relations.iter().enumerate() {
-        let mut entries: Vec<(usize, &Integer)> = l
-            .generators
-            .iter()
-            .zip(row.iter())
-            .filter(|(_, e)| !e.is_zero())
-            .map(|(g, e)| (*g as usize, e))
-            .collect();
+        let mut entries = over_factor_base(&l.generators, row);
         entries.sort_by_key(|(g, _)| *g);
         if !witnesses.holds(
             &entries,
@@ -97,6 +89,13 @@ pub(crate) fn check_lattice(l: &Lattice, n: usize, witnesses: &mut Witnesses) ->
         h_star,
         diagonal: l.smith.diagonal.clone(),
     })
+}
+
+/// The nonzero entries of `row` (over the generators `G`) by factor-base
+/// index.
+pub(crate) fn over_factor_base<'a>(g: &[u32], row: &'a [Integer]) -> Vec<(usize, &'a Integer)> {
+    let entries = g.iter().zip(row.iter()).filter(|(_, e)| !e.is_zero());
+    entries.map(|(g, e)| (*g as usize, e)).collect()
 }
 
 /// The witness of row `i` of `H`: form reduction for all rows, or row `i`

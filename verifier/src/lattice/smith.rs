@@ -3,7 +3,7 @@
 //! unimodular and `Z^r / H Z^r ≅ ⊕ Z/d_i` (Cohen GTM 138, §2.4.3).
 
 use crate::limits::MAX_ENTRY_BITS;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::short_number;
 use classcert_format::Smith;
 use rug::Integer;
@@ -55,12 +55,11 @@ pub(crate) fn check_smith(h: &[Vec<Integer>], s: &Smith, r: usize) -> Check<Inte
             format!("Smith transforms must be {r} x {r}"),
         );
     }
-    if !is_identity(&mat_mul(&s.u, &s.u_inv, r)) || !is_identity(&mat_mul(&s.v, &s.v_inv, r)) {
-        return reject(
-            Reason::SmithNotUnimodular,
-            "U U' or V V' is not the identity",
-        );
-    }
+    reject_if(
+        !is_identity(&mat_mul(&s.u, &s.u_inv, r)) || !is_identity(&mat_mul(&s.v, &s.v_inv, r)),
+        Reason::SmithNotUnimodular,
+        "U U' or V V' is not the identity",
+    )?;
     let uhv = mat_mul(&mat_mul(&s.u, h, r), &s.v, r);
     for (i, row) in uhv.iter().enumerate() {
         for (j, x) in row.iter().enumerate() {
@@ -83,24 +82,22 @@ pub(crate) fn check_smith(h: &[Vec<Integer>], s: &Smith, r: usize) -> Check<Inte
     }
     let mut h_star = Integer::from(1);
     for (i, di) in s.diagonal.iter().enumerate() {
-        if *di < 1 || di.significant_bits() > MAX_ENTRY_BITS {
-            return reject(
-                Reason::SmithDivisibility,
-                format!("diagonal entry {i} must be positive"),
-            );
-        }
+        reject_if(
+            *di < 1 || di.significant_bits() > MAX_ENTRY_BITS,
+            Reason::SmithDivisibility,
+            format_args!("diagonal entry {i} must be positive"),
+        )?;
         if let Some(next) = s.diagonal.get(i + 1) {
-            if !next.is_divisible(di) {
-                return reject(
-                    Reason::SmithDivisibility,
-                    format!(
-                        "d_{i} = {} does not divide d_{} = {}",
-                        short_number(di),
-                        i + 1,
-                        short_number(next)
-                    ),
-                );
-            }
+            reject_if(
+                !next.is_divisible(di),
+                Reason::SmithDivisibility,
+                format_args!(
+                    "d_{i} = {} does not divide d_{} = {}",
+                    short_number(di),
+                    i + 1,
+                    short_number(next)
+                ),
+            )?;
         }
         h_star *= di;
     }

@@ -9,7 +9,7 @@
 //! needed (`docs/certificates.md`, section 0).
 
 use crate::arith::{primes_up_to, small_conductor};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject_if, Check, Reason};
 use crate::report::view::prime_powers_text;
 use rug::Integer;
 
@@ -51,16 +51,15 @@ pub(crate) fn check_conductor(
 ) -> Check<ConductorOk> {
     let trial_primes = primes_up_to(bound);
     let (conductor, d_small) = small_conductor(d, &trial_primes);
-    if conductor != stated {
-        return reject(
-            Reason::ConductorMismatch,
-            format!(
-                "trial division to {bound} finds the conductor's prime powers {}; the certificate states {}",
-                prime_powers_text(&conductor),
-                prime_powers_text(stated)
-            ),
-        );
-    }
+    reject_if(
+        conductor != stated,
+        Reason::ConductorMismatch,
+        format_args!(
+            "trial division to {bound} finds the conductor's prime powers {}; the certificate states {}",
+            prime_powers_text(&conductor),
+            prime_powers_text(stated)
+        ),
+    )?;
     Ok(ConductorOk {
         trial_primes,
         d_small,

@@ -3,7 +3,7 @@
 //! the form x² + ny²*, §7).
 
 use crate::limits::MAX_DISCRIMINANT_BITS;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::short_number;
 use classcert_format::Order;
 use rug::Integer;
@@ -45,28 +45,25 @@ pub(crate) fn check_discriminant(order: &Order) -> Check<OrderOk> {
         );
     };
     let abs_d = Integer::from(d.abs_ref());
-    if abs_d.significant_bits() > MAX_DISCRIMINANT_BITS {
-        return reject(
-            Reason::OverLimit,
-            format!("|D| has more than {MAX_DISCRIMINANT_BITS} bits"),
-        );
-    }
+    reject_if(
+        abs_d.significant_bits() > MAX_DISCRIMINANT_BITS,
+        Reason::OverLimit,
+        format_args!("|D| has more than {MAX_DISCRIMINANT_BITS} bits"),
+    )?;
     let r = d.mod_u(4);
-    if r != 0 && r != 1 {
-        return reject(
-            Reason::InvalidDiscriminant,
-            format!("D = {} is not ≡ 0 or 1 mod 4", short_number(d)),
-        );
-    }
-    if d.is_perfect_square() {
-        return reject(
-            Reason::InvalidDiscriminant,
-            format!(
-                "D = {} is a square, so it is not the discriminant of a quadratic order",
-                short_number(d)
-            ),
-        );
-    }
+    reject_if(
+        r != 0 && r != 1,
+        Reason::InvalidDiscriminant,
+        format_args!("D = {} is not ≡ 0 or 1 mod 4", short_number(d)),
+    )?;
+    reject_if(
+        d.is_perfect_square(),
+        Reason::InvalidDiscriminant,
+        format_args!(
+            "D = {} is a square, so it is not the discriminant of a quadratic order",
+            short_number(d)
+        ),
+    )?;
     let w = match d.to_i32() {
         Some(-3) => 6,
         Some(-4) => 4,

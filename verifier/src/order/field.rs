@@ -23,7 +23,7 @@ use crate::field::order::FieldOrder;
 use crate::field::roots::{check_roots, Roots};
 use crate::field::zpoly;
 use crate::limits::{MAX_FIELD_COEFF_BITS, MAX_IRREDUCIBILITY_PRIMES, MAX_PROOF_POWERS};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Embedding, Order, PrimePower};
 use rug::Integer;
 
@@ -65,12 +65,11 @@ pub(crate) fn check_field_order(order: &Order, enclosures: &Embedding) -> Check<
         );
     };
     let n = f.len().saturating_sub(1);
-    if !(3..=6).contains(&n) || f.last() != Some(&Integer::from(1)) {
-        return reject(
-            Reason::PolynomialInvalid,
-            "F must be monic of degree 3 to 6",
-        );
-    }
+    reject_if(
+        !(3..=6).contains(&n) || f.last() != Some(&Integer::from(1)),
+        Reason::PolynomialInvalid,
+        "F must be monic of degree 3 to 6",
+    )?;
     if f.iter()
         .any(|c| c.significant_bits() > MAX_FIELD_COEFF_BITS)
     {
@@ -87,14 +86,13 @@ pub(crate) fn check_field_order(order: &Order, enclosures: &Embedding) -> Check<
         Ok(r) => r,
         Err(e) => return reject(Reason::RootsInvalid, e.to_string()),
     };
-    if !shown_irreducible(f, n, &disc_f) && !roots.no_integer_factor() {
-        return reject(
-            Reason::PolynomialInvalid,
-            format!(
-                "F is not shown irreducible: neither its factorisation patterns modulo the first {MAX_IRREDUCIBILITY_PRIMES} primes not dividing disc(F) nor its roots rule out a proper factor"
-            ),
-        );
-    }
+    reject_if(
+        !shown_irreducible(f, n, &disc_f) && !roots.no_integer_factor(),
+        Reason::PolynomialInvalid,
+        format_args!(
+            "F is not shown irreducible: neither its factorisation patterns modulo the first {MAX_IRREDUCIBILITY_PRIMES} primes not dividing disc(F) nor its roots rule out a proper factor"
+        ),
+    )?;
     match FieldOrder::new(f, basis, denominator) {
         Ok(order) => Ok(FieldOrderOk {
             order,
@@ -157,12 +155,11 @@ pub(crate) fn check_field_maximality(
     let mut abs = Integer::from(o.order.discriminant().abs_ref());
     if let Some(c) = unfactored {
         let coprime = factors.iter().all(|pp| !c.is_divisible(&pp.prime));
-        if *c <= 1 || !abs.is_divisible(c) || !coprime || c.is_perfect_power() {
-            return reject(
-                Reason::MaximalityFactorisation,
-                "the unfactored part of |disc(O)| must exceed 1, divide it, be coprime to the listed primes and not be a perfect power",
-            );
-        }
+        reject_if(
+            *c <= 1 || !abs.is_divisible(c) || !coprime || c.is_perfect_power(),
+            Reason::MaximalityFactorisation,
+            "the unfactored part of |disc(O)| must exceed 1, divide it, be coprime to the listed primes and not be a perfect power",
+        )?;
         abs = abs.div_exact(c);
     }
     let evidence = check_factorisation(

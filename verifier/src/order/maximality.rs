@@ -10,7 +10,7 @@
 use crate::limits::{MAX_DISCRIMINANT_BITS, MAX_FACTORS, MAX_PROOF_POWERS};
 use crate::primality::{self, ProofError, Status, Used};
 use crate::registry::{self, Theorem};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::short_number;
 use classcert_format::PrimePower;
 use rug::ops::Pow;
@@ -92,12 +92,11 @@ pub(crate) fn check_maximality(
             3 => true,
             _ => false,
         };
-    if !fundamental {
-        return reject(
-            Reason::MaximalityNotFundamental,
-            "the factorisation shows that D is not a fundamental discriminant",
-        );
-    }
+    reject_if(
+        !fundamental,
+        Reason::MaximalityNotFundamental,
+        "the factorisation shows that D is not a fundamental discriminant",
+    )?;
     Ok(MaximalityOk {
         evidence: Some(evidence),
     })
@@ -113,22 +112,25 @@ pub(crate) fn check_factorisation(
     reason: Reason,
     work: &mut u64,
 ) -> Check<Factorisation> {
-    if factors.len() > MAX_FACTORS {
-        return reject(Reason::OverLimit, format!("too many factors of {what}"));
-    }
+    reject_if(
+        factors.len() > MAX_FACTORS,
+        Reason::OverLimit,
+        format_args!("too many factors of {what}"),
+    )?;
     let mut out = Factorisation::default();
     let mut product = Integer::from(1);
     let mut prev = Integer::new();
     for f in factors {
-        if f.prime <= prev || f.exponent == 0 || f.exponent > MAX_DISCRIMINANT_BITS {
-            return reject(
-                reason,
-                "factors must be listed once each, in increasing order, with positive exponents",
-            );
-        }
-        if f.prime.significant_bits() > MAX_DISCRIMINANT_BITS {
-            return reject(Reason::OverLimit, "a factor is too large");
-        }
+        reject_if(
+            f.prime <= prev || f.exponent == 0 || f.exponent > MAX_DISCRIMINANT_BITS,
+            reason,
+            "factors must be listed once each, in increasing order, with positive exponents",
+        )?;
+        reject_if(
+            f.prime.significant_bits() > MAX_DISCRIMINANT_BITS,
+            Reason::OverLimit,
+            "a factor is too large",
+        )?;
         match primality::check(&f.prime, &f.evidence, 0, work, &mut out.used) {
             Err(ProofError::Composite(q)) => {
                 return reject(
@@ -155,21 +157,22 @@ pub(crate) fn check_factorisation(
             Ok(Status::AssumedBpsw) => out.bpsw_assumed = true,
         }
         product *= Integer::from((&f.prime).pow(f.exponent));
-        if product.significant_bits() > MAX_DISCRIMINANT_BITS + 1 {
-            return reject(reason, format!("the factors multiply past {what}"));
-        }
+        reject_if(
+            product.significant_bits() > MAX_DISCRIMINANT_BITS + 1,
+            reason,
+            format_args!("the factors multiply past {what}"),
+        )?;
         prev = f.prime.clone();
     }
-    if product != *target {
-        return reject(
-            reason,
-            format!(
-                "the stated factors multiply to {}, not {what} = {}",
-                short_number(&product),
-                short_number(target)
-            ),
-        );
-    }
+    reject_if(
+        product != *target,
+        reason,
+        format_args!(
+            "the stated factors multiply to {}, not {what} = {}",
+            short_number(&product),
+            short_number(target)
+        ),
+    )?;
     Ok(out)
 }
 

@@ -11,7 +11,7 @@
 //! named itself or a later one would rest on a claim not yet checked.
 
 use crate::limits::{MAX_DERIVED_RELATIONS, MAX_ENTRY_BITS, MAX_RELATION_ENTRIES};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Relation, Witness};
 use rug::Integer;
 use std::collections::BTreeMap;
@@ -49,16 +49,17 @@ pub(crate) fn combine(
     let mut acc: BTreeMap<u32, Integer> = BTreeMap::new();
     let mut prev: Option<u32> = None;
     for (j, c) in terms {
-        if prev.is_some_and(|q| q >= *j) || c.is_zero() {
-            return reject(
-                Reason::CombinationMismatch,
-                "combination terms must be nonzero and in increasing index order",
-            );
-        }
+        reject_if(
+            prev.is_some_and(|q| q >= *j) || c.is_zero(),
+            Reason::CombinationMismatch,
+            "combination terms must be nonzero and in increasing index order",
+        )?;
         prev = Some(*j);
-        if c.significant_bits() > MAX_ENTRY_BITS {
-            return reject(Reason::OverLimit, "a combination coefficient is too large");
-        }
+        reject_if(
+            c.significant_bits() > MAX_ENTRY_BITS,
+            Reason::OverLimit,
+            "a combination coefficient is too large",
+        )?;
         let Some(rel) = pool.get(*j) else {
             return reject(
                 Reason::CombinationMismatch,
@@ -71,12 +72,11 @@ pub(crate) fn combine(
             );
         };
         let cost = rel.entries.len() as u64 + 1;
-        if cost > *work {
-            return reject(
-                Reason::OverLimit,
-                "combinations need more work than the verifier allows",
-            );
-        }
+        reject_if(
+            cost > *work,
+            Reason::OverLimit,
+            "combinations need more work than the verifier allows",
+        )?;
         *work -= cost;
         for (i, e) in &rel.entries {
             *acc.entry(*i).or_default() += Integer::from(c * e);
@@ -106,34 +106,35 @@ pub(crate) fn check_derived(
     work: &mut u64,
     beat: &mut dyn FnMut(),
 ) -> Check<()> {
-    if derived.len() > MAX_DERIVED_RELATIONS {
-        return reject(Reason::OverLimit, "too many derived relations");
-    }
+    reject_if(
+        derived.len() > MAX_DERIVED_RELATIONS,
+        Reason::OverLimit,
+        "too many derived relations",
+    )?;
     for (m, rel) in derived.iter().enumerate() {
         if m % 4096 == 0 {
             beat();
         }
-        if rel.entries.len() > MAX_RELATION_ENTRIES {
-            return reject(Reason::OverLimit, "a relation has too many entries");
-        }
+        reject_if(
+            rel.entries.len() > MAX_RELATION_ENTRIES,
+            Reason::OverLimit,
+            "a relation has too many entries",
+        )?;
         let mut prev: Option<u32> = None;
         for (i, e) in &rel.entries {
-            if prev.is_some_and(|q| q >= *i) || e.is_zero() {
-                return reject(
-                    Reason::CombinationMismatch,
-                    format!(
-                        "derived relation {m}: entries must be nonzero and in increasing index \
-                         order"
-                    ),
-                );
-            }
+            reject_if(
+                prev.is_some_and(|q| q >= *i) || e.is_zero(),
+                Reason::CombinationMismatch,
+                format_args!(
+                    "derived relation {m}: entries must be nonzero and in increasing index order"
+                ),
+            )?;
             prev = Some(*i);
-            if e.significant_bits() > MAX_ENTRY_BITS {
-                return reject(
-                    Reason::OverLimit,
-                    format!("derived relation {m}: an entry is too large"),
-                );
-            }
+            reject_if(
+                e.significant_bits() > MAX_ENTRY_BITS,
+                Reason::OverLimit,
+                format_args!("derived relation {m}: an entry is too large"),
+            )?;
         }
         let Witness::Combination { terms } = &rel.witness else {
             return reject(
@@ -158,12 +159,11 @@ pub(crate) fn check_derived(
         let sum = combine(pool, terms, work)?;
         let entries: Vec<(usize, &Integer)> =
             rel.entries.iter().map(|(i, e)| (*i as usize, e)).collect();
-        if !equals(&entries, &sum) {
-            return reject(
-                Reason::CombinationMismatch,
-                format!("derived relation {m} is not the combination its witness states"),
-            );
-        }
+        reject_if(
+            !equals(&entries, &sum),
+            Reason::CombinationMismatch,
+            format_args!("derived relation {m} is not the combination its witness states"),
+        )?;
     }
     Ok(())
 }

@@ -28,7 +28,7 @@
 
 use crate::analytic::interval::Interval;
 use crate::limits::*;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Relation, Witness};
 use rug::ops::Pow;
 use rug::Integer;
@@ -65,12 +65,16 @@ pub(crate) fn check_element(
     y: &Integer,
 ) -> Check<bool> {
     let bad = |why: String| reject(Reason::RelationWitnessInvalid, format!("{what}: {why}"));
-    if entries.len() > MAX_RELATION_ENTRIES {
-        return reject(Reason::OverLimit, "a relation has too many entries");
-    }
-    if x.significant_bits() > MAX_ENTRY_BITS || y.significant_bits() > MAX_ENTRY_BITS {
-        return reject(Reason::OverLimit, "an element witness is too large");
-    }
+    reject_if(
+        entries.len() > MAX_RELATION_ENTRIES,
+        Reason::OverLimit,
+        "a relation has too many entries",
+    )?;
+    reject_if(
+        x.significant_bits() > MAX_ENTRY_BITS || y.significant_bits() > MAX_ENTRY_BITS,
+        Reason::OverLimit,
+        "an element witness is too large",
+    )?;
     if (x - Integer::from(y * d)).is_odd() {
         return bad("x ≢ y D (mod 2), so (x + y sqrt D)/2 is not in the order".into());
     }

@@ -5,7 +5,7 @@
 
 use crate::ideals::form::Form;
 use crate::limits::{MAX_ENTRY_BITS, MAX_TABLE_FORMS};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use rug::Integer;
 use std::collections::BTreeMap;
 
@@ -25,19 +25,20 @@ impl Budget {
         let mut ones = 0u64;
         for e in exps {
             let bits = e.significant_bits();
-            if bits > MAX_ENTRY_BITS {
-                return reject(Reason::OverLimit, "an exponent is too large");
-            }
+            reject_if(
+                bits > MAX_ENTRY_BITS,
+                Reason::OverLimit,
+                "an exponent is too large",
+            )?;
             max_bits = max_bits.max(bits);
             ones += u64::from(Integer::from(e.abs_ref()).count_ones().unwrap_or(bits));
         }
         let cost = u64::from(max_bits) + ones;
-        if cost > self.0 {
-            return reject(
-                Reason::OverLimit,
-                "relations need more form arithmetic than the verifier allows",
-            );
-        }
+        reject_if(
+            cost > self.0,
+            Reason::OverLimit,
+            "relations need more form arithmetic than the verifier allows",
+        )?;
         self.0 -= cost;
         Ok(())
     }
@@ -151,9 +152,11 @@ pub(crate) fn product_with(
                 format!("index {i} is outside the factor base"),
             );
         };
-        if e.significant_bits() > MAX_ENTRY_BITS {
-            return reject(Reason::OverLimit, "an exponent is too large");
-        }
+        reject_if(
+            e.significant_bits() > MAX_ENTRY_BITS,
+            Reason::OverLimit,
+            "an exponent is too large",
+        )?;
         let abs = Integer::from(e.abs_ref());
         let cost = match powers.as_deref() {
             Some(p) if abs.significant_bits() >= TABLE_MIN_BITS => p.cost(*i, &abs),
@@ -171,12 +174,11 @@ pub(crate) fn product_with(
     }
     let exps: Vec<&Integer> = terms.iter().map(|(_, e)| *e).collect();
     budget.charge(&exps)?;
-    if table_cost > budget.0 {
-        return reject(
-            Reason::OverLimit,
-            "relations need more form arithmetic than the verifier allows",
-        );
-    }
+    reject_if(
+        table_cost > budget.0,
+        Reason::OverLimit,
+        "relations need more form arithmetic than the verifier allows",
+    )?;
     budget.0 -= table_cost;
     let Ok(mut acc) = Form::product(&terms, d) else {
         return Ok(None);

@@ -19,7 +19,7 @@ use crate::ideals::form::Form;
 use crate::ideals::OrderArithmetic;
 use crate::limits::{MAX_COMBINATION_WORK, MAX_COMPOSITIONS, MAX_RAW_RELATIONS};
 use crate::registry::{self, Theorem};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Relation, Witness};
 use combinations::Checked;
 use forms::{Budget, Powers};
@@ -84,9 +84,11 @@ pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
             )
         }
     };
-    if raw.len() > MAX_RAW_RELATIONS {
-        return reject(Reason::OverLimit, "too many raw relations");
-    }
+    reject_if(
+        raw.len() > MAX_RAW_RELATIONS,
+        Reason::OverLimit,
+        "too many raw relations",
+    )?;
     for (k, rel) in raw.iter().enumerate() {
         if k % 4096 == 0 {
             beat();

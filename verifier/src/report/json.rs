@@ -101,14 +101,19 @@ impl Report {
         }
     }
 
+    /// The verdict, with the key `answer` last when an answer was checked.
     pub fn to_json(&self) -> Json {
+        let mut j = self.verdict_json();
+        if let (Json::Obj(e), Some(a)) = (&mut j, &self.summary.answer) {
+            e.push(("answer".into(), a.json()));
+        }
+        j
+    }
+
+    fn verdict_json(&self) -> Json {
         let opt = |x: &Option<Integer>| x.as_ref().map(num).unwrap_or(Json::Null);
-        let id = self
-            .summary
-            .certificate_sha256
-            .clone()
-            .map(Json::Str)
-            .unwrap_or(Json::Null);
+        let sm = &self.summary;
+        let id = sm.certificate_sha256.clone().map_or(Json::Null, Json::Str);
         let mut e: Vec<(&str, Json)> = vec![
             ("schema", Json::str(SCHEMA)),
             ("kind", Json::str("verdict")),
@@ -121,13 +126,8 @@ impl Report {
                 e.push(("detail", Json::str(r.detail.clone())));
                 e.push(("certificate_sha256", id));
                 self.signer_and_policy_json(&mut e);
-                e.push((
-                    "certificate_kind",
-                    self.summary
-                        .kind
-                        .map(|k| Json::str(kind_name(k)))
-                        .unwrap_or(Json::Null),
-                ));
+                let kind = sm.kind.map_or(Json::Null, |k| Json::str(kind_name(k)));
+                e.push(("certificate_kind", kind));
                 match &self.summary.polynomial {
                     Some(f) => e.push(("polynomial", Json::str(super::polynomial_text(f)))),
                     None => e.push(("discriminant", opt(&self.summary.discriminant))),
@@ -136,18 +136,10 @@ impl Report {
                 e.push(("class_number", Json::Null));
                 e.push(("invariants", Json::Null));
                 e.push(("assumptions", Json::Arr(vec![])));
-                e.push((
-                    "claimed_class_number",
-                    opt(&self.summary.claimed_class_number),
-                ));
-                e.push((
-                    "claimed_invariants",
-                    self.summary
-                        .claimed_invariants
-                        .as_ref()
-                        .map(|v| Json::Arr(v.iter().map(num).collect()))
-                        .unwrap_or(Json::Null),
-                ));
+                e.push(("claimed_class_number", opt(&sm.claimed_class_number)));
+                let inv = sm.claimed_invariants.as_ref();
+                let inv = inv.map_or(Json::Null, |v| Json::Arr(v.iter().map(num).collect()));
+                e.push(("claimed_invariants", inv));
                 return Json::obj(e);
             }
         };
@@ -191,20 +183,13 @@ impl Report {
             e.push(("conductor", Json::str("1")));
         }
         e.push(("class_number", num(v.class_number())));
-        e.push((
-            "invariants",
-            Json::Arr(v.invariants().iter().map(num).collect()),
-        ));
-        e.push((
-            "generators",
-            Json::Arr(
-                v.generators()
-                    .iter()
-                    .enumerate()
-                    .map(|(i, g)| generator(v.invariants().get(i), g))
-                    .collect(),
-            ),
-        ));
+        let (inv, gens) = (v.invariants(), v.generators());
+        e.push(("invariants", Json::Arr(inv.iter().map(num).collect())));
+        let gens = gens
+            .iter()
+            .enumerate()
+            .map(|(i, g)| generator(inv.get(i), g));
+        e.push(("generators", Json::Arr(gens.collect())));
         if let Some(u) = v.unit() {
             e.push((
                 "unit",
@@ -215,41 +200,25 @@ impl Report {
                 ]),
             ));
         }
-        e.push((
-            "assumptions",
-            Json::Arr(
-                v.assumptions()
-                    .iter()
-                    .map(|a| Json::str(a.name()))
-                    .collect(),
-            ),
-        ));
+        let assumptions = v.assumptions().iter().map(|a| Json::str(a.name()));
+        e.push(("assumptions", Json::Arr(assumptions.collect())));
         e.push(("analytic", analytic(v.method())));
         if let Some(b) = v.generation_bound() {
             e.push(("generation_bound", Json::Num(b.to_string())));
         }
         e.push(("w", Json::Num(v.w().to_string())));
-        e.push((
-            "theorems",
-            Json::Arr(
-                v.theorems()
-                    .iter()
-                    .map(|t| {
-                        Json::obj(vec![
-                            ("id", Json::str(t.id)),
-                            ("hypothesis", Json::str(t.hypothesis.name())),
-                            ("statement", Json::str(t.statement)),
-                            ("citation", Json::str(t.citation)),
-                            ("note", Json::str(t.note)),
-                        ])
-                    })
-                    .collect(),
-            ),
-        ));
-        e.push((
-            "not_proven",
-            Json::Arr(not_proven(v).into_iter().map(Json::Str).collect()),
-        ));
+        let theorems = v.theorems().iter().map(|t| {
+            Json::obj(vec![
+                ("id", Json::str(t.id)),
+                ("hypothesis", Json::str(t.hypothesis.name())),
+                ("statement", Json::str(t.statement)),
+                ("citation", Json::str(t.citation)),
+                ("note", Json::str(t.note)),
+            ])
+        });
+        e.push(("theorems", Json::Arr(theorems.collect())));
+        let not_proven = not_proven(v).into_iter().map(Json::Str);
+        e.push(("not_proven", Json::Arr(not_proven.collect())));
         Json::obj(e)
     }
 }

@@ -34,6 +34,8 @@ pub struct Summary {
     pub signer: Option<crate::signature::Signer>,
     /// The rules of the policy applied (`Report::apply`), if any.
     pub policy: Vec<String>,
+    /// An answer checked against the certificate (`Report::check_answer`).
+    pub answer: Option<crate::answer::Answered>,
 }
 
 /// A report: what was read, and the outcome.

@@ -6,6 +6,7 @@
 
 use super::reason::{Reason, Rejection};
 use super::{Assumption, Report, Summary, Verified};
+use crate::limits::MAX_POLICY_LINES;
 use rug::Integer;
 
 /// The rules; the default demands nothing.
@@ -64,20 +65,11 @@ impl Policy {
             .as_ref()
             .filter(|h| *h != v.class_number())
         {
-            Some(format!(
-                "the class number is {}, not the expected {h}",
-                v.class_number()
-            ))
-        } else if let Some(d) = self
-            .invariants
-            .as_ref()
-            .filter(|d| d.as_slice() != v.invariants())
-        {
-            Some(format!(
-                "the group is {}, not the expected {}",
-                text(v.invariants()),
-                text(d)
-            ))
+            let h_v = v.class_number();
+            Some(format!("the class number is {h_v}, not the expected {h}"))
+        } else if let Some(d) = self.invariants.as_ref().filter(|d| *d != v.invariants()) {
+            let (group, expected) = (text(v.invariants()), text(d));
+            Some(format!("the group is {group}, not the expected {expected}"))
         } else if self.signed && summary.signer.as_ref().is_none_or(|s| !s.trusted) {
             Some("the policy requires a signature under a trusted key, and the certificate is not signed".into())
         } else {
@@ -94,11 +86,7 @@ impl Policy {
     pub fn from_toml(text: &str) -> Result<(Policy, Vec<String>), String> {
         let mut p = Policy::default();
         let mut keys = Vec::new();
-        for (i, line) in text
-            .lines()
-            .enumerate()
-            .take(crate::limits::MAX_POLICY_LINES)
-        {
+        for (i, line) in text.lines().enumerate().take(MAX_POLICY_LINES) {
             let line = line.split('#').next().unwrap_or("").trim();
             if line.is_empty() {
                 continue;

@@ -1,10 +1,12 @@
 //! Why a certificate is refused: the reason codes, stable for scripts.
 
-/// Declares [`Reason`] and its codes together, one line per reason.
+/// Defines [`Reason`] and its codes in one list, so a variant cannot lack
+/// its code.
 macro_rules! reasons {
     ($($variant:ident => $code:literal,)*) => {
-        /// Why a certificate was not verified. Each has a stable code that
-        /// scripts may match on (`reason` in the JSON output).
+        /// Why a certificate (or an answer) was not verified. Each has a
+        /// stable code that scripts may match on (`reason` in the JSON
+        /// output).
         #[derive(Debug, Clone, Copy, PartialEq, Eq)]
         #[non_exhaustive]
         pub enum Reason {
@@ -12,6 +14,9 @@ macro_rules! reasons {
         }
 
         impl Reason {
+            /// Every reason, in the order of the list.
+            pub const ALL: &'static [Reason] = &[$(Reason::$variant,)*];
+
             /// The stable code (`reason` in the JSON output).
             pub fn code(self) -> &'static str {
                 match self {
@@ -84,6 +89,10 @@ reasons! {
     SignatureInvalid => "signature-invalid",
     SignerNotTrusted => "signer-not-trusted",
     ManifestMismatch => "manifest-mismatch",
+    AnswerMismatch => "answer-mismatch",
+    AnswerInvalid => "answer-invalid",
+    AnswerNotPrincipal => "answer-not-principal",
+    AnswerOrderMismatch => "answer-order-mismatch",
 }
 
 /// A refusal: the reason code and one sentence saying what failed.
@@ -95,6 +104,15 @@ pub struct Rejection {
 
 /// The result of a check: its token, or why the certificate is refused.
 pub type Check<T> = Result<T, Rejection>;
+
+/// Refuses with `reason` when `refused`; the detail is written out only
+/// then (pass `format_args!`, not `format!`).
+pub fn reject_if(refused: bool, reason: Reason, detail: impl std::fmt::Display) -> Check<()> {
+    match refused {
+        true => reject(reason, detail.to_string()),
+        false => Ok(()),
+    }
+}
 
 /// Refuses with `reason`.
 pub fn reject<T>(reason: Reason, detail: impl Into<String>) -> Result<T, Rejection> {

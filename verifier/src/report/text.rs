@@ -73,21 +73,14 @@ impl Report {
 
     pub fn to_text(&self) -> String {
         let mut s = String::new();
-        let id = self
-            .summary
-            .certificate_sha256
-            .clone()
-            .unwrap_or_else(|| "-".into());
-        let disc = self
-            .summary
-            .discriminant
-            .as_ref()
-            .map(super::short_number)
-            .unwrap_or_else(|| "-".into());
+        let sm = &self.summary;
+        let id = sm.certificate_sha256.clone().unwrap_or_else(|| "-".into());
+        let disc = (sm.discriminant.as_ref()).map_or_else(|| "-".into(), super::short_number);
         let v = match &self.outcome {
             Ok(v) => v,
             Err(r) => {
                 s.push_str(&format!("REJECTED: {}\n", r.reason.code()));
+                s.extend(self.summary.answer.as_ref().map(|a| a.text()));
                 s.push_str(&format!("  certificate   {id}\n"));
                 self.signer_and_policy_text(&mut s);
                 match &self.summary.polynomial {
@@ -108,6 +101,7 @@ impl Report {
             }
         };
         s.push_str("VERIFIED\n");
+        s.extend(self.summary.answer.as_ref().map(|a| a.text()));
         s.push_str(&format!("  certificate   {id}\n"));
         self.signer_and_policy_text(&mut s);
         let what = if v.maximal() {
@@ -146,16 +140,9 @@ impl Report {
             invariants_text(v.invariants()),
             v.class_number()
         ));
-        for (i, g) in v.generators().iter().enumerate() {
-            let d = v
-                .invariants()
-                .get(i)
-                .map(|d| d.to_string())
-                .unwrap_or_default();
-            s.push_str(&format!(
-                "  generator     {}  of order {d}\n",
-                generator_text(g)
-            ));
+        for (g, d) in v.generators().iter().zip(v.invariants()) {
+            let g = generator_text(g);
+            s.push_str(&format!("  generator     {g}  of order {d}\n"));
         }
         if let Some(u) = v.unit() {
             s.push_str(&format!("  regulator     R = {}\n", u.regulator_text()));
@@ -191,14 +178,13 @@ impl Report {
             "h"
         };
         let shown = match (v.kind(), v.generation_bound(), v.factor_base_size()) {
-            (CertificateKind::OrderWitness, _, _) => format!(
-                "classes of exact orders {} that are independent",
-                v.invariants()
-                    .iter()
-                    .map(|d| d.to_string())
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            ),
+            (CertificateKind::OrderWitness, _, _) => {
+                let orders: Vec<String> = v.invariants().iter().map(|d| d.to_string()).collect();
+                format!(
+                    "classes of exact orders {} that are independent",
+                    orders.join(", ")
+                )
+            }
             (CertificateKind::Relations, Some(b), Some(n)) => {
                 format!("{n} prime ideals up to {b}")
             }
@@ -212,12 +198,8 @@ impl Report {
         ));
         s.push_str("  theorems\n");
         for t in v.theorems() {
-            s.push_str(&format!(
-                "    [{}] ({}) {}\n",
-                t.id,
-                t.hypothesis.name(),
-                t.citation
-            ));
+            let (id, hypothesis) = (t.id, t.hypothesis.name());
+            s.push_str(&format!("    [{id}] ({hypothesis}) {}\n", t.citation));
             if !t.note.is_empty() {
                 s.push_str(&format!("      note: {}\n", t.note));
             }

@@ -166,56 +166,42 @@ pub fn generator_text(g: &GeneratorView) -> String {
     match g {
         GeneratorView::Form(a, b, c) => format!("({a}, {b}, {c})"),
         GeneratorView::Ideals(f) => ideals_text(f, " · "),
-        GeneratorView::FieldIdeals(f) if f.is_empty() => "(1)".into(),
-        GeneratorView::FieldIdeals(f) => f
-            .iter()
-            .map(|(p, k, e)| {
-                let ideal = format!("P{k} (above {p})");
-                if *e == 1 {
-                    ideal
-                } else {
-                    format!("{ideal}^{e}")
-                }
-            })
-            .collect::<Vec<_>>()
-            .join(" · "),
+        GeneratorView::FieldIdeals(f) => {
+            product_text(f, " · ", |p, k| format!("P{k} (above {p})"))
+        }
     }
 }
 
 /// `∏ (p, (b + sqrt(D))/2)^e` over `(p, b, e)`, joined by `sep`; `(1)`
 /// for the empty product.
 pub fn ideals_text(f: &[(u64, u64, Integer)], sep: &str) -> String {
+    product_text(f, sep, |p, b| format!("({p}, ({b} + sqrt(D))/2)"))
+}
+
+/// `∏ ideal(p, b)^e` over `(p, b, e)`, joined by `sep`; `(1)` for the
+/// empty product.
+fn product_text(
+    f: &[(u64, u64, Integer)],
+    sep: &str,
+    ideal: impl Fn(u64, u64) -> String,
+) -> String {
     if f.is_empty() {
         return "(1)".into();
     }
-    f.iter()
-        .map(|(p, b, e)| {
-            let ideal = format!("({p}, ({b} + sqrt(D))/2)");
-            if *e == 1 {
-                ideal
-            } else {
-                format!("{ideal}^{e}")
-            }
-        })
-        .collect::<Vec<_>>()
-        .join(sep)
+    let powers: Vec<String> = f.iter().map(|(p, b, e)| power(ideal(*p, *b), e)).collect();
+    powers.join(sep)
 }
 
 /// At most `MAX_SHOWN_DIGITS` digits of a number from the input, so a
 /// huge value cannot flood a message: `1234567890…(2000 digits)`.
 pub fn short_number(n: &Integer) -> String {
     let s = n.to_string();
-    let digits = s.trim_start_matches('-').len();
-    if digits <= MAX_SHOWN_DIGITS {
+    let (sign, digits) = s.split_at(usize::from(s.starts_with('-')));
+    if digits.len() <= MAX_SHOWN_DIGITS {
         return s;
     }
-    let sign = if s.starts_with('-') { "-" } else { "" };
-    let head: String = s
-        .trim_start_matches('-')
-        .chars()
-        .take(MAX_SHOWN_DIGITS - 10)
-        .collect();
-    format!("{sign}{head}…({digits} digits)")
+    let head: String = digits.chars().take(MAX_SHOWN_DIGITS - 10).collect();
+    format!("{sign}{head}…({} digits)", digits.len())
 }
 
 /// The most digits of an input number a message shows.
@@ -226,16 +212,16 @@ pub fn prime_powers_text(pp: &[(u64, u32)]) -> String {
     if pp.is_empty() {
         return "none".into();
     }
-    pp.iter()
-        .map(|(p, e)| {
-            if *e == 1 {
-                p.to_string()
-            } else {
-                format!("{p}^{e}")
-            }
-        })
-        .collect::<Vec<_>>()
-        .join(" · ")
+    let powers: Vec<String> = pp.iter().map(|(p, e)| power(p.to_string(), e)).collect();
+    powers.join(" · ")
+}
+
+/// `base^e`, or `base` when `e` is 1.
+fn power(base: String, e: &impl std::fmt::Display) -> String {
+    match e.to_string().as_str() {
+        "1" => base,
+        e => format!("{base}^{e}"),
+    }
 }
 
 /// The digits of an enclosure that are certain: the midpoint rounded to as

@@ -27,7 +27,7 @@ use crate::analytic::interval::Interval;
 use crate::ideals::form::Form;
 use crate::limits::*;
 use crate::relations::elements::log_abs_alpha;
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::CompactStep;
 use rug::Integer;
 
@@ -95,9 +95,11 @@ pub fn check_chain(d: &Integer, steps: &[CompactStep]) -> Check<Chain> {
             format!("compact representation, step {}: {why}", j + 1),
         )
     };
-    if steps.len() > MAX_COMPACT_STEPS {
-        return reject(Reason::OverLimit, "the compact representation is too long");
-    }
+    reject_if(
+        steps.len() > MAX_COMPACT_STEPS,
+        Reason::OverLimit,
+        "the compact representation is too long",
+    )?;
     let l = steps.len();
     let prec = 224 + u32::try_from(l).unwrap_or(u32::MAX).min(MAX_ENTRY_BITS);
     let mut log_eps = Interval::int_prec(&Integer::new(), prec);
@@ -106,9 +108,11 @@ pub fn check_chain(d: &Integer, steps: &[CompactStep]) -> Check<Chain> {
     let mut prev = Form::principal(d);
     for (j, t) in steps.iter().enumerate() {
         for v in [&t.a, &t.b, &t.x, &t.y, &t.s] {
-            if v.significant_bits() > MAX_ENTRY_BITS {
-                return reject(Reason::OverLimit, "a compact step is too large");
-            }
+            reject_if(
+                v.significant_bits() > MAX_ENTRY_BITS,
+                Reason::OverLimit,
+                "a compact step is too large",
+            )?;
         }
         if t.s <= 0 || (t.x.is_zero() && t.y.is_zero()) {
             return bad(j, "β must be nonzero with a positive denominator");
@@ -154,12 +158,11 @@ pub fn check_chain(d: &Integer, steps: &[CompactStep]) -> Check<Chain> {
         }
         prev = ideal;
     }
-    if prev.a != 1 {
-        return reject(
-            Reason::UnitChainMismatch,
-            "the last ideal of the compact representation is not the order itself",
-        );
-    }
+    reject_if(
+        prev.a != 1,
+        Reason::UnitChainMismatch,
+        "the last ideal of the compact representation is not the order itself",
+    )?;
     Ok(Chain {
         log_eps,
         norm_negative,

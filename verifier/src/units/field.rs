@@ -18,7 +18,7 @@ use crate::field::fppoly::Fp;
 use crate::field::order::FieldOrder;
 use crate::field::roots::{abs_det, Roots};
 use crate::limits::{MAX_COMBINATION_WORK, MAX_TORSION_PRIMES, MAX_W};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{FieldUnits, Relation, Witness};
 use rug::ops::Pow;
 use rug::Integer;
@@ -51,28 +51,28 @@ fn is_one(o: &FieldOrder, a: &[Integer]) -> bool {
 /// `ζ` has exact order `w`, and the residue fields allow no more.
 fn check_torsion(o: &FieldOrder, disc_f: &Integer, u: &FieldUnits) -> Check<()> {
     let w = u.w;
-    if !(2..=MAX_W).contains(&w) || u.zeta.len() != o.degree() {
-        return reject(
-            Reason::TorsionMismatch,
-            format!("w = {w} must lie in [2, {MAX_W}], with zeta given by its coordinates"),
-        );
-    }
+    reject_if(
+        !(2..=MAX_W).contains(&w) || u.zeta.len() != o.degree(),
+        Reason::TorsionMismatch,
+        format_args!("w = {w} must lie in [2, {MAX_W}], with zeta given by its coordinates"),
+    )?;
     let power = |e: u32| o.pow(&u.zeta, e).unwrap_or_default();
-    if !is_one(o, &power(w)) {
-        return reject(Reason::TorsionMismatch, format!("zeta^{w} is not 1"));
-    }
+    reject_if(
+        !is_one(o, &power(w)),
+        Reason::TorsionMismatch,
+        format_args!("zeta^{w} is not 1"),
+    )?;
     let mut m = w;
     for q in 2..=w {
         if m.is_multiple_of(q) {
             while m.is_multiple_of(q) {
                 m /= q;
             }
-            if is_one(o, &power(w / q)) {
-                return reject(
-                    Reason::TorsionMismatch,
-                    format!("zeta^{} is already 1: zeta does not have order {w}", w / q),
-                );
-            }
+            reject_if(
+                is_one(o, &power(w / q)),
+                Reason::TorsionMismatch,
+                format_args!("zeta^{} is already 1: zeta does not have order {w}", w / q),
+            )?;
         }
     }
     let mut g = Integer::new();
@@ -93,12 +93,13 @@ fn check_torsion(o: &FieldOrder, disc_f: &Integer, u: &FieldUnits) -> Check<()> 
         tried += 1;
         g.gcd_mut(&(Integer::from(p).pow(f) - 1u32));
     }
-    if g != w {
-        return reject(
-            Reason::TorsionMismatch,
-            format!("the residue fields of the first {tried} unramified primes allow {g} roots of unity, not {w}"),
-        );
-    }
+    reject_if(
+        g != w,
+        Reason::TorsionMismatch,
+        format_args!(
+            "the residue fields of the first {tried} unramified primes allow {g} roots of unity, not {w}"
+        ),
+    )?;
     Ok(())
 }
 
@@ -113,15 +114,14 @@ pub(crate) fn check_field_units(
     let (r1, r2) = roots.signature();
     check_torsion(o, disc_f, u)?;
     let r = r1 + r2 - 1;
-    if u.units.len() != r {
-        return reject(
-            Reason::UnitsShape,
-            format!(
-                "the signature ({r1}, {r2}) needs {r} units, not {}",
-                u.units.len()
-            ),
-        );
-    }
+    reject_if(
+        u.units.len() != r,
+        Reason::UnitsShape,
+        format_args!(
+            "the signature ({r1}, {r2}) needs {r} units, not {}",
+            u.units.len()
+        ),
+    )?;
     let mut work = MAX_COMBINATION_WORK;
     let mut logs: Vec<Option<Vec<Interval>>> = vec![None; raw.len()];
     let mut matrix = Vec::with_capacity(r);
@@ -131,20 +131,21 @@ pub(crate) fn check_field_units(
         let mut log = vec![Interval::zero(); r1 + r2];
         let mut prev = None;
         for (j, k) in unit {
-            if prev.is_some_and(|p| p >= *j) || *k == 0 {
-                return reject(
-                    Reason::UnitsShape,
-                    format!("unit {i}: relation indices must increase, exponents be nonzero"),
-                );
-            }
+            reject_if(
+                prev.is_some_and(|p| p >= *j) || *k == 0,
+                Reason::UnitsShape,
+                format_args!("unit {i}: relation indices must increase, exponents be nonzero"),
+            )?;
             prev = Some(*j);
             let Some(rel) = raw.get(*j as usize) else {
                 return reject(Reason::UnitsShape, format!("unit {i}: no raw relation {j}"));
             };
             work = work.saturating_sub(rel.entries.len() as u64 + 1);
-            if work == 0 {
-                return reject(Reason::OverLimit, "the units' power products are too long");
-            }
+            reject_if(
+                work == 0,
+                Reason::OverLimit,
+                "the units' power products are too long",
+            )?;
             for (idx, e) in &rel.entries {
                 match sum.binary_search_by_key(idx, |s| s.0) {
                     Ok(pos) => {
@@ -179,12 +180,13 @@ pub(crate) fn check_field_units(
                 *acc = acc.add(&kk.mul(l));
             }
         }
-        if sum.iter().any(|(_, e)| *e != 0) {
-            return reject(
-                Reason::UnitNotUnit,
-                format!("unit {i}: the exponents do not cancel over the factor base, so it is not shown to be a unit"),
-            );
-        }
+        reject_if(
+            sum.iter().any(|(_, e)| *e != 0),
+            Reason::UnitNotUnit,
+            format_args!(
+                "unit {i}: the exponents do not cancel over the factor base, so it is not shown to be a unit"
+            ),
+        )?;
         log.truncate(r);
         matrix.push(log);
     }

@@ -6,7 +6,7 @@
 
 use super::compact::Chain;
 use crate::analytic::interval::{stated_contains, Interval};
-use crate::report::reason::{reject, Check, Reason};
+use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::Units;
 use rug::ops::Pow;
 use rug::Integer;
@@ -63,24 +63,22 @@ pub(crate) fn check_stated(units: &Units, chain: &Chain) -> Check<UnitFacts> {
         hi: claimed.lo.clone(),
     });
     let scale = Interval::int(&Integer::from(10u32).pow(MIN_DIGITS + 1));
-    if width.mul(&scale).hi > claimed.lo {
-        return reject(
-            Reason::RegulatorImprecise,
-            format!(
-                "the stated regulator interval is wider than {MIN_DIGITS} significant digits allow"
-            ),
-        );
-    }
+    reject_if(
+        width.mul(&scale).hi > claimed.lo,
+        Reason::RegulatorImprecise,
+        format_args!(
+            "the stated regulator interval is wider than {MIN_DIGITS} significant digits allow"
+        ),
+    )?;
     let norm: i8 = if chain.norm_negative { -1 } else { 1 };
-    if units.norm != i64::from(norm) {
-        return reject(
-            Reason::UnitNormMismatch,
-            format!(
-                "the stated norm is {} but the unit's norm is {norm}",
-                units.norm
-            ),
-        );
-    }
+    reject_if(
+        units.norm != i64::from(norm),
+        Reason::UnitNormMismatch,
+        format_args!(
+            "the stated norm is {} but the unit's norm is {norm}",
+            units.norm
+        ),
+    )?;
     Ok(UnitFacts {
         regulator,
         norm,
