@@ -18,7 +18,6 @@ use classcert_verifier::{limits, manifest, signature};
 use std::io::{IsTerminal, Read, Write};
 use std::process::ExitCode;
 use std::sync::atomic::{AtomicUsize, Ordering};
-use std::sync::Arc;
 use std::time::{Duration, Instant};
 
 mod cli;
@@ -111,23 +110,10 @@ fn main() -> ExitCode {
         Ok(a) => a,
         Err(detail) => return usage_error(cli.json, "io-error", &detail),
     };
-    // The ticker thread starts only once a run has taken QUIET_FOR: a
-    // second thread makes every allocation pay for thread safety (about 7%
-    // of a short run), which a run that ends quickly need not pay.
-    let stage = Arc::new(AtomicUsize::new(0));
-    let start = Instant::now();
-    let mut ticker: Option<Ticker> = None;
-    let report = classcert_verifier::verify_signed_with(&bytes, &trusted, &mut |name| {
-        if let Some(i) = STAGES.iter().position(|s| *s == name) {
-            stage.store(i + 1, Ordering::Relaxed);
-        }
-        if !cli.quiet && ticker.is_none() && start.elapsed() >= QUIET_FOR {
-            ticker = Some(Ticker::start(Arc::clone(&stage), start));
-        }
-    });
-    if let Some(t) = ticker {
-        t.stop();
-    }
+    let mut progress = Progress::new(cli.quiet);
+    let report =
+        classcert_verifier::verify_signed_with(&bytes, &trusted, &mut |name| progress.stage(name));
+    progress.done();
     let report = report.apply(&policy).check_answer(answer.as_deref());
     let text = if cli.json {
         report.to_json().render()
@@ -331,64 +317,62 @@ fn read_bounded(path: &str) -> std::io::Result<Vec<u8>> {
     Ok(buf)
 }
 
-/// Progress on standard error, once a run has taken longer than
-/// [`QUIET_FOR`] (checked when a stage starts): one line updated in place
-/// on a terminal, otherwise a line at most every [`LOG_EVERY`].
-struct Ticker {
-    stop: std::sync::mpsc::Sender<()>,
-    handle: std::thread::JoinHandle<()>,
+/// Progress on standard error once a run has taken [`QUIET_FOR`], shown
+/// when the checks name a stage (a long stage repeats its name now and
+/// then): one line updated in place on a terminal, at most every 200 ms,
+/// otherwise a line at most every [`LOG_EVERY`]. No thread of its own: a
+/// second thread would make every allocation pay for thread safety.
+struct Progress {
+    start: Instant,
+    last: Option<Instant>,
+    tty: bool,
+    quiet: bool,
 }
 
 const QUIET_FOR: Duration = Duration::from_secs(2);
 const LOG_EVERY: Duration = Duration::from_secs(10);
 
-impl Ticker {
-    fn start(stage: Arc<AtomicUsize>, start: Instant) -> Ticker {
-        let (stop, stopped) = std::sync::mpsc::channel::<()>();
-        let handle = std::thread::spawn(move || {
-            let tty = std::io::stderr().is_terminal();
-            let mut last: Option<Instant> = None;
-            let mut shown = false;
-            // shows a line now, then wakes every 200 ms, and at once when
-            // the run is over
-            let mut wait = Duration::ZERO;
-            while let Err(std::sync::mpsc::RecvTimeoutError::Timeout) = stopped.recv_timeout(wait) {
-                wait = Duration::from_millis(200);
-                let now = Instant::now();
-                let due = tty || last.is_none_or(|t| now - t >= LOG_EVERY);
-                if !due {
-                    continue;
-                }
-                let k = stage.load(Ordering::Relaxed);
-                let name = k
-                    .checked_sub(1)
-                    .and_then(|i| STAGES.get(i))
-                    .copied()
-                    .unwrap_or("reading");
-                let line = format!(
-                    "classcert-verify: checking {name} (step {k} of {}), {} s",
-                    STAGES.len(),
-                    (now - start).as_secs()
-                );
-                let mut err = std::io::stderr().lock();
-                let _ = if tty {
-                    write!(err, "\r\x1b[2K{line}")
-                } else {
-                    writeln!(err, "{line}")
-                };
-                let _ = err.flush();
-                last = Some(now);
-                shown = true;
-            }
-            if shown && tty {
-                let _ = write!(std::io::stderr().lock(), "\r\x1b[2K");
-            }
-        });
-        Ticker { stop, handle }
+impl Progress {
+    fn new(quiet: bool) -> Progress {
+        let tty = std::io::stderr().is_terminal();
+        Progress {
+            start: Instant::now(),
+            last: None,
+            tty,
+            quiet,
+        }
     }
 
-    fn stop(self) {
-        let _ = self.stop.send(());
-        let _ = self.handle.join();
+    fn stage(&mut self, name: &str) {
+        let now = Instant::now();
+        let gap = if self.tty {
+            Duration::from_millis(200)
+        } else {
+            LOG_EVERY
+        };
+        let early = now - self.start < QUIET_FOR || self.last.is_some_and(|t| now - t < gap);
+        if self.quiet || early {
+            return;
+        }
+        self.last = Some(now);
+        let k = STAGES.iter().position(|s| *s == name).map_or(0, |i| i + 1);
+        let secs = (now - self.start).as_secs();
+        let line = format!(
+            "classcert-verify: checking {name} (step {k} of {}), {secs} s",
+            STAGES.len()
+        );
+        let mut err = std::io::stderr().lock();
+        let _ = match self.tty {
+            true => write!(err, "\r\x1b[2K{line}"),
+            false => writeln!(err, "{line}"),
+        };
+        let _ = err.flush();
+    }
+
+    /// Clears the line on a terminal.
+    fn done(&self) {
+        if self.tty && self.last.is_some() {
+            let _ = write!(std::io::stderr().lock(), "\r\x1b[2K");
+        }
     }
 }
