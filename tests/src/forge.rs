@@ -7,8 +7,8 @@
 //! start from the honest file and damage it.
 //!
 //! Used by `tests/tests/soundness.rs` (on freshly proved bodies) and by the
-//! vector generator in `tests/tests/vectors.rs` (on the stored golden
-//! certificates).
+//! corpus generator in `crate::corpus` (on the stored golden certificates,
+//! as the family `catalogue`).
 
 use crate::support::encode;
 use classcert_format::{Body, Dyadic, Order, PrimeIdeal};
@@ -44,6 +44,27 @@ pub enum Layer {
     Bytes,
     /// The mathematics, in a canonical file with a correct digest.
     Mathematics,
+    /// As [`Layer::Mathematics`], and every identity the verifier can
+    /// check locally holds too (Smith form, claim, lattice shape): only the
+    /// mathematics behind them is wrong.
+    Consistent,
+}
+
+impl Layer {
+    /// The word in `vectors/mutations/expected.txt`.
+    pub fn word(self) -> &'static str {
+        match self {
+            Layer::Bytes => "bytes",
+            Layer::Mathematics => "mathematics",
+            Layer::Consistent => "consistent",
+        }
+    }
+
+    pub fn from_word(w: &str) -> Option<Layer> {
+        [Layer::Bytes, Layer::Mathematics, Layer::Consistent]
+            .into_iter()
+            .find(|l| l.word() == w)
+    }
 }
 
 #[derive(Debug)]
@@ -856,7 +877,7 @@ pub static CATALOGUE: &[Forgery] =
             "class-number-doubled",
             "class-number-not-confirmed",
             CYCLIC,
-            Mathematics,
+            Consistent,
             true,
             "a consistent forged lattice for Z/2h: one generator ideal, relations [[2h]], Smith form, eliminations and claim",
             class_number_doubled

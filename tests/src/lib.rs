@@ -6,6 +6,8 @@
     clippy::indexing_slicing,
     clippy::panic
 )]
+pub mod cbor_edit;
+pub mod corpus;
 pub mod field_oracle;
 pub mod forge;
 pub mod oracle;

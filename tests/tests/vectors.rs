@@ -1,11 +1,14 @@
 //! The stored test vectors in `vectors/` (see `vectors/README.md`):
 //! * `golden/*.cert` — honest certificates; each must verify, and state the
 //!   group the oracle computes.
-//! * `mutations/*.cert` with `mutations/expected.txt` — forged
-//!   certificates and the reason code each must be rejected with.
+//! * `mutations/*.cert` with `mutations/expected.txt` — the soundness
+//!   corpus: forged certificates, the reason code each must be rejected
+//!   with and the layer it damages.
 //!
-//! Regenerate both (after a deliberate format or prover change) with
-//! `cargo test --release -p classcert-tests --test vectors -- --ignored`.
+//! Regenerate the golden files (after a deliberate format or prover
+//! change) with `cargo test --release -p classcert-tests --test vectors --
+//! --ignored`, then the corpus with `cargo run --release -p
+//! classcert-tests --bin forge-vectors`.
 
 // Tests report failures by panicking (the panic-free set is the
 // verifier's rule for its library, not for tests).
@@ -16,8 +19,10 @@
     clippy::panic
 )]
 
-use classcert_format::decode_file;
-use classcert_tests::forge::{self, CodeCheck, CATALOGUE};
+use classcert_format::{decode_document, decode_file, Document};
+use classcert_prover::Options;
+use classcert_tests::corpus;
+use classcert_tests::forge::{self, Layer};
 use classcert_tests::oracle;
 use classcert_tests::support::{
     encode, expect_verified, invariants_u64, prove_body, rests_on_grh, vectors_dir,
@@ -87,18 +92,65 @@ fn cert_files(dir: &Path) -> Vec<String> {
     v
 }
 
-/// `(file, code)` rows of `mutations/expected.txt`.
-fn expected_rows() -> Vec<(String, String)> {
+/// A row of `mutations/expected.txt`.
+struct Row {
+    file: String,
+    code: String,
+    layer: Layer,
+}
+
+/// The rows of `mutations/expected.txt`: `file reason layer base`.
+fn expected_rows() -> Vec<Row> {
     let path = mutations_dir().join("expected.txt");
     let text = String::from_utf8(read(&path)).expect("expected.txt is UTF-8");
     text.lines()
-        .map(str::trim)
-        .filter(|l| !l.is_empty() && !l.starts_with('#'))
+        .filter(|l| !l.trim().is_empty() && !l.starts_with('#'))
         .map(|l| {
-            let mut it = l.split_whitespace();
-            match (it.next(), it.next(), it.next()) {
-                (Some(f), Some(c), None) => (f.to_string(), c.to_string()),
-                _ => panic!("expected.txt: bad line {l:?}"),
+            let cols: Vec<&str> = l.split(' ').collect();
+            match cols[..] {
+                [file, code, layer, base] => {
+                    assert!(
+                        file.starts_with(&format!("{base}--")),
+                        "expected.txt: {file} does not start from its base {base}"
+                    );
+                    Row {
+                        file: file.to_string(),
+                        code: code.to_string(),
+                        layer: Layer::from_word(layer)
+                            .unwrap_or_else(|| panic!("expected.txt: unknown layer {layer}")),
+                    }
+                }
+                _ => panic!("expected.txt: bad line {l}"),
+            }
+        })
+        .collect()
+}
+
+/// A forgery the verifier accepts, or refuses with another code than the
+/// design asks for: `mutations/known-deviations.txt`, lines
+/// `file expected-reason observed` (`observed` is a code or `verified`).
+struct Known {
+    file: String,
+    code: String,
+    observed: String,
+}
+
+fn known_rows() -> Vec<Known> {
+    let path = mutations_dir().join("known-deviations.txt");
+    let Ok(text) = std::fs::read_to_string(&path) else {
+        return Vec::new();
+    };
+    text.lines()
+        .filter(|l| !l.trim().is_empty() && !l.starts_with('#'))
+        .map(|l| {
+            let cols: Vec<&str> = l.split(' ').collect();
+            match cols[..] {
+                [file, code, observed] => Known {
+                    file: file.to_string(),
+                    code: code.to_string(),
+                    observed: observed.to_string(),
+                },
+                _ => panic!("known-deviations.txt: bad line {l}"),
             }
         })
         .collect()
@@ -107,40 +159,82 @@ fn expected_rows() -> Vec<(String, String)> {
 #[test]
 #[ignore = "writes vectors/; run explicitly to regenerate"]
 fn regenerate_vectors() {
-    let (golden, mutations) = (golden_dir(), mutations_dir());
-    for dir in [&golden, &mutations] {
-        std::fs::create_dir_all(dir).expect("create vectors dir");
-        for f in cert_files(dir) {
-            std::fs::remove_file(dir.join(f)).expect("remove old vector");
-        }
+    let golden = golden_dir();
+    std::fs::create_dir_all(&golden).expect("create vectors dir");
+    for f in cert_files(&golden) {
+        std::fs::remove_file(golden.join(f)).expect("remove old vector");
     }
     for &d in GOLDEN {
         let bytes = encode(&prove_body(d));
         expect_verified(&verify_bytes(&bytes), &format!("golden {d}"));
         std::fs::write(golden.join(golden_name(d)), bytes).expect("write golden");
     }
-    let mut expected = String::from(
-        "# Forged certificates and the reason code classcert-verify must reject each with.\n\
-         # Each starts from vectors/golden/<base>; see tests/src/forge.rs for the forgery.\n\
-         # Generated by `cargo test --release -p classcert-tests --test vectors -- --ignored`.\n\
-         # columns: file reason-code\n",
+    // `classcert prove -1000003 --claim-class-number 105`
+    let (bytes, _) = classcert_prover::witness::prove_witness_to_bytes(
+        &Integer::from(WITNESS.0),
+        &Integer::from(WITNESS.1),
+        None,
+        None,
+        &Options::default(),
+    )
+    .expect("an order witness");
+    std::fs::write(golden.join(WITNESS_FILE), bytes).expect("write golden");
+    // `classcert prove -3299 --unconditional`
+    let opts = Options {
+        unconditional: true,
+        ..Options::default()
+    };
+    let (bytes, _) = classcert_prover::prove_to_bytes(&Integer::from(UNCONDITIONAL), &opts)
+        .expect("an unconditional certificate");
+    std::fs::write(golden.join(UNCONDITIONAL_FILE), bytes).expect("write golden");
+    // The soundness corpus is written from these by
+    // `cargo run --release -p classcert-tests --bin forge-vectors`.
+}
+
+/// The order-witness golden certificate: D and its class number
+/// (h(-1000003) = 105 by the oracle's count, checked below).
+const WITNESS: (i64, u64) = (-1_000_003, 105);
+const WITNESS_FILE: &str = "witness-minus-1000003.cert";
+/// The unconditional golden certificate (no GRH).
+const UNCONDITIONAL: i64 = -3299;
+const UNCONDITIONAL_FILE: &str = "unconditional-minus-3299.cert";
+
+/// The order-witness and unconditional golden certificates verify and
+/// state the oracle's group; the unconditional one rests on nothing.
+#[test]
+fn golden_witness_and_unconditional_certificates() {
+    let w = expect_verified(
+        &verify_bytes(&read(&golden_dir().join(WITNESS_FILE))),
+        WITNESS_FILE,
     );
-    for f in CATALOGUE {
-        let base = decode_file(&read(&golden.join(golden_name(f.base))))
-            .expect("golden file decodes")
-            .body;
-        let bytes = (f.apply)(&base);
-        let file = format!("{}.cert", f.name);
-        std::fs::write(mutations.join(&file), bytes).expect("write mutation");
-        expected.push_str(&format!("{file} {}\n", f.code));
-    }
-    std::fs::write(mutations.join("expected.txt"), expected).expect("write expected.txt");
+    assert_eq!(
+        w.kind(),
+        classcert_verifier::report::CertificateKind::OrderWitness
+    );
+    assert_eq!(
+        invariants_u64(&w),
+        oracle::group_invariants_bruteforce(WITNESS.0)
+    );
+    assert_eq!(oracle::class_number_by_counting(WITNESS.0), WITNESS.1);
+    let u = expect_verified(
+        &verify_bytes(&read(&golden_dir().join(UNCONDITIONAL_FILE))),
+        UNCONDITIONAL_FILE,
+    );
+    assert!(u.assumptions().is_empty(), "unconditional rests on nothing");
+    assert_eq!(
+        invariants_u64(&u),
+        oracle::group_invariants_bruteforce(UNCONDITIONAL)
+    );
 }
 
 #[test]
 fn golden_certificates_verify_and_state_the_true_group() {
     let files = cert_files(&golden_dir());
-    let want: BTreeSet<String> = GOLDEN.iter().map(|&d| golden_name(d)).collect();
+    let want: BTreeSet<String> = GOLDEN
+        .iter()
+        .map(|&d| golden_name(d))
+        .chain([WITNESS_FILE.to_string(), UNCONDITIONAL_FILE.to_string()])
+        .collect();
     assert_eq!(files.iter().cloned().collect::<BTreeSet<_>>(), want);
     for &d in GOLDEN {
         let bytes = read(&golden_dir().join(golden_name(d)));
@@ -199,70 +293,116 @@ fn golden_groups_match_a_fresh_proof() {
     }
 }
 
+/// The soundness corpus (`vectors/mutations/`, written by the binary
+/// `forge-vectors` from `classcert_tests::corpus`): every listed file is
+/// refused with exactly its reason code, the listing and the directory
+/// agree, and the layers are what they say.
 #[test]
-fn mutations_are_rejected_with_the_listed_codes() {
+fn corpus_is_rejected_with_the_listed_codes() {
+    let dir = mutations_dir();
     let rows = expected_rows();
-    assert!(!rows.is_empty());
-    let listed: BTreeSet<String> = rows.iter().map(|(f, _)| f.clone()).collect();
-    assert_eq!(listed.len(), rows.len(), "a file is listed twice");
-    let present: BTreeSet<String> = cert_files(&mutations_dir()).into_iter().collect();
+    let known = known_rows();
+    let listed: BTreeSet<String> = rows
+        .iter()
+        .map(|r| r.file.clone())
+        .chain(known.iter().map(|k| k.file.clone()))
+        .collect();
     assert_eq!(
-        listed, present,
-        "expected.txt and the files in mutations/ differ"
+        listed.len(),
+        rows.len() + known.len(),
+        "a file is listed twice"
     );
-    for (file, code) in &rows {
-        let bytes = read(&mutations_dir().join(file));
+    let present: BTreeSet<String> = cert_files(&dir).into_iter().collect();
+    let missing: Vec<&String> = listed.difference(&present).take(5).collect();
+    let unlisted: Vec<&String> = present.difference(&listed).take(5).collect();
+    assert!(
+        missing.is_empty() && unlisted.is_empty(),
+        "expected.txt and mutations/ differ: listed but absent {missing:?}, present but unlisted {unlisted:?}"
+    );
+    assert!(rows.len() >= 1000, "only {} forgeries", rows.len());
+    let consistent = rows.iter().filter(|r| r.layer == Layer::Consistent).count();
+    assert!(consistent >= 200, "only {consistent} consistent forgeries");
+    let mut wrong = Vec::new();
+    for row in &rows {
+        let bytes = read(&dir.join(&row.file));
         let got = match verify_bytes(&bytes).outcome {
-            Ok(v) => panic!("{file} VERIFIED (class number {})", v.class_number()),
-            Err(r) => r.reason.code(),
+            Ok(v) => format!("VERIFIED (class number {})", v.class_number()),
+            Err(r) => r.reason.code().to_string(),
         };
-        let name = file.trim_end_matches(".cert");
-        match CATALOGUE.iter().find(|f| f.name == name) {
-            Some(f) => {
-                assert_eq!(
-                    f.code, code,
-                    "{file}: expected.txt and the catalogue disagree"
-                );
-                match forge::check_code(f, got) {
-                    CodeCheck::Exact => {}
-                    CodeCheck::KnownDeviation(d) => {
-                        eprintln!(
-                            "KNOWN DEVIATION {file}: {got} instead of {code}: {}",
-                            d.note
-                        )
-                    }
-                    CodeCheck::Wrong => panic!("{file}: expected {code}, got {got}"),
+        if got != row.code {
+            wrong.push(format!("{} expected {}, got {got}", row.file, row.code));
+        }
+        if row.layer != Layer::Bytes {
+            // canonical bytes and a matching digest: only the mathematics
+            // is wrong
+            let doc = decode_document(&bytes).unwrap_or_else(|e| {
+                panic!(
+                    "{}: a {} forgery does not decode: {e}",
+                    row.file,
+                    row.layer.word()
+                )
+            });
+            if row.layer == Layer::Consistent {
+                let lattice = match &doc.document {
+                    Document::Relations(b) => Some(&b.lattice),
+                    Document::Field(f) => Some(&f.lattice),
+                    Document::OrderWitness(_) => None,
+                };
+                if let Some(l) = lattice {
+                    assert!(
+                        corpus::smith_identities_hold(l),
+                        "{}: a consistent forgery whose Smith form does not hold",
+                        row.file
+                    );
                 }
             }
-            None => assert_eq!(got, code, "{file}"),
         }
+    }
+    assert!(
+        wrong.is_empty(),
+        "{} of {} forgeries not refused as listed:\n{}",
+        wrong.len(),
+        rows.len(),
+        wrong.join("\n")
+    );
+    // Known deviations are reported, never hidden: each still behaves as
+    // recorded (when one is fixed, move it to expected.txt).
+    for k in &known {
+        let got = match verify_bytes(&read(&dir.join(&k.file))).outcome {
+            Ok(_) => "verified".to_string(),
+            Err(r) => r.reason.code().to_string(),
+        };
+        eprintln!(
+            "KNOWN DEVIATION {}: should be refused as {}, the verifier says {got}",
+            k.file, k.code
+        );
+        assert_eq!(
+            got, k.observed,
+            "{}: the recorded deviation changed (fixed? move it to expected.txt)",
+            k.file
+        );
     }
 }
 
-/// The stored mutations of the mathematics are canonical files with a
-/// correct digest, derived from a golden certificate of the same order.
+/// The stored corpus is exactly what the generator writes today from the
+/// golden files: same files, same bytes, same expected.txt.
 #[test]
-fn stored_mathematics_mutations_are_well_formed() {
-    for f in CATALOGUE
-        .iter()
-        .filter(|f| f.layer == forge::Layer::Mathematics)
-    {
-        let path = mutations_dir().join(format!("{}.cert", f.name));
-        let bytes = read(&path);
-        let decoded =
-            decode_file(&bytes).unwrap_or_else(|e| panic!("{}: does not decode: {e}", f.name));
-        let golden = decode_file(&read(&golden_dir().join(golden_name(f.base))))
-            .expect("golden decodes")
-            .body;
-        assert_ne!(
-            decoded.body, golden,
-            "{}: identical to its golden base",
-            f.name
-        );
-        assert_eq!(
-            decoded.body.producer, golden.producer,
-            "{}: not derived from its golden base",
-            f.name
+fn corpus_matches_its_generator() {
+    let vectors = corpus::generate(&vectors_dir());
+    let dir = mutations_dir();
+    let stored = String::from_utf8(read(&dir.join("expected.txt"))).expect("UTF-8");
+    assert_eq!(
+        stored,
+        corpus::expected_txt(&vectors),
+        "expected.txt is not the generator's (run `cargo run --release -p classcert-tests --bin forge-vectors`)"
+    );
+    let known = String::from_utf8(read(&dir.join("known-deviations.txt"))).expect("UTF-8");
+    assert_eq!(known, corpus::known_txt(&vectors), "known-deviations.txt");
+    for v in &vectors {
+        assert!(
+            read(&dir.join(&v.file)) == v.bytes,
+            "{}: the stored bytes differ from the generator's",
+            v.file
         );
     }
 }
