@@ -1607,7 +1607,7 @@ fn maximality_families(
                             wrap(Some(g)),
                         );
                     }
-                    fprod *= Integer::from(q.q.clone().pow(q.e));
+                    fprod *= q.q.clone().pow(q.e);
                 }
             }
             PrimalityEvidence::Morrison {
@@ -1648,7 +1648,7 @@ fn maximality_families(
                 pq("q-is-2n", lucas_p.clone(), Integer::from(n * 2));
                 pq("q-zero", lucas_p.clone(), Integer::new());
                 let _ = lucas_q;
-                for k in 0..mf.len() {
+                for (k, mk) in mf.iter().enumerate() {
                     let mut edit =
                         |name: &str, change: &dyn Fn(&mut classcert_format::MorrisonFactor)| {
                             let mut g = factors.clone();
@@ -1667,7 +1667,7 @@ fn maximality_families(
                         };
                     edit("exponent-plus-1", &|x| x.e += 1);
                     edit("q-plus-2", &|x| x.q += 2);
-                    if mf[k].q > 3 {
+                    if mk.q > 3 {
                         edit("sub-proof-empty", &|x| {
                             *x.evidence = PrimalityEvidence::Pocklington { factors: vec![] }
                         });
@@ -1689,7 +1689,7 @@ fn maximality_families(
                             wrap(Some(g)),
                         );
                     }
-                    fprod *= Integer::from(q.q.clone().pow(q.e));
+                    fprod *= q.q.clone().pow(q.e);
                 }
             }
             PrimalityEvidence::Bpsw => {}
@@ -1996,8 +1996,8 @@ fn consistent_families(out: &mut Out, b: &Body, donors: &[&Body]) {
                     (0..rr)
                         .map(|y| {
                             let mut acc = Integer::new();
-                            for t in 0..rr {
-                                acc += Integer::from(&s.u_inv[x][t] * &nd[t]) * &s.v_inv[t][y];
+                            for (t, dt) in nd.iter().enumerate() {
+                                acc += Integer::from(&s.u_inv[x][t] * dt) * &s.v_inv[t][y];
                             }
                             acc
                         })
@@ -2175,7 +2175,7 @@ fn factor_base_truncated(out: &mut Out, b: &Body) {
 fn catalogue(out: &mut Out, b: &Body) {
     let d = forge::discriminant(b);
     for f in forge::CATALOGUE {
-        if Integer::from(f.base) != d || b.euler.theorem == registry::ERFC_SERIES {
+        if d != f.base || b.euler.theorem == registry::ERFC_SERIES {
             continue;
         }
         out.push("catalogue", f.name, f.code, f.layer, (f.apply)(b));

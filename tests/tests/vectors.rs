@@ -293,37 +293,11 @@ fn golden_groups_match_a_fresh_proof() {
     }
 }
 
-/// The soundness corpus (`vectors/mutations/`, written by the binary
-/// `forge-vectors` from `classcert_tests::corpus`): every listed file is
-/// refused with exactly its reason code, the listing and the directory
-/// agree, and the layers are what they say.
-#[test]
-fn corpus_is_rejected_with_the_listed_codes() {
-    let dir = mutations_dir();
-    let rows = expected_rows();
-    let known = known_rows();
-    let listed: BTreeSet<String> = rows
-        .iter()
-        .map(|r| r.file.clone())
-        .chain(known.iter().map(|k| k.file.clone()))
-        .collect();
-    assert_eq!(
-        listed.len(),
-        rows.len() + known.len(),
-        "a file is listed twice"
-    );
-    let present: BTreeSet<String> = cert_files(&dir).into_iter().collect();
-    let missing: Vec<&String> = listed.difference(&present).take(5).collect();
-    let unlisted: Vec<&String> = present.difference(&listed).take(5).collect();
-    assert!(
-        missing.is_empty() && unlisted.is_empty(),
-        "expected.txt and mutations/ differ: listed but absent {missing:?}, present but unlisted {unlisted:?}"
-    );
-    assert!(rows.len() >= 1000, "only {} forgeries", rows.len());
-    let consistent = rows.iter().filter(|r| r.layer == Layer::Consistent).count();
-    assert!(consistent >= 200, "only {consistent} consistent forgeries");
+/// Verifies `rows`; returns a line for each file not refused as listed
+/// (and panics on a layer that is not what it says).
+fn check_rows(dir: &Path, rows: &[Row]) -> Vec<String> {
     let mut wrong = Vec::new();
-    for row in &rows {
+    for row in rows {
         let bytes = read(&dir.join(&row.file));
         let got = match verify_bytes(&bytes).outcome {
             Ok(v) => format!("VERIFIED (class number {})", v.class_number()),
@@ -358,6 +332,60 @@ fn corpus_is_rejected_with_the_listed_codes() {
             }
         }
     }
+    wrong
+}
+
+/// The soundness corpus (`vectors/mutations/`, written by the binary
+/// `forge-vectors` from `classcert_tests::corpus`): every listed file is
+/// refused with exactly its reason code, the listing and the directory
+/// agree, and the layers are what they say.
+#[test]
+fn corpus_is_rejected_with_the_listed_codes() {
+    let dir = mutations_dir();
+    let rows = expected_rows();
+    let known = known_rows();
+    let listed: BTreeSet<String> = rows
+        .iter()
+        .map(|r| r.file.clone())
+        .chain(known.iter().map(|k| k.file.clone()))
+        .collect();
+    assert_eq!(
+        listed.len(),
+        rows.len() + known.len(),
+        "a file is listed twice"
+    );
+    let present: BTreeSet<String> = cert_files(&dir).into_iter().collect();
+    let missing: Vec<&str> = listed
+        .difference(&present)
+        .take(5)
+        .map(|s| s.as_str())
+        .collect();
+    let unlisted: Vec<&str> = present
+        .difference(&listed)
+        .take(5)
+        .map(|s| s.as_str())
+        .collect();
+    assert!(
+        missing.is_empty() && unlisted.is_empty(),
+        "expected.txt and mutations/ differ: listed but absent [{}], present but unlisted [{}]",
+        missing.join(", "),
+        unlisted.join(", ")
+    );
+    assert!(rows.len() >= 1000, "only {} forgeries", rows.len());
+    let consistent = rows.iter().filter(|r| r.layer == Layer::Consistent).count();
+    assert!(consistent >= 200, "only {consistent} consistent forgeries");
+    // Two workers (the machine the suite runs on has two cores).
+    let half = rows.len().div_ceil(2);
+    let wrong: Vec<String> = std::thread::scope(|scope| {
+        let handles: Vec<_> = rows
+            .chunks(half)
+            .map(|chunk| scope.spawn(|| check_rows(&dir, chunk)))
+            .collect();
+        handles
+            .into_iter()
+            .flat_map(|h| h.join().expect("a worker panicked"))
+            .collect()
+    });
     assert!(
         wrong.is_empty(),
         "{} of {} forgeries not refused as listed:\n{}",
