@@ -118,7 +118,7 @@ pub mod math {
 
 use classcert_format::{DecodeError, Document, FileError, Order};
 use report::reason::Reason;
-use report::{Rejection, Report, Summary};
+use report::{Report, Summary};
 
 /// The reason code for a file the decoder refused.
 fn decode_reason(e: &FileError) -> Reason {
@@ -159,10 +159,7 @@ pub fn verify_signed_with(
             report.summary.signer = Some(signer);
             report
         }
-        Err(r) => Report {
-            summary: Summary::default(),
-            outcome: Err(r),
-        },
+        Err(r) => Report::rejected(r.reason, r.detail),
     }
 }
 
@@ -171,15 +168,7 @@ pub fn verify_signed_with(
 pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report {
     let decoded = match classcert_format::decode_document_with(bytes, &limits::DECODE) {
         Ok(d) => d,
-        Err(e) => {
-            return Report {
-                summary: Summary::default(),
-                outcome: Err(Rejection {
-                    reason: decode_reason(&e),
-                    detail: e.to_string(),
-                }),
-            };
-        }
+        Err(e) => return Report::rejected(decode_reason(&e), e.to_string()),
     };
     let id = Some(decoded.id_hex());
     let (order, summary_claims, outcome) = match &decoded.document {
