@@ -125,13 +125,12 @@ fn paint(text: String) -> String {
     if plain || !std::io::stdout().is_terminal() {
         return text;
     }
-    match text.strip_prefix("VERIFIED") {
-        Some(rest) => format!("\x1b[1;32mVERIFIED\x1b[0m{rest}"),
-        None => match text.strip_prefix("REJECTED") {
-            Some(rest) => format!("\x1b[1;31mREJECTED\x1b[0m{rest}"),
-            None => text,
-        },
+    for (word, colour) in [("VERIFIED", 32), ("REJECTED", 31)] {
+        if let Some(rest) = text.strip_prefix(word) {
+            return format!("\x1b[1;{colour}m{word}\x1b[0m{rest}");
+        }
     }
+    text
 }
 
 /// 0 when every report verified (with its answer, if any); else 1 when a
