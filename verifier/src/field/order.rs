@@ -61,10 +61,9 @@ pub enum OrderError {
     Radical,
 }
 
-impl OrderError {
-    /// A sentence for the report.
-    pub fn message(&self) -> String {
-        match self {
+impl std::fmt::Display for OrderError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&match self {
             Self::Degree(n) => format!(
                 "the polynomial has degree {n}, not between {MIN_FIELD_DEGREE} and {MAX_FIELD_DEGREE}"
             ),
@@ -89,13 +88,7 @@ impl OrderError {
             }
             Self::NotPrime => "the number given as a prime is not prime".into(),
             Self::Radical => "the computed p-radical is not an ideal".into(),
-        }
-    }
-}
-
-impl std::fmt::Display for OrderError {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&self.message())
+        })
     }
 }
 
@@ -115,12 +108,12 @@ pub struct FieldOrder {
 }
 
 /// The `j`-th unit vector of length `n`.
-fn unit(n: usize, j: usize) -> Vec<Integer> {
+pub(crate) fn unit(n: usize, j: usize) -> Vec<Integer> {
     (0..n).map(|i| Integer::from(u8::from(i == j))).collect()
 }
 
 /// `Σ_i c_i · rows[i]`, of length `width`.
-fn combine(c: &[Integer], rows: &[Vec<Integer>], width: usize) -> Vec<Integer> {
+pub(crate) fn combine(c: &[Integer], rows: &[Vec<Integer>], width: usize) -> Vec<Integer> {
     let mut out = vec![Integer::new(); width];
     for (ci, row) in c.iter().zip(rows).filter(|(ci, _)| **ci != 0) {
         for (o, r) in out.iter_mut().zip(row) {
@@ -852,7 +845,7 @@ pub(crate) mod tests {
             OrderError::NotHermite { row: 1, col: 0 },
             OrderError::Radical,
         ] {
-            assert!(!e.message().is_empty() && !e.to_string().contains('{'));
+            assert!(!e.to_string().is_empty() && !e.to_string().contains('{'));
         }
     }
 
