@@ -99,8 +99,8 @@ pub mod math {
     pub mod poly {
         pub use crate::field::fppoly::Fp;
         pub use crate::field::zpoly::{
-            add, degree, derivative, discriminant, divrem_monic, eval, mul, norm_linear, normalise,
-            resultant, sub,
+            add, degree, derivative, discriminant, divrem_monic, eval, mul, normalise, resultant,
+            sub,
         };
     }
     /// Number fields: checked root enclosures of `F`, the logarithmic
