@@ -303,6 +303,15 @@ impl Interval {
     }
 }
 
+/// The value of an interval computation; refused as over the limits if it
+/// failed (a division by an interval holding 0, a log of one not above 0).
+pub(crate) fn computed<T>(v: Option<T>) -> Check<T> {
+    v.map_or_else(
+        || reject(Reason::OverLimit, "interval arithmetic failed"),
+        Ok,
+    )
+}
+
 /// A stated enclosure must contain the verifier's own (`reason` if not).
 pub(crate) fn stated_contains(
     stated: &Bounds,

@@ -16,11 +16,11 @@
 //! |Σ_{n > N}| <= 2 sqrt|D| / (π (N + 1)) · q^{N+1} / (1 - q),   q = e^{-π (N + 1) / |D|}
 //! ```
 
-use super::interval::{stated_contains, Interval};
+use super::interval::{computed, stated_contains, Interval};
 use crate::arith::kronecker_prime;
 use crate::limits::MAX_SERIES_TERMS;
 use crate::order::OrderOk;
-use crate::report::reason::{reject, reject_if, Check, Reason};
+use crate::report::reason::{reject_if, Check, Reason};
 use classcert_format::EulerTrace;
 use rug::Integer;
 
@@ -142,19 +142,14 @@ pub(crate) fn check_series(
         Reason::EulerXOutOfRange,
         format_args!("the series needs 1 to {MAX_SERIES_TERMS} terms and no checkpoints"),
     )?;
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
-    let Some(h) = class_number_with(order.d(), n, beat) else {
-        return bad();
-    };
+    let h = computed(class_number_with(order.d(), n, beat))?;
     reject_if(
         h.lo <= 0,
         Reason::EulerXTooSmall,
         format_args!("{n} terms do not bound h away from 0"),
     )?;
-    let Some(log_h) = h.ln() else { return bad() };
-    let Some(log_l) = log_l_from_log_h(&log_h, order.w(), order.abs_d()) else {
-        return bad();
-    };
+    let log_h = computed(h.ln())?;
+    let log_l = computed(log_l_from_log_h(&log_h, order.w(), order.abs_d()))?;
     stated_contains(
         &e.log_l,
         &log_l,
