@@ -86,7 +86,7 @@ pub mod math {
     }
     /// The unconditional class number series (`erfc-series-class-number`).
     pub mod series {
-        pub use crate::analytic::series::{class_number, log_l_from_log_h, terms_for};
+        pub use crate::analytic::series::{class_number, log_l_from_log_h};
     }
     /// Primality: the Baillie–PSW test and the checker of proof trees.
     pub mod primality {

@@ -268,13 +268,6 @@ impl Interval {
         (self.lo.to_f64() + self.hi.to_f64()) / 2.0
     }
 
-    pub fn to_bounds(&self) -> Option<Bounds> {
-        Some(Bounds {
-            lo: to_dyadic(&self.lo)?,
-            hi: to_dyadic(&self.hi)?,
-        })
-    }
-
     /// The interval a certificate states; `None` if the exponents are absurd.
     pub fn from_bounds(b: &Bounds) -> Option<Interval> {
         Some(Interval {
@@ -315,25 +308,6 @@ pub(crate) fn stated_contains(
         ),
     )?;
     Ok(claimed)
-}
-
-fn to_dyadic(f: &Float) -> Option<Dyadic> {
-    if f.is_zero() {
-        return Some(Dyadic {
-            mantissa: Integer::new(),
-            exponent: 0,
-        });
-    }
-    let (mut m, e) = f.to_integer_exp()?;
-    let mut e = i64::from(e);
-    // strip trailing zero bits so the representation is unique
-    let tz = m.find_one(0).unwrap_or(0);
-    m >>= tz;
-    e += i64::from(tz);
-    Some(Dyadic {
-        mantissa: m,
-        exponent: e,
-    })
 }
 
 /// Exponents of stated bounds are kept in a sane range: the values the
@@ -469,13 +443,5 @@ mod tests {
             hi: huge,
         };
         assert!(Interval::from_bounds(&b).is_none());
-    }
-
-    #[test]
-    fn dyadic_round_trip_is_exact() {
-        let x = Interval::ratio(-7, 3).unwrap();
-        let b = x.to_bounds().unwrap();
-        let y = Interval::from_bounds(&b).unwrap();
-        assert_eq!(x, y);
     }
 }
