@@ -98,17 +98,12 @@ pub fn euler_field(
         degrees.push((p, fs));
     }
     let coef = |p: u64, m: u64| -> i64 {
-        let Ok(i) = degrees.binary_search_by_key(&p, |d| d.0) else {
+        let found = degrees.binary_search_by_key(&p, |d| d.0).ok();
+        let Some((_, fs)) = found.and_then(|i| degrees.get(i)) else {
             return 0;
         };
-        let Some((_, fs)) = degrees.get(i) else {
-            return 0;
-        };
-        let s: u64 = fs
-            .iter()
-            .filter(|&&f| f > 0 && m.is_multiple_of(u64::from(f)))
-            .map(|&f| u64::from(f))
-            .sum();
+        let fs = fs.iter().map(|&f| u64::from(f));
+        let s: u64 = fs.filter(|&f| f > 0 && m.is_multiple_of(f)).sum();
         s as i64 - 1
     };
     compute_general(x, primes, &coef, n, limits, log_delta, beat)

@@ -45,15 +45,10 @@ fn kronecker(d: &Integer, mut n: u64, spf: &[u32]) -> i8 {
 fn smallest_prime_factors(limit: usize) -> Vec<u32> {
     let mut spf = vec![0u32; limit + 1];
     for i in 2..=limit {
-        if spf.get(i).copied() == Some(0) {
-            let mut j = i;
-            while j <= limit {
-                if let Some(slot) = spf.get_mut(j) {
-                    if *slot == 0 {
-                        *slot = i as u32;
-                    }
-                }
-                j += i;
+        if spf.get(i) == Some(&0) {
+            // the multiples i, 2i, … of i not marked yet
+            for slot in spf.iter_mut().skip(i).step_by(i).filter(|s| **s == 0) {
+                *slot = i as u32;
             }
         }
     }
