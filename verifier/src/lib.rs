@@ -94,7 +94,7 @@ pub mod math {
         pub use crate::primality::{check, ProofError, Status, Used};
     }
     /// Polynomials over Z and over `F_p` for number fields of degree 3 to
-    /// 6: resultants, discriminants, norms of `a - bθ`, distinct-degree
+    /// 6: resultants, discriminants, distinct-degree
     /// factorisation and Rabin's irreducibility test.
     pub mod poly {
         pub use crate::field::fppoly::Fp;
