@@ -86,7 +86,7 @@ pub mod math {
     }
     /// The unconditional class number series (`erfc-series-class-number`).
     pub mod series {
-        pub use crate::analytic::series::{class_number, log_l_from_log_h, terms_for};
+        pub use crate::analytic::series::{class_number, log_l_from_log_h};
     }
     /// Primality: the Baillie–PSW test and the checker of proof trees.
     pub mod primality {
@@ -94,13 +94,13 @@ pub mod math {
         pub use crate::primality::{check, ProofError, Status, Used};
     }
     /// Polynomials over Z and over `F_p` for number fields of degree 3 to
-    /// 6: resultants, discriminants, norms of `a - bθ`, distinct-degree
+    /// 6: resultants, discriminants, distinct-degree
     /// factorisation and Rabin's irreducibility test.
     pub mod poly {
         pub use crate::field::fppoly::Fp;
         pub use crate::field::zpoly::{
-            add, degree, derivative, discriminant, divrem_monic, eval, mul, norm_linear, normalise,
-            resultant, sub,
+            add, degree, derivative, discriminant, divrem_monic, eval, mul, normalise, resultant,
+            sub,
         };
     }
     /// Number fields: checked root enclosures of `F`, the logarithmic
