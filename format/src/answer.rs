@@ -29,6 +29,8 @@ pub const MAX_ANSWER_BYTES: usize = 1 << 20;
 const ANSWER_WALK: WalkLimits = WalkLimits {
     max_depth: 8,
     max_items: 10_000,
+    max_tree_bytes: 4 << 20,
+    tree_bytes_per_input_byte: 64,
 };
 
 /// An answer about the class of one form.

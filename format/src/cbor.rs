@@ -57,6 +57,13 @@ impl std::error::Error for DecodeError {}
 pub struct WalkLimits {
     pub max_depth: usize,
     pub max_items: u64,
+    /// Bytes the value tree may take: each array slot, map entry, boxed
+    /// tag and string payload is charged before it is allocated, so a
+    /// file of many tiny items cannot make the tree many times its size.
+    pub max_tree_bytes: u64,
+    /// The same, relative to the input: at most this many tree bytes per
+    /// input byte, plus 1 MiB. Honest certificates need 7 to 19.
+    pub tree_bytes_per_input_byte: u64,
 }
 
 impl Default for WalkLimits {
@@ -64,14 +71,22 @@ impl Default for WalkLimits {
         WalkLimits {
             max_depth: 24,
             max_items: 50_000_000,
+            max_tree_bytes: 1 << 30,
+            tree_bytes_per_input_byte: 32,
         }
     }
 }
+
+/// The bytes one value takes in its parent's slot.
+const SLOT: u64 = std::mem::size_of::<Value>() as u64;
+/// What the allocator adds to each block (its header and rounding).
+const ALLOC: u64 = 16;
 
 struct Walker<'a> {
     bytes: &'a [u8],
     pos: usize,
     items: u64,
+    tree_bytes: u64,
     limits: WalkLimits,
 }
 
@@ -116,10 +131,25 @@ impl Walker<'_> {
         Ok((major, arg))
     }
 
+    /// Charges `bytes` of the value tree before they are allocated.
+    fn charge(&mut self, bytes: u64) -> Result<(), DecodeError> {
+        self.tree_bytes = self.tree_bytes.saturating_add(bytes);
+        let relative = (self.limits.tree_bytes_per_input_byte)
+            .saturating_mul(self.bytes.len() as u64)
+            .saturating_add(1 << 20);
+        match self.tree_bytes > self.limits.max_tree_bytes.min(relative) {
+            true => Err(DecodeError::OverLimit(
+                "the decoded tree would be too large",
+            )),
+            false => Ok(()),
+        }
+    }
+
     fn take(&mut self, len: u64) -> Result<&[u8], DecodeError> {
         if len > self.remaining() {
             return Err(DecodeError::Truncated);
         }
+        self.charge(len + ALLOC)?;
         let start = self.pos;
         self.pos += len as usize;
         self.bytes
@@ -155,7 +185,8 @@ impl Walker<'_> {
                 if arg > self.remaining() {
                     return Err(DecodeError::Truncated);
                 }
-                let mut out = Vec::new();
+                self.charge(arg * SLOT + ALLOC)?;
+                let mut out = Vec::with_capacity(arg as usize);
                 for _ in 0..arg {
                     out.push(self.item(depth + 1)?);
                 }
@@ -165,7 +196,8 @@ impl Walker<'_> {
                 if arg.saturating_mul(2) > self.remaining() {
                     return Err(DecodeError::Truncated);
                 }
-                let mut out = Vec::new();
+                self.charge(arg * 2 * SLOT + ALLOC)?;
+                let mut out = Vec::with_capacity(arg as usize);
                 for _ in 0..arg {
                     let k = self.item(depth + 1)?;
                     let v = self.item(depth + 1)?;
@@ -185,6 +217,7 @@ impl Walker<'_> {
                         "a bignum tag must hold a byte string",
                     ));
                 }
+                self.charge(SLOT + ALLOC)?;
                 let b = self.take(len)?.to_vec();
                 if b.len() <= 8 || b.first() == Some(&0) {
                     return Err(DecodeError::NonCanonical(
@@ -212,6 +245,7 @@ pub fn to_value(bytes: &[u8], limits: WalkLimits) -> Result<Value, DecodeError> 
         bytes,
         pos: 0,
         items: 0,
+        tree_bytes: SLOT,
         limits,
     };
     let v = w.item(0)?;
@@ -219,6 +253,20 @@ pub fn to_value(bytes: &[u8], limits: WalkLimits) -> Result<Value, DecodeError> 
         return Err(DecodeError::TrailingData);
     }
     Ok(v)
+}
+
+/// The bytes [`to_value`] charges for the tree of `bytes` (`None` if they
+/// do not decode under `limits`).
+pub fn tree_bytes(bytes: &[u8], limits: WalkLimits) -> Option<u64> {
+    let mut w = Walker {
+        bytes,
+        pos: 0,
+        items: 0,
+        tree_bytes: SLOT,
+        limits,
+    };
+    w.item(0).ok()?;
+    Some(w.tree_bytes)
 }
 
 /// Encodes a value tree. Writing into a `Vec` cannot fail for the trees
@@ -393,5 +441,69 @@ impl<'a> MapReader<'a> {
             }
         }
         Ok(())
+    }
+}
+
+// Tests report failures by panicking (the panic-free set is the
+// verifier's rule, not the tests').
+#[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
+mod tests {
+    use super::*;
+
+    /// `n` one-element arrays `[0]` in one array: 2 bytes each on the
+    /// wire, two value slots and an allocation each in the tree.
+    fn arrays(n: u32) -> Vec<u8> {
+        let mut b = vec![0x9a];
+        b.extend(n.to_be_bytes());
+        for _ in 0..n {
+            b.extend([0x81, 0x00]);
+        }
+        b
+    }
+
+    #[test]
+    fn many_tiny_items_are_refused_before_the_tree_is_built() {
+        let b = arrays(200_000);
+        let limits = WalkLimits::default();
+        assert_eq!(
+            to_value(&b, limits),
+            Err(DecodeError::OverLimit(
+                "the decoded tree would be too large"
+            ))
+        );
+        // the same items are fine when the tree may be 64 times the input
+        let loose = WalkLimits {
+            tree_bytes_per_input_byte: 64,
+            ..limits
+        };
+        assert!(to_value(&b, loose).is_ok());
+        // and the absolute cap applies whatever the input's size
+        let tight = WalkLimits {
+            max_tree_bytes: 1 << 10,
+            ..loose
+        };
+        assert!(to_value(&arrays(100), tight).is_err());
+    }
+
+    /// Every stored honest certificate decodes within the default
+    /// relative cap (32 tree bytes per input byte), with room to spare
+    /// (they take 9 to 23 per byte).
+    #[test]
+    fn honest_certificates_stay_within_the_relative_cap() {
+        let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/../vectors");
+        let mut seen = 0;
+        for sub in ["golden", "golden-fields"] {
+            for e in std::fs::read_dir(format!("{dir}/{sub}")).unwrap() {
+                let p = e.unwrap().path();
+                if p.extension().is_some_and(|x| x == "cert") {
+                    let b = std::fs::read(&p).unwrap();
+                    let t = tree_bytes(&b, WalkLimits::default()).unwrap();
+                    assert!(t < 24 * b.len() as u64 + (1 << 20), "{}", p.display());
+                    seen += 1;
+                }
+            }
+        }
+        assert!(seen >= 10, "{seen} certificates");
     }
 }

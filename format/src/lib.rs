@@ -205,15 +205,20 @@ pub fn decode_document_with(
             ))
         }
     }
-    let v = cbor::to_value(bytes, limits.walk)?;
-    let mut top = cbor::MapReader::new(&v, "file")?;
-    let version = cbor::get_u64(top.req("format")?, "file.format")?;
-    if version != FORMAT_VERSION {
-        return Err(FileError::UnsupportedVersion(version));
-    }
-    let document = Document::from_value(top.req("body")?)?;
-    let claimed = cbor::get_bytes(top.req("body-sha256")?, "file.body-sha256")?.to_vec();
-    top.finish()?;
+    // The value tree is dropped before the body is encoded again, so the
+    // two trees never live together.
+    let (document, claimed) = {
+        let v = cbor::to_value(bytes, limits.walk)?;
+        let mut top = cbor::MapReader::new(&v, "file")?;
+        let version = cbor::get_u64(top.req("format")?, "file.format")?;
+        if version != FORMAT_VERSION {
+            return Err(FileError::UnsupportedVersion(version));
+        }
+        let document = Document::from_value(top.req("body")?)?;
+        let claimed = cbor::get_bytes(top.req("body-sha256")?, "file.body-sha256")?.to_vec();
+        top.finish()?;
+        (document, claimed)
+    };
     // Re-encode with the stated digest, so that a wrong digest is reported
     // as such and any other difference as a non-canonical encoding.
     let body_bytes = document.encode()?;

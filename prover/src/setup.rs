@@ -7,6 +7,7 @@
 use crate::checkpoint::CheckpointError;
 use crate::factor;
 use crate::fb::FactorBase;
+use crate::field::roots::dyadic;
 use crate::progress::Progress;
 use classcert_format::*;
 use classcert_verifier::limits::MAX_DISCRIMINANT_BITS;
@@ -377,9 +378,25 @@ pub(crate) fn producer(opts: &Options) -> Producer {
     }
 }
 
+/// The enclosure `i` as a certificate states it: its end points exactly,
+/// each in its one dyadic spelling; `None` for an infinite or NaN end point.
+pub fn to_bounds(i: &Interval) -> Option<Bounds> {
+    let end = |f: &rug::Float| f.to_integer_exp().map(|(m, e)| dyadic(m, e.into()));
+    Some(Bounds {
+        lo: end(&i.lo)?,
+        hi: end(&i.hi)?,
+    })
+}
+
+/// Terms of the unconditional series enough for a tail below 0.01 (about
+/// 1.8 sqrt|D|).
+fn series_terms(abs_d: &Integer) -> u64 {
+    (1.8 * abs_d.to_f64().sqrt()).ceil() as u64 + 10
+}
+
 /// The certificate's Euler trace for `res`.
 pub(crate) fn euler_trace(res: &euler::EulerResult, x: u64) -> EulerTrace {
-    let to_b = |i: &Interval| i.to_bounds().expect("finite interval");
+    let to_b = |i: &Interval| to_bounds(i).expect("finite interval");
     EulerTrace {
         theorem: registry::BELABAS_FRIEDMAN.to_string(),
         x,
@@ -436,7 +453,7 @@ pub(crate) fn setup(d: &Integer, opts: &Options, want: usize) -> Result<Setup, P
     };
     let bound = registry::generation_bound(theorem, &abs_d).expect("registry bound");
     let (mut x, mut trial) = if opts.unconditional {
-        (series::terms_for(&abs_d), bound)
+        (series_terms(&abs_d), bound)
     } else {
         let x = opts.euler_x.unwrap_or_else(|| choose_x(&abs_d, 0.2));
         (x, bound.max(x))
@@ -471,7 +488,7 @@ pub(crate) fn setup(d: &Integer, opts: &Options, want: usize) -> Result<Setup, P
             .ln()
             .ok_or_else(|| ProveError::SearchFailed("h <= 0".into()))?;
         let log_l = series::log_l_from_log_h(&log_h, roots_of_unity(d), &abs_d)
-            .and_then(|l| l.to_bounds())
+            .and_then(|l| to_bounds(&l))
             .ok_or_else(|| ProveError::SearchFailed("log L(1, chi) out of range".into()))?;
         let trace = EulerTrace {
             theorem: registry::ERFC_SERIES.to_string(),
@@ -540,6 +557,15 @@ impl Setup {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn dyadic_round_trip_is_exact() {
+        // The stated bounds are the enclosure itself, and zero is 0·2^0.
+        let x = Interval::ratio(-7, 3).unwrap();
+        assert_eq!(Interval::from_bounds(&to_bounds(&x).unwrap()), Some(x));
+        let zero = to_bounds(&Interval::zero()).unwrap();
+        assert_eq!((zero.lo.mantissa, zero.lo.exponent), (Integer::new(), 0));
+    }
 
     /// A factor base extended past the generation bound and the cut-off
     /// raises the cut-off to its largest prime: the verifier takes

@@ -86,7 +86,7 @@ pub mod math {
     }
     /// The unconditional class number series (`erfc-series-class-number`).
     pub mod series {
-        pub use crate::analytic::series::{class_number, log_l_from_log_h, terms_for};
+        pub use crate::analytic::series::{class_number, log_l_from_log_h};
     }
     /// Primality: the Baillie–PSW test and the checker of proof trees.
     pub mod primality {
@@ -94,13 +94,13 @@ pub mod math {
         pub use crate::primality::{check, ProofError, Status, Used};
     }
     /// Polynomials over Z and over `F_p` for number fields of degree 3 to
-    /// 6: resultants, discriminants, norms of `a - bθ`, distinct-degree
+    /// 6: resultants, discriminants, distinct-degree
     /// factorisation and Rabin's irreducibility test.
     pub mod poly {
         pub use crate::field::fppoly::Fp;
         pub use crate::field::zpoly::{
-            add, degree, derivative, discriminant, divrem_monic, eval, mul, norm_linear, normalise,
-            resultant, sub,
+            add, degree, derivative, discriminant, divrem_monic, eval, mul, normalise, resultant,
+            sub,
         };
     }
     /// Number fields: checked root enclosures of `F`, the logarithmic
@@ -118,7 +118,7 @@ pub mod math {
 
 use classcert_format::{DecodeError, Document, FileError, Order};
 use report::reason::Reason;
-use report::{Rejection, Report, Summary};
+use report::{Report, Summary};
 
 /// The reason code for a file the decoder refused.
 fn decode_reason(e: &FileError) -> Reason {
@@ -159,10 +159,7 @@ pub fn verify_signed_with(
             report.summary.signer = Some(signer);
             report
         }
-        Err(r) => Report {
-            summary: Summary::default(),
-            outcome: Err(r),
-        },
+        Err(r) => Report::rejected(r.reason, r.detail),
     }
 }
 
@@ -171,15 +168,7 @@ pub fn verify_signed_with(
 pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report {
     let decoded = match classcert_format::decode_document_with(bytes, &limits::DECODE) {
         Ok(d) => d,
-        Err(e) => {
-            return Report {
-                summary: Summary::default(),
-                outcome: Err(Rejection {
-                    reason: decode_reason(&e),
-                    detail: e.to_string(),
-                }),
-            };
-        }
+        Err(e) => return Report::rejected(decode_reason(&e), e.to_string()),
     };
     let id = Some(decoded.id_hex());
     let (order, summary_claims, outcome) = match &decoded.document {

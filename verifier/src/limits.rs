@@ -59,10 +59,17 @@ pub const DECODE: classcert_format::DecodeLimits = classcert_format::DecodeLimit
     walk: classcert_format::cbor::WalkLimits {
         max_depth: MAX_CBOR_DEPTH,
         max_items: MAX_CBOR_ITEMS,
+        max_tree_bytes: MAX_TREE_BYTES,
+        tree_bytes_per_input_byte: TREE_BYTES_PER_INPUT_BYTE,
     },
 };
-/// Bytes of a certificate file.
-pub const MAX_FILE_BYTES: usize = 256 << 20;
+/// Bytes of a certificate file (a 100-digit certificate takes about 10 MB).
+pub const MAX_FILE_BYTES: usize = 64 << 20;
+/// Bytes the decoded value tree may take, in all and per byte of the file
+/// (honest certificates take 9 to 23 per byte), so that decoding stays
+/// within a small multiple of the file.
+pub const MAX_TREE_BYTES: u64 = 256 << 20;
+pub const TREE_BYTES_PER_INPUT_BYTE: u64 = 32;
 
 /// Lines read from a policy file (`--policy`), and its size in bytes.
 pub const MAX_POLICY_LINES: usize = 1000;

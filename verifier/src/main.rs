@@ -26,16 +26,7 @@ use cli::{Cli, Require};
 /// The policy from the options and the policy file, and the trusted keys.
 fn policy(cli: &Cli) -> Result<(Policy, Vec<TrustedKey>), String> {
     let (mut p, mut key_files) = match &cli.policy {
-        Some(f) => {
-            let mut text = String::new();
-            std::fs::File::open(f)
-                .and_then(|h| {
-                    h.take(classcert_verifier::limits::MAX_POLICY_BYTES)
-                        .read_to_string(&mut text)
-                })
-                .map_err(|e| format!("cannot read the policy file {f}: {e}"))?;
-            Policy::from_toml(&text)?
-        }
+        Some(f) => Policy::from_toml(&read_text(f, limits::MAX_POLICY_BYTES, "the policy file")?)?,
         None => (Policy::default(), Vec::new()),
     };
     if !cli.allow.is_empty() {
@@ -52,10 +43,7 @@ fn policy(cli: &Cli) -> Result<(Policy, Vec<TrustedKey>), String> {
     key_files.extend(cli.trusted_key.iter().cloned());
     let mut keys = Vec::new();
     for f in &key_files {
-        let mut text = String::new();
-        std::fs::File::open(f)
-            .and_then(|h| h.take(1 << 16).read_to_string(&mut text))
-            .map_err(|e| format!("cannot read the key {f}: {e}"))?;
+        let text = read_text(f, 1 << 16, "the key")?;
         keys.push(TrustedKey::from_pem(&text).map_err(|e| format!("{f}: {e}"))?);
     }
     p.signed = !keys.is_empty();
@@ -97,14 +85,15 @@ fn main() -> ExitCode {
         };
     }
     let file = cli.files.first().map_or("-", String::as_str);
-    let bytes = match read_bounded(file) {
+    let bytes = match read_bounded(file, limits::MAX_FILE_BYTES as u64) {
         Ok(b) => b,
         Err(e) => {
             let what = if file == "-" { "standard input" } else { file };
             return usage_error(cli.json, "io-error", &format!("cannot read {what}: {e}"));
         }
     };
-    let answer = (cli.answer.as_deref().map(read_bounded).transpose())
+    let read_answer = |f| read_bounded(f, limits::MAX_FILE_BYTES as u64);
+    let answer = (cli.answer.as_deref().map(read_answer).transpose())
         .map_err(|e| format!("cannot read the answer: {e}"));
     let answer = match answer {
         Ok(a) => a,
@@ -136,13 +125,12 @@ fn paint(text: String) -> String {
     if plain || !std::io::stdout().is_terminal() {
         return text;
     }
-    match text.strip_prefix("VERIFIED") {
-        Some(rest) => format!("\x1b[1;32mVERIFIED\x1b[0m{rest}"),
-        None => match text.strip_prefix("REJECTED") {
-            Some(rest) => format!("\x1b[1;31mREJECTED\x1b[0m{rest}"),
-            None => text,
-        },
+    for (word, colour) in [("VERIFIED", 32), ("REJECTED", 31)] {
+        if let Some(rest) = text.strip_prefix(word) {
+            return format!("\x1b[1;{colour}m{word}\x1b[0m{rest}");
+        }
     }
+    text
 }
 
 /// 0 when every report verified (with its answer, if any); else 1 when a
@@ -170,10 +158,14 @@ fn jobs(cli: &Cli, trusted: &[TrustedKey]) -> Result<(Vec<Job>, Option<Signer>),
     let Some(m) = &cli.manifest else {
         return Ok((out, None));
     };
-    let mut bytes = Vec::new();
-    std::fs::File::open(m)
-        .and_then(|h| h.take(limits::MAX_MANIFEST_BYTES).read_to_end(&mut bytes))
+    let bytes = read_bounded(m, limits::MAX_MANIFEST_BYTES)
         .map_err(|e| format!("cannot read the manifest {m}: {e}"))?;
+    if bytes.len() as u64 > limits::MAX_MANIFEST_BYTES {
+        return Err(format!(
+            "the manifest {m} is over {} bytes",
+            limits::MAX_MANIFEST_BYTES
+        ));
+    }
     let (text, signer) = match classcert_format::cose::is_signed(&bytes) {
         true => signature::check(&bytes, trusted)
             .map(|(payload, signer)| (payload.to_vec(), Some(signer)))
@@ -259,17 +251,10 @@ fn several(
 /// an unsigned certificate it lists is vouched for by the manifest's
 /// signer.
 fn one(file: &str, id: Option<&str>, vouched: Option<&Signer>, trusted: &[TrustedKey]) -> Report {
-    let bytes = match read_bounded(file) {
+    let bytes = match read_bounded(file, limits::MAX_FILE_BYTES as u64) {
         Ok(b) => b,
         Err(e) => {
-            let r = Rejection {
-                reason: Reason::NotACertificate,
-                detail: format!("cannot read {file}: {e}"),
-            };
-            return Report {
-                summary: Default::default(),
-                outcome: Err(r),
-            };
+            return Report::rejected(Reason::NotACertificate, format!("cannot read {file}: {e}"))
         }
     };
     let mut report = classcert_verifier::verify_signed_with(&bytes, trusted, &mut |_| {});
@@ -302,19 +287,29 @@ fn print_out(text: &str) {
     let _ = out.flush();
 }
 
-/// Reads at most one byte past the size limit, so a huge input costs no
-/// more than that (the decoder then refuses it as over the limit).
-fn read_bounded(path: &str) -> std::io::Result<Vec<u8>> {
-    let limit = classcert_verifier::limits::MAX_FILE_BYTES as u64 + 1;
+/// Reads at most one byte past `limit`, so a huge input costs no more
+/// than that (a certificate's decoder then refuses it as over the limit).
+fn read_bounded(path: &str, limit: u64) -> std::io::Result<Vec<u8>> {
     let mut buf = Vec::new();
-    if path == "-" {
-        std::io::stdin().lock().take(limit).read_to_end(&mut buf)?;
-    } else {
-        std::fs::File::open(path)?
-            .take(limit)
-            .read_to_end(&mut buf)?;
-    }
+    match path {
+        "-" => std::io::stdin()
+            .lock()
+            .take(limit + 1)
+            .read_to_end(&mut buf)?,
+        _ => std::fs::File::open(path)?
+            .take(limit + 1)
+            .read_to_end(&mut buf)?,
+    };
     Ok(buf)
+}
+
+/// A text file of at most `limit` bytes (`what` names it in the error).
+fn read_text(path: &str, limit: u64, what: &str) -> Result<String, String> {
+    let bytes = read_bounded(path, limit).map_err(|e| format!("cannot read {what} {path}: {e}"))?;
+    match bytes.len() as u64 > limit {
+        true => Err(format!("{what} {path} is over {limit} bytes")),
+        false => String::from_utf8(bytes).map_err(|_| format!("{what} {path} is not UTF-8")),
+    }
 }
 
 /// Progress on standard error once a run has taken [`QUIET_FOR`], shown

@@ -401,7 +401,7 @@ pub fn prove_field(f: &[Integer], opts: &Options) -> Result<FieldBody, ProveErro
         classcert_verifier::report::decimal(&regulator)
     ));
     let to_b = |i: &Interval| {
-        i.to_bounds()
+        crate::setup::to_bounds(i)
             .ok_or_else(|| ProveError::SearchFailed("an enclosure is out of range".into()))
     };
     Ok(FieldBody {

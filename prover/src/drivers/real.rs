@@ -867,8 +867,7 @@ pub fn prove_real(d: &Integer, opts: &Options) -> Result<Body, ProveError> {
     let units = Units {
         steps,
         norm: if chain.norm_negative { -1 } else { 1 },
-        regulator: regulator
-            .to_bounds()
+        regulator: crate::setup::to_bounds(&regulator)
             .ok_or_else(|| ProveError::SearchFailed("regulator out of range".into()))?,
     };
     progress.say(&format!(

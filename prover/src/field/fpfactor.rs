@@ -26,6 +26,21 @@ fn field(p: u64) -> Fp {
     Fp::new(p).expect("p must satisfy 2 ≤ p < 2^63")
 }
 
+/// `base^e mod g` by square and multiply, for `g` not zero: `2·bits(e)`
+/// products and remainders mod `g`.
+fn powmod(k: Fp, base: &[u64], e: &Integer, g: &[u64]) -> Vec<u64> {
+    let rem = |a: &[u64]| k.rem(a, g).expect("g is not zero");
+    let base = rem(base);
+    let mut acc = rem(&[1]);
+    for i in (0..e.significant_bits()).rev() {
+        acc = rem(&k.mul(&acc, &acc));
+        if e.get_bit(i) {
+            acc = rem(&k.mul(&acc, &base));
+        }
+    }
+    acc
+}
+
 fn derivative(f: &[u64], p: u64) -> Vec<u64> {
     let k = field(p);
     let d: Vec<u64> = f
@@ -113,7 +128,7 @@ pub fn equal_degree(g: &[u64], d: usize, p: u64, rng: &mut Rng) -> Vec<Vec<u64>>
             }
             acc
         } else {
-            k.sub(&k.powmod(&a, &exponent, g).unwrap(), &[1])
+            k.sub(&powmod(k, &a, &exponent, g), &[1])
         };
         let h = k.gcd(&b, g).unwrap();
         if degree(&h) > 0 && degree(&h) < n {
@@ -158,7 +173,7 @@ pub fn roots(f: &[u64], p: u64, seed: u64) -> Vec<u64> {
         return Vec::new();
     }
     // gcd(f, x^p - x) is the product of the distinct linear factors.
-    let xp = k.powmod(&[0, 1], &Integer::from(p), &f).unwrap();
+    let xp = powmod(k, &[0, 1], &Integer::from(p), &f);
     let lin = k.gcd(&k.sub(&xp, &[0, 1]), &f).unwrap();
     if degree(&lin) == 0 {
         return Vec::new();
@@ -192,6 +207,21 @@ mod tests {
             }
         }
         acc
+    }
+
+    #[test]
+    fn powers_against_repeated_products() {
+        // base^e mod g against e products mod g, at a small prime and at
+        // 2^61 - 1 (a Mersenne prime, common practice), g not monic.
+        for p in [13u64, (1 << 61) - 1] {
+            let k = field(p);
+            let (g, base) = ([3, 0, 5, 1, 7], [2, 5, 1]);
+            let mut slow = vec![1];
+            for e in 0..60u32 {
+                assert_eq!(powmod(k, &base, &Integer::from(e), &g), slow);
+                slow = k.rem(&k.mul(&slow, &base), &g).unwrap();
+            }
+        }
     }
 
     #[test]

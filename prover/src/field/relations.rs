@@ -31,10 +31,27 @@ use super::decompose::{decompose, factor_with_norm, DecomposeError, PrimeIdeal};
 use super::fpfactor;
 use crate::linalg::lll;
 use crate::rng::Rng;
-use classcert_verifier::math::poly::{norm_linear, Fp};
+use classcert_verifier::math::poly::{degree, Fp};
 use classcert_verifier::math::primes_up_to;
 use rug::Integer;
 use std::collections::HashSet;
+
+/// The norm of `a - bθ` for `θ` a root of monic `F` of degree `n`:
+/// `N(a - bθ) = b^n F(a/b) = Σ f_i a^i b^(n-i)` (homogeneous Horner);
+/// `None` if `F` is not monic. `2n` multiplications.
+fn norm_linear(f: &[Integer], a: &Integer, b: &Integer) -> Option<Integer> {
+    let n = degree(f)?;
+    if *f.get(n)? != 1 {
+        return None;
+    }
+    let mut acc = Integer::from(1);
+    let mut b_pow = Integer::from(1);
+    for c in f.iter().take(n).rev() {
+        b_pow *= b;
+        acc = acc * a + Integer::from(c * &b_pow);
+    }
+    Some(acc)
+}
 
 /// The factor base: every prime ideal above every prime `p ≤ bound`.
 #[derive(Debug, Clone)]
@@ -786,10 +803,40 @@ mod tests {
     use super::super::decompose::valuation;
     use super::super::maximal::maximal_order;
     use super::*;
+    use classcert_verifier::math::poly::{normalise, resultant};
     use rug::ops::Pow;
 
     fn z(c: &[i64]) -> Vec<Integer> {
         c.iter().map(|&x| Integer::from(x)).collect()
+    }
+
+    #[test]
+    fn norms_of_linear_elements() {
+        // N(a - b√d) = a^2 - d b^2 (common practice).
+        for (a, b) in [(3, 2), (-5, 7), (0, 1), (4, 0)] {
+            let n = norm_linear(&z(&[-13, 0, 1]), &Integer::from(a), &Integer::from(b));
+            assert_eq!(n, Some(Integer::from(a * a - 13 * b * b)));
+        }
+        // N(a - b·2^(1/3)) = a^3 - 2 b^3 (common practice).
+        let n = norm_linear(&z(&[-2, 0, 0, 1]), &Integer::from(5), &Integer::from(-3));
+        assert_eq!(n, Some(Integer::from(125 + 54)));
+        // A second route: N(a - bθ) = Res(F, a - bx) for monic F (the
+        // resultant is lc(F)^1 ∏ (a - bθ_i)).
+        let mut rng = Rng::new(3);
+        for _ in 0..200 {
+            let n = 1 + rng.below(6) as usize;
+            let mut small = |r: u64| Integer::from(rng.below(2 * r + 1)) - r;
+            let mut f: Vec<Integer> = (0..n).map(|_| small(40)).collect();
+            f.push(Integer::from(1));
+            let (a, b) = (small(1000), small(1000));
+            let lin = normalise(vec![a.clone(), Integer::from(-&b)]);
+            assert_eq!(norm_linear(&f, &a, &b), Some(resultant(&f, &lin)));
+        }
+        assert_eq!(
+            norm_linear(&z(&[1, 0, 2]), &Integer::from(1), &Integer::from(1)),
+            None
+        );
+        assert_eq!(norm_linear(&[], &Integer::from(1), &Integer::from(1)), None);
     }
 
     /// Checks every relation: `N(α) = ±∏ N(P_i)^{v_i}`, each `v_i` equal to

@@ -251,6 +251,8 @@ pub(crate) fn plain(exponents: Sparse) -> FoundRelation {
 const BATCH_LIMITS: WalkLimits = WalkLimits {
     max_depth: 8,
     max_items: 1 << 26,
+    max_tree_bytes: u64::MAX,
+    tree_bytes_per_input_byte: u64::MAX,
 };
 
 fn bad(what: &str) -> DecodeError {

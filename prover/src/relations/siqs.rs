@@ -958,6 +958,8 @@ impl<'a> Siqs<'a> {
 const ROUND_LIMITS: WalkLimits = WalkLimits {
     max_depth: 8,
     max_items: 1 << 24,
+    max_tree_bytes: u64::MAX,
+    tree_bytes_per_input_byte: u64::MAX,
 };
 
 /// A round's findings as CBOR: an array with one array per family, of

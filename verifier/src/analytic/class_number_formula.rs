@@ -11,7 +11,7 @@
 //! `k = 1`; and `log h* R* < lo(log h R)` cannot happen if the relations
 //! and GRH both hold.
 
-use super::interval::Interval;
+use super::interval::{computed, Interval};
 use super::BoundOk;
 use crate::arith::kronecker_prime;
 use crate::report::reason::{reject, reject_if, Check, Reason};
@@ -89,17 +89,10 @@ pub(crate) fn check_conclusion(
     regulator: Option<&Interval>,
 ) -> Check<AnalyticOk> {
     let log_h = bound.log_h();
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
     let ln2 = Interval::ln2();
-    let hs = Interval::int(h_star);
-    let Some(mut log_hs) = hs.ln() else {
-        return bad();
-    };
+    let mut log_hs = computed(Interval::int(h_star).ln())?;
     if let Some(r) = regulator {
-        let Some(log_r) = r.ln() else {
-            return bad();
-        };
-        log_hs = log_hs.add(&log_r);
+        log_hs = log_hs.add(&computed(r.ln())?);
     }
     // h* R* = k h R with k >= 1 (R = R* = 1 for D < 0). If
     // log h* R* < lo(log h R) + log 2 then k = 1.

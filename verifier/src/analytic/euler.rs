@@ -14,7 +14,7 @@
 //! in for it. Everything is computed in outward-rounded intervals.
 
 use super::class_number_formula::log_h_enclosure;
-use super::interval::{stated_contains, Interval};
+use super::interval::{computed, stated_contains, Interval};
 use crate::arith::kronecker_prime;
 use crate::limits::{MAX_CHECKPOINTS, MAX_EULER_X};
 use crate::order::{ConductorOk, OrderOk};
@@ -238,13 +238,8 @@ pub(crate) fn trace_prelude(
         Reason::EulerXOutOfRange,
         format_args!("X = {x} must lie in [{}, {MAX_EULER_X}]", MIN_X),
     )?;
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
-    let Some(log_delta) = Interval::int(abs_disc).ln() else {
-        return bad();
-    };
-    let Some(err) = error_bound_degree(x, &log_delta, n) else {
-        return bad();
-    };
+    let log_delta = computed(Interval::int(abs_disc).ln())?;
+    let err = computed(error_bound_degree(x, &log_delta, n))?;
     reject_if(
         Interval::u64(2).mul(&err).hi >= Interval::ln2().lo,
         Reason::EulerXTooSmall,
@@ -307,18 +302,13 @@ pub(crate) fn check_trace(
 ) -> Check<Interval> {
     let x = e.x;
     let (log_delta, limits) = trace_prelude(e, order.abs_d(), 2)?;
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
     let ds = cond.d_small();
     let chi = |p: u64| kronecker_prime(ds, p);
-    let Some(res) = compute_with(x, cond.trial_primes(), &chi, &limits, &log_delta, beat) else {
-        return bad();
-    };
+    let primes = cond.trial_primes();
+    let res = computed(compute_with(x, primes, &chi, &limits, &log_delta, beat))?;
     trace_agrees(e, &res, "enclosure of log L(1, chi)")?;
-    let Some(log_h) = log_h_enclosure(order.d(), order.w(), &res.log_l, cond.primes(), ds, x)
-    else {
-        return bad();
-    };
-    Ok(log_h)
+    let log_h = log_h_enclosure(order.d(), order.w(), &res.log_l, cond.primes(), ds, x);
+    computed(log_h)
 }
 
 #[cfg(test)]

@@ -10,11 +10,11 @@
 //! `log h R = log κ + log w + log|Δ|/2 - r1 log 2 - r2 log 2π`.
 
 use super::euler::{compute_general, trace_agrees, trace_prelude, EulerResult};
-use super::interval::Interval;
+use super::interval::{computed, Interval};
 use super::{BoundOk, Method};
 use crate::field::fppoly::Fp;
 use crate::registry;
-use crate::report::reason::{reject, reject_if, Check, Reason};
+use crate::report::reason::{reject_if, Check, Reason};
 use classcert_format::EulerTrace;
 use rug::Integer;
 
@@ -46,8 +46,7 @@ pub(crate) fn check_field_bound(
     let x = e.x;
     let n = k.polynomial.len().saturating_sub(1) as u64;
     let (log_delta, limits) = trace_prelude(e, k.abs_disc, n)?;
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
-    let Some(res) = euler_field(
+    let res = computed(euler_field(
         x,
         k.polynomial,
         k.splitting,
@@ -55,13 +54,9 @@ pub(crate) fn check_field_bound(
         &limits,
         &log_delta,
         beat,
-    ) else {
-        return bad();
-    };
+    ))?;
     trace_agrees(e, &res, "enclosure of log kappa")?;
-    let Some(log_hr) = log_hr(&res.log_l, k.abs_disc, k.signature, k.w) else {
-        return bad();
-    };
+    let log_hr = computed(log_hr(&res.log_l, k.abs_disc, k.signature, k.w))?;
     Ok(BoundOk {
         log_h: log_hr,
         method: Method::EulerProduct { x },
@@ -103,17 +98,12 @@ pub fn euler_field(
         degrees.push((p, fs));
     }
     let coef = |p: u64, m: u64| -> i64 {
-        let Ok(i) = degrees.binary_search_by_key(&p, |d| d.0) else {
+        let found = degrees.binary_search_by_key(&p, |d| d.0).ok();
+        let Some((_, fs)) = found.and_then(|i| degrees.get(i)) else {
             return 0;
         };
-        let Some((_, fs)) = degrees.get(i) else {
-            return 0;
-        };
-        let s: u64 = fs
-            .iter()
-            .filter(|&&f| f > 0 && m.is_multiple_of(u64::from(f)))
-            .map(|&f| u64::from(f))
-            .sum();
+        let fs = fs.iter().map(|&f| u64::from(f));
+        let s: u64 = fs.filter(|&f| f > 0 && m.is_multiple_of(f)).sum();
         s as i64 - 1
     };
     compute_general(x, primes, &coef, n, limits, log_delta, beat)

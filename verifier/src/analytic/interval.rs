@@ -53,6 +53,16 @@ fn max(a: Float, b: Float) -> Float {
     }
 }
 
+/// `[lo, lo]`, or `[lo, next float up]` for a value that is not a float
+/// (`inexact`), `lo` its rounding down.
+fn one_ulp(lo: Float, inexact: bool) -> Interval {
+    let mut hi = lo.clone();
+    if inexact {
+        hi.next_up();
+    }
+    Interval { lo, hi }
+}
+
 impl Interval {
     pub fn int(x: &Integer) -> Interval {
         Interval::int_prec(x, PREC)
@@ -61,11 +71,10 @@ impl Interval {
     /// `x` at `prec` bits (at least [`PREC`]).
     pub fn int_prec(x: &Integer, prec: u32) -> Interval {
         let prec = prec.max(PREC);
-        let mut lo = Float::new(prec);
-        let mut hi = Float::new(prec);
-        rug::ops::AssignRound::assign_round(&mut lo, x, Round::Down);
-        rug::ops::AssignRound::assign_round(&mut hi, x, Round::Up);
-        Interval { lo, hi }
+        Interval {
+            lo: down(prec, x),
+            hi: up(prec, x),
+        }
     }
 
     pub fn u64(x: u64) -> Interval {
@@ -77,18 +86,19 @@ impl Interval {
         Interval::int(&Integer::from(n)).div(&Interval::u64(d))
     }
 
-    pub fn pi() -> Interval {
+    fn constant(c: Constant) -> Interval {
         Interval {
-            lo: down(PREC, Constant::Pi),
-            hi: up(PREC, Constant::Pi),
+            lo: down(PREC, c),
+            hi: up(PREC, c),
         }
     }
 
+    pub fn pi() -> Interval {
+        Interval::constant(Constant::Pi)
+    }
+
     pub fn ln2() -> Interval {
-        Interval {
-            lo: down(PREC, Constant::Log2),
-            hi: up(PREC, Constant::Log2),
-        }
+        Interval::constant(Constant::Log2)
     }
 
     /// The precision results are computed at.
@@ -139,30 +149,13 @@ impl Interval {
                 hi: up(p, &self.hi * &o.hi),
             };
         }
-        let pairs = [
-            (&self.lo, &o.lo),
-            (&self.lo, &o.hi),
-            (&self.hi, &o.lo),
-            (&self.hi, &o.hi),
-        ];
-        let mut lo: Option<Float> = None;
-        let mut hi: Option<Float> = None;
-        for (x, y) in pairs {
-            let l = down(p, x * y);
-            let h = up(p, x * y);
-            lo = Some(match lo {
-                None => l,
-                Some(c) => min(c, l),
-            });
-            hi = Some(match hi {
-                None => h,
-                Some(c) => max(c, h),
-            });
+        // the least and the largest of the four end point products
+        let (mut lo, mut hi) = (down(p, &self.lo * &o.lo), up(p, &self.lo * &o.lo));
+        for (x, y) in [(&self.lo, &o.hi), (&self.hi, &o.lo), (&self.hi, &o.hi)] {
+            lo = min(lo, down(p, x * y));
+            hi = max(hi, up(p, x * y));
         }
-        Interval {
-            lo: lo.unwrap_or_else(|| Float::new(p)),
-            hi: hi.unwrap_or_else(|| Float::new(p)),
-        }
+        Interval { lo, hi }
     }
 
     /// Division by an interval that does not contain 0.
@@ -192,10 +185,7 @@ impl Interval {
         if x < 2 {
             return Interval::u64(x).ln();
         }
-        let lo = down(PREC, Float::with_val(PREC, x).ln_ref());
-        let mut hi = lo.clone();
-        hi.next_up();
-        Some(Interval { lo, hi })
+        Some(one_ulp(down(PREC, Float::with_val(PREC, x).ln_ref()), true))
     }
 
     /// `1/n` for an integer `n ≥ 1`, the same interval as
@@ -207,13 +197,8 @@ impl Interval {
         if n == 0 {
             return None;
         }
-        let f = Float::with_val(PREC, n);
-        let lo = down(PREC, 1 / &f);
-        let mut hi = lo.clone();
-        if !n.is_power_of_two() {
-            hi.next_up();
-        }
-        Some(Interval { lo, hi })
+        let lo = down(PREC, 1 / &Float::with_val(PREC, n));
+        Some(one_ulp(lo, !n.is_power_of_two()))
     }
 
     /// `√n` for an integer `n`, the same interval as
@@ -222,11 +207,7 @@ impl Interval {
     /// the rounding down.
     pub fn sqrt_int(n: u64) -> Interval {
         let lo = down(PREC, Float::with_val(PREC, n).sqrt_ref());
-        let mut hi = lo.clone();
-        if n.isqrt() * n.isqrt() != n {
-            hi.next_up();
-        }
-        Interval { lo, hi }
+        one_ulp(lo, n.isqrt() * n.isqrt() != n)
     }
 
     /// Natural logarithm of a positive interval.
@@ -287,13 +268,6 @@ impl Interval {
         (self.lo.to_f64() + self.hi.to_f64()) / 2.0
     }
 
-    pub fn to_bounds(&self) -> Option<Bounds> {
-        Some(Bounds {
-            lo: to_dyadic(&self.lo)?,
-            hi: to_dyadic(&self.hi)?,
-        })
-    }
-
     /// The interval a certificate states; `None` if the exponents are absurd.
     pub fn from_bounds(b: &Bounds) -> Option<Interval> {
         Some(Interval {
@@ -301,6 +275,15 @@ impl Interval {
             hi: from_dyadic(&b.hi, Round::Up)?,
         })
     }
+}
+
+/// The value of an interval computation; refused as over the limits if it
+/// failed (a division by an interval holding 0, a log of one not above 0).
+pub(crate) fn computed<T>(v: Option<T>) -> Check<T> {
+    v.map_or_else(
+        || reject(Reason::OverLimit, "interval arithmetic failed"),
+        Ok,
+    )
 }
 
 /// A stated enclosure must contain the verifier's own (`reason` if not).
@@ -325,25 +308,6 @@ pub(crate) fn stated_contains(
         ),
     )?;
     Ok(claimed)
-}
-
-fn to_dyadic(f: &Float) -> Option<Dyadic> {
-    if f.is_zero() {
-        return Some(Dyadic {
-            mantissa: Integer::new(),
-            exponent: 0,
-        });
-    }
-    let (mut m, e) = f.to_integer_exp()?;
-    let mut e = i64::from(e);
-    // strip trailing zero bits so the representation is unique
-    let tz = m.find_one(0).unwrap_or(0);
-    m >>= tz;
-    e += i64::from(tz);
-    Some(Dyadic {
-        mantissa: m,
-        exponent: e,
-    })
 }
 
 /// Exponents of stated bounds are kept in a sane range: the values the
@@ -479,13 +443,5 @@ mod tests {
             hi: huge,
         };
         assert!(Interval::from_bounds(&b).is_none());
-    }
-
-    #[test]
-    fn dyadic_round_trip_is_exact() {
-        let x = Interval::ratio(-7, 3).unwrap();
-        let b = x.to_bounds().unwrap();
-        let y = Interval::from_bounds(&b).unwrap();
-        assert_eq!(x, y);
     }
 }

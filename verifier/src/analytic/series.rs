@@ -16,11 +16,11 @@
 //! |Σ_{n > N}| <= 2 sqrt|D| / (π (N + 1)) · q^{N+1} / (1 - q),   q = e^{-π (N + 1) / |D|}
 //! ```
 
-use super::interval::{stated_contains, Interval};
+use super::interval::{computed, stated_contains, Interval};
 use crate::arith::kronecker_prime;
 use crate::limits::MAX_SERIES_TERMS;
 use crate::order::OrderOk;
-use crate::report::reason::{reject, reject_if, Check, Reason};
+use crate::report::reason::{reject_if, Check, Reason};
 use classcert_format::EulerTrace;
 use rug::Integer;
 
@@ -45,15 +45,10 @@ fn kronecker(d: &Integer, mut n: u64, spf: &[u32]) -> i8 {
 fn smallest_prime_factors(limit: usize) -> Vec<u32> {
     let mut spf = vec![0u32; limit + 1];
     for i in 2..=limit {
-        if spf.get(i).copied() == Some(0) {
-            let mut j = i;
-            while j <= limit {
-                if let Some(slot) = spf.get_mut(j) {
-                    if *slot == 0 {
-                        *slot = i as u32;
-                    }
-                }
-                j += i;
+        if spf.get(i) == Some(&0) {
+            // the multiples i, 2i, … of i not marked yet
+            for slot in spf.iter_mut().skip(i).step_by(i).filter(|s| **s == 0) {
+                *slot = i as u32;
             }
         }
     }
@@ -116,12 +111,6 @@ pub fn log_l_from_log_h(log_h: &Interval, w: u32, abs_d: &Integer) -> Option<Int
     Some(log_h.add(&factor))
 }
 
-/// Terms enough for a tail below 0.01 (about 1.8 sqrt|D|).
-pub fn terms_for(abs_d: &Integer) -> u64 {
-    let a = abs_d.to_f64();
-    (1.8 * a.sqrt()).ceil() as u64 + 10
-}
-
 /// Section 7: `h` itself from the series above, without
 /// GRH, for a maximal order of discriminant `D < -4`. The stated
 /// `log-l` must contain `log L(1, χ) = log(2 π h / (w sqrt|D|))`.
@@ -142,19 +131,14 @@ pub(crate) fn check_series(
         Reason::EulerXOutOfRange,
         format_args!("the series needs 1 to {MAX_SERIES_TERMS} terms and no checkpoints"),
     )?;
-    let bad = || reject(Reason::OverLimit, "interval arithmetic failed");
-    let Some(h) = class_number_with(order.d(), n, beat) else {
-        return bad();
-    };
+    let h = computed(class_number_with(order.d(), n, beat))?;
     reject_if(
         h.lo <= 0,
         Reason::EulerXTooSmall,
         format_args!("{n} terms do not bound h away from 0"),
     )?;
-    let Some(log_h) = h.ln() else { return bad() };
-    let Some(log_l) = log_l_from_log_h(&log_h, order.w(), order.abs_d()) else {
-        return bad();
-    };
+    let log_h = computed(h.ln())?;
+    let log_l = computed(log_l_from_log_h(&log_h, order.w(), order.abs_d()))?;
     stated_contains(
         &e.log_l,
         &log_l,
@@ -183,7 +167,8 @@ mod tests {
             (-1_000_003, 105),
         ] {
             let d = Integer::from(d);
-            let n = terms_for(&Integer::from(d.abs_ref()));
+            // 2 sqrt|D| terms: the tail bound is then far below the 0.1 asked.
+            let n = 2 * d.to_f64().abs().sqrt() as u64 + 10;
             let s = class_number(&d, n).unwrap();
             let want = Interval::u64(h);
             assert!(s.lo <= want.lo && want.hi <= s.hi, "h({d})");

@@ -225,46 +225,24 @@ impl Fp {
         }
     }
 
-    /// `base^e mod g` by square and multiply over the `bits` low bits of
-    /// `e`, `bit(i)` giving bit `i`; `None` as [`Fp::divrem`]. `bits`
-    /// squarings and at most `bits` products mod `g`, each `O(deg(g)^2)`
-    /// steps. The remainder mod `g` is the one mod `g` made monic.
-    fn pow_bits(
-        self,
-        base: &[u64],
-        g: &[u64],
-        bits: u32,
-        bit: impl Fn(u32) -> bool,
-    ) -> Option<Vec<u64>> {
+    /// `x^p mod g` by square and multiply over the bits of `p`; `None` as
+    /// [`Fp::divrem`]. `bits(p)` squarings and at most `bits(p)` products
+    /// mod `g`, each `O(deg(g)^2)` steps. The remainder mod `g` is the one
+    /// mod `g` made monic.
+    fn x_to_p(self, g: &[u64]) -> Option<Vec<u64>> {
         let g = self.monic(g)?;
-        let base = self.rem(base, &g)?;
+        let x = self.rem(&X, &g)?;
         let mut acc = self.rem(&[1], &g)?;
         let mut next = Vec::with_capacity(2 * g.len());
-        for i in (0..bits).rev() {
+        for i in (0..u64::BITS - self.p.leading_zeros()).rev() {
             self.mul_mod(&acc, &acc, &g, &mut next);
             std::mem::swap(&mut acc, &mut next);
-            if bit(i) {
-                self.mul_mod(&acc, &base, &g, &mut next);
+            if (self.p >> i) & 1 == 1 {
+                self.mul_mod(&acc, &x, &g, &mut next);
                 std::mem::swap(&mut acc, &mut next);
             }
         }
         Some(acc)
-    }
-
-    /// `base^e mod g` by square and multiply, for `e ≥ 0` (`None` if
-    /// negative, or as [`Fp::divrem`]). `2·bits(e)` multiplications and
-    /// reductions mod `g`, each `O(deg(g)^2)` steps.
-    pub fn powmod(self, base: &[u64], e: &Integer, g: &[u64]) -> Option<Vec<u64>> {
-        if *e < 0 {
-            return None;
-        }
-        self.pow_bits(base, g, e.significant_bits(), |i| e.get_bit(i))
-    }
-
-    /// `x^p mod g`, as [`Fp::powmod`] with `e = p`.
-    fn x_to_p(self, g: &[u64]) -> Option<Vec<u64>> {
-        let p = self.p;
-        self.pow_bits(&X, g, 64 - p.leading_zeros(), |i| (p >> i) & 1 == 1)
     }
 
     /// `v^p mod g` for `g` monic of degree `≥ 1`, `v` reduced mod `g` and
@@ -294,7 +272,7 @@ impl Fp {
     /// factors of degree `d`, the pair `(d, A_d)` with `A_d` the monic
     /// product of those factors, `d` increasing. `None` if `f` is zero,
     /// constant or not squarefree (`gcd(f, f') ≠ 1`). One `x^p mod f`
-    /// ([`Fp::powmod`]), then at most `n/2` Frobenius steps of `n`
+    /// ([`Fp::x_to_p`]), then at most `n/2` Frobenius steps of `n`
     /// products mod a divisor of `f` ([`Fp::frobenius`]) and as many gcds.
     pub fn distinct_degree(self, f: &[u64]) -> Option<Vec<(usize, Vec<u64>)>> {
         let mut w = self.monic(f)?;
@@ -478,7 +456,7 @@ pub(crate) mod tests {
         assert_eq!(k.divrem(&[1, 2], &[]), None);
         assert_eq!(k.divrem(&[1, 2], &[0, 7]), None);
         assert_eq!(k.monic(&[0, 0]), None);
-        assert_eq!(k.powmod(&X, &Integer::from(-1), &[1, 0, 1]), None);
+        assert_eq!(k.x_to_p(&[]), None);
         assert_eq!(k.is_irreducible(&[3]), None);
         assert_eq!(k.is_irreducible(&[]), None);
         // Not monic over Z, or not squarefree mod p: no pattern.
@@ -598,23 +576,38 @@ pub(crate) mod tests {
         assert!(irreducible > 100);
     }
 
+    /// `a^e mod g` from products and remainders alone, halving `e`.
+    fn pow_ref(k: Fp, a: &[u64], e: &Integer, g: &[u64]) -> Vec<u64> {
+        if *e == 0 {
+            return k.rem(&[1], g).unwrap();
+        }
+        let half = pow_ref(k, a, &Integer::from(e >> 1), g);
+        let square = k.rem(&k.mul(&half, &half), g).unwrap();
+        match e.is_odd() {
+            true => k.rem(&k.mul(&square, a), g).unwrap(),
+            false => square,
+        }
+    }
+
     #[test]
     fn powers() {
-        // x^e mod g by square and multiply against repeated multiplication,
-        // and x^(p^k) against k Frobenius steps.
+        // x^p mod g and the reference power against repeated
+        // multiplication, and x^(p^k) against k Frobenius steps.
         let k = Fp::new(13).unwrap();
         let g = [3, 0, 5, 1, 1];
         let mut slow = vec![1];
         for e in 0..60u32 {
-            assert_eq!(k.powmod(&X, &Integer::from(e), &g), Some(slow.clone()));
+            assert_eq!(pow_ref(k, &X, &Integer::from(e), &g), slow);
+            if e == 13 {
+                assert_eq!(k.x_to_p(&g), Some(slow.clone()));
+            }
             slow = k.rem(&k.mul(&slow, &X), &g).unwrap();
         }
         let mut frob = X.to_vec();
         let xp = k.x_to_p(&g).unwrap();
         for j in 1..=8u32 {
             frob = k.frobenius(&frob, &xp, &g);
-            let e = Integer::from(13).pow(j);
-            assert_eq!(k.powmod(&X, &e, &g), Some(frob.clone()));
+            assert_eq!(pow_ref(k, &X, &Integer::from(13).pow(j), &g), frob);
         }
         // gcd: monic, and the common factor of two products.
         let a = k.mul(&[1, 1], &[2, 0, 1]);
@@ -701,17 +694,11 @@ pub(crate) mod tests {
                 k.mul_mod(&a, &b, &g, &mut r);
                 assert_eq!(r, k.rem(&k.mul(&a, &b), &g).unwrap());
                 let xp = k.x_to_p(&g).unwrap();
-                assert_eq!(Some(xp.clone()), k.powmod(&X, &Integer::from(p), &g));
+                assert_eq!(xp, pow_ref(k, &X, &Integer::from(p), &g));
                 assert_eq!(
-                    Some(k.frobenius(&a, &xp, &g)),
-                    k.powmod(&a, &Integer::from(p), &g)
+                    k.frobenius(&a, &xp, &g),
+                    pow_ref(k, &a, &Integer::from(p), &g)
                 );
-                // x^e for small e against repeated multiplication.
-                let mut slow = k.rem(&[1], &g).unwrap();
-                for e in 0..12u32 {
-                    assert_eq!(k.powmod(&X, &Integer::from(e), &g), Some(slow.clone()));
-                    slow = k.rem(&k.mul(&slow, &X), &g).unwrap();
-                }
             }
         }
     }

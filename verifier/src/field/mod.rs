@@ -1,5 +1,5 @@
 //! Number fields `K = Q[x]/(F)`: the polynomial arithmetic their checks
-//! rest on. Over Z (`zpoly`: resultants, discriminants, norms of `a - bθ`)
+//! rest on. Over Z (`zpoly`: products, division, resultants, discriminants)
 //! and over `F_p` (`fppoly`: distinct-degree factorisation, degree
 //! patterns, Rabin's irreducibility test). The design note is
 //! `general-fields.md`.

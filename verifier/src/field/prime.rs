@@ -8,7 +8,7 @@
 
 use super::fppoly::Fp;
 use super::linmodp;
-use super::order::{FieldOrder, OrderError};
+use super::order::{combine, unit, FieldOrder, OrderError};
 use crate::arith::mod_small;
 use crate::primality::bpsw::{primality_evidence, Evidence};
 use rug::Integer;
@@ -48,17 +48,16 @@ pub enum PrimeError {
     DegreeSum { n: usize },
 }
 
-impl PrimeError {
-    /// A sentence for the report.
-    pub fn message(&self) -> String {
-        match self {
+impl std::fmt::Display for PrimeError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&match self {
             Self::NotPrime(p) => format!("{p} is not a prime below 2^63"),
             Self::Degrees { e, f } => {
                 format!("e = {e}, f = {f}: both must be positive with e·f at most the degree")
             }
             Self::Length => "an element does not have one coordinate per basis element".into(),
             Self::NotMaximal => "the order is not maximal at p".into(),
-            Self::Order(e) => e.message(),
+            Self::Order(e) => e.to_string(),
             Self::Norm { rank, f } => {
                 format!("P/pO has dimension {rank}, which does not give residue degree {f}")
             }
@@ -79,13 +78,7 @@ impl PrimeError {
                 format!("primes {first} and {second} of the list are equal")
             }
             Self::DegreeSum { n } => format!("the sum of e·f over the list is not {n}"),
-        }
-    }
-}
-
-impl std::fmt::Display for PrimeError {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&self.message())
+        })
     }
 }
 
@@ -119,10 +112,6 @@ impl CheckedPrime {
     pub fn f(&self) -> u32 {
         self.f
     }
-}
-
-fn unit(n: usize, j: usize) -> Vec<Integer> {
-    (0..n).map(|i| Integer::from(u8::from(i == j))).collect()
 }
 
 /// Checks that `P = pO + πO` is a prime ideal of `O` with residue degree
@@ -281,12 +270,7 @@ pub fn valuation(
     let mut a = alpha.to_vec();
     for k in 0..=cap {
         // b = α γ = Σ_j α_j (γ ω_j)
-        let mut b = vec![Integer::new(); a.len()];
-        for (aj, row) in a.iter().zip(&prime.anti_rows).filter(|(aj, _)| **aj != 0) {
-            for (o, r) in b.iter_mut().zip(row) {
-                *o += aj * r;
-            }
-        }
+        let b = combine(&a, &prime.anti_rows, a.len());
         if !order.divisible_by(&b, &p) {
             return Some(k);
         }
@@ -591,7 +575,7 @@ mod tests {
                 second: 1,
             },
         ] {
-            assert!(!e.message().is_empty() && !e.to_string().contains('{'));
+            assert!(!e.to_string().is_empty() && !e.to_string().contains('{'));
         }
     }
 
@@ -772,8 +756,8 @@ mod tests {
                             continue;
                         }
                         let alpha = eli(&o, &[a, -b]);
-                        let norm =
-                            zpoly::norm_linear(&fz, &Integer::from(a), &Integer::from(b)).unwrap();
+                        // N(a - bθ) = Res(F, a - bx) for monic F (common practice).
+                        let norm = zpoly::resultant(&fz, &z(&[a, -b]));
                         assert_eq!(o.norm(&alpha), norm);
                         let vp = (0..64)
                             .take_while(|&i| norm.is_divisible(&Integer::from(p).pow(i + 1)))

@@ -67,31 +67,25 @@ pub enum RootError {
 impl std::fmt::Display for RootError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            RootError::Polynomial(s) => write!(f, "the polynomial {s}"),
-            RootError::OverLimit(s) => write!(f, "over limit: {s}"),
-            RootError::Count { r1, r2, n } => {
-                write!(
-                    f,
-                    "{r1} real intervals and {r2} boxes do not account for the {n} roots"
-                )
-            }
-            RootError::RealOrder(i) => {
-                write!(
-                    f,
-                    "real interval {i} is empty or does not lie above the one before"
-                )
-            }
-            RootError::NoSignChange(i) => write!(f, "no sign change on real interval {i}"),
-            RootError::NotUpperHalf(i) => {
+            Self::Polynomial(s) => write!(f, "the polynomial {s}"),
+            Self::OverLimit(s) => write!(f, "over limit: {s}"),
+            Self::Count { r1, r2, n } => write!(
+                f,
+                "{r1} real intervals and {r2} boxes do not account for the {n} roots"
+            ),
+            Self::RealOrder(i) => write!(
+                f,
+                "real interval {i} is empty or does not lie above the one before"
+            ),
+            Self::NoSignChange(i) => write!(f, "no sign change on real interval {i}"),
+            Self::NotUpperHalf(i) => {
                 write!(f, "box {i} is empty or not strictly above the real axis")
             }
-            RootError::BoxesOverlap(i, j) => write!(f, "boxes {i} and {j} meet"),
-            RootError::NotProven(i) => {
-                write!(
-                    f,
-                    "the Krawczyk test does not prove a unique root in box {i}"
-                )
-            }
+            Self::BoxesOverlap(i, j) => write!(f, "boxes {i} and {j} meet"),
+            Self::NotProven(i) => write!(
+                f,
+                "the Krawczyk test does not prove a unique root in box {i}"
+            ),
         }
     }
 }
@@ -188,20 +182,24 @@ fn mag(x: &Interval) -> Float {
     }
 }
 
-/// `{x^2 : x ∈ x}`, tighter than `x·x` when `x` holds 0.
-fn sqr(x: &Interval) -> Interval {
+/// `{|x| : x ∈ x}`.
+fn abs(x: &Interval) -> Interval {
     if x.lo >= 0 {
-        x.mul(x)
+        x.clone()
     } else if x.hi <= 0 {
-        x.neg().mul(&x.neg())
+        x.neg()
     } else {
-        let m = point(mag(x));
-        let s = m.mul(&m);
         Interval {
-            lo: Float::new(s.prec()),
-            hi: s.hi,
+            lo: Float::new(x.prec()),
+            hi: mag(x),
         }
     }
+}
+
+/// `{x^2 : x ∈ x}`, tighter than `x·x` when `x` holds 0.
+fn sqr(x: &Interval) -> Interval {
+    let a = abs(x);
+    a.mul(&a)
 }
 
 /// The Krawczyk test on the box `x`, in the contraction form. With `y` the
@@ -355,8 +353,7 @@ impl Roots {
         let mut out = Vec::with_capacity(self.real.len() + self.complex.len());
         for t in &self.real {
             let v = eval_interval(num, t, self.prec);
-            let a = if v.hi < 0 { v.neg() } else { v };
-            out.push(a.ln()?.sub(&log_den));
+            out.push(abs(&v).ln()?.sub(&log_den));
         }
         let two_log_den = log_den.add(&log_den);
         for z in &self.complex {
@@ -408,11 +405,9 @@ impl Roots {
                 }
                 c = next;
             }
-            let ruled_out = c.iter().any(|(re, _)| {
-                let lo = re.lo.clone().ceil();
-                let hi = re.hi.clone().floor();
-                lo > hi
-            });
+            let ruled_out = c
+                .iter()
+                .any(|(re, _)| re.lo.clone().ceil() > re.hi.clone().floor());
             if !ruled_out {
                 return false;
             }
@@ -449,18 +444,7 @@ pub fn abs_det(m: &[Vec<Interval>]) -> Option<Interval> {
         return None;
     }
     let cols: Vec<usize> = (0..r).collect();
-    let d = det(m, 0, &cols)?;
-    if d.lo >= 0 {
-        Some(d)
-    } else if d.hi <= 0 {
-        Some(d.neg())
-    } else {
-        let p = d.prec();
-        Some(Interval {
-            lo: Float::new(p),
-            hi: mag(&d),
-        })
-    }
+    det(m, 0, &cols).map(|d| abs(&d))
 }
 
 /// The regulator of `r` units from their log vectors (each of length

@@ -201,23 +201,6 @@ pub fn discriminant(f: &[Integer]) -> Option<Integer> {
     })
 }
 
-/// The norm of `a - bθ` for `θ` a root of monic `F` of degree `n`:
-/// `N(a - bθ) = b^n F(a/b) = Σ f_i a^i b^(n-i)` (homogeneous Horner);
-/// `None` if `F` is not monic. `2n` multiplications.
-pub fn norm_linear(f: &[Integer], a: &Integer, b: &Integer) -> Option<Integer> {
-    let n = degree(f)?;
-    if lead(f) != 1 {
-        return None;
-    }
-    let mut acc = Integer::from(1);
-    let mut b_pow = Integer::from(1);
-    for c in f.iter().take(n).rev() {
-        b_pow *= b;
-        acc = acc * a + Integer::from(c * &b_pow);
-    }
-    Some(acc)
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -424,34 +407,5 @@ mod tests {
         // d/dx (x^3 - 2x + 7) = 3x^2 - 2.
         assert_eq!(derivative(&z(&[7, -2, 0, 1])), z(&[-2, 0, 3]));
         assert!(derivative(&z(&[7])).is_empty());
-    }
-
-    #[test]
-    fn norms_of_linear_elements() {
-        // N(a - b√d) = a^2 - d b^2 (common practice).
-        for (a, b) in [(3, 2), (-5, 7), (0, 1), (4, 0)] {
-            let n = norm_linear(&z(&[-13, 0, 1]), &Integer::from(a), &Integer::from(b));
-            assert_eq!(n, Some(Integer::from(a * a - 13 * b * b)));
-        }
-        // N(a - b·2^(1/3)) = a^3 - 2 b^3 (common practice).
-        let n = norm_linear(&z(&[-2, 0, 0, 1]), &Integer::from(5), &Integer::from(-3));
-        assert_eq!(n, Some(Integer::from(125 + 54)));
-        // A second route: N(a - bθ) = Res(F, a - bx) for monic F (the
-        // resultant is lc(F)^1 ∏ (a - bθ_i)).
-        let mut rng = TestRng::new(3);
-        for _ in 0..200 {
-            let f = random_poly(&mut rng, (1, 6), 40, true);
-            let (a, b) = (
-                Integer::from(rng.range(-1000, 1000)),
-                Integer::from(rng.range(-1000, 1000)),
-            );
-            let lin = normalise(vec![a.clone(), Integer::from(-&b)]);
-            assert_eq!(norm_linear(&f, &a, &b), Some(resultant(&f, &lin)));
-        }
-        assert_eq!(
-            norm_linear(&z(&[1, 0, 2]), &Integer::from(1), &Integer::from(1)),
-            None
-        );
-        assert_eq!(norm_linear(&[], &Integer::from(1), &Integer::from(1)), None);
     }
 }

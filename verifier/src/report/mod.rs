@@ -50,4 +50,13 @@ impl Report {
     pub fn is_verified(&self) -> bool {
         self.outcome.is_ok()
     }
+
+    /// A report on input that could not be read as a certificate.
+    pub fn rejected(reason: Reason, detail: String) -> Report {
+        let outcome = Err(Rejection { reason, detail });
+        Report {
+            summary: Summary::default(),
+            outcome,
+        }
+    }
 }

@@ -4,7 +4,7 @@
 //! A policy never changes a check: it refuses a verified result with
 //! reason `policy`, saying that every check passed and which rule refused.
 
-use super::reason::{Reason, Rejection};
+use super::reason::{reject, Reason};
 use super::{Assumption, Report, Summary, Verified};
 use crate::limits::MAX_POLICY_LINES;
 use rug::Integer;
@@ -148,10 +148,7 @@ impl Report {
             None => self,
             Some(rule) => Report {
                 summary: self.summary,
-                outcome: Err(Rejection {
-                    reason: Reason::Policy,
-                    detail: format!("every check passed, but {rule}"),
-                }),
+                outcome: reject(Reason::Policy, format!("every check passed, but {rule}")),
             },
         }
     }

@@ -89,7 +89,16 @@ pub(crate) fn check_stated(units: &Units, chain: &Chain) -> Check<UnitFacts> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use classcert_format::{Bounds, CompactStep};
+    use classcert_format::{Bounds, CompactStep, Dyadic};
+
+    /// The float `f`, exactly.
+    fn dyadic(f: &rug::Float) -> Dyadic {
+        let (mantissa, e) = f.to_integer_exp().unwrap();
+        Dyadic {
+            mantissa,
+            exponent: e.into(),
+        }
+    }
 
     fn units(lo: &Interval, hi: &Interval, norm: i64) -> Units {
         Units {
@@ -102,8 +111,8 @@ mod tests {
             }],
             norm,
             regulator: Bounds {
-                lo: lo.to_bounds().unwrap().lo,
-                hi: hi.to_bounds().unwrap().hi,
+                lo: dyadic(&lo.lo),
+                hi: dyadic(&hi.hi),
             },
         }
     }
