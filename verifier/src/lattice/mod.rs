@@ -69,14 +69,11 @@ pub(crate) fn check_lattice(l: &Lattice, n: usize, witnesses: &mut Witnesses) ->
         Reason::SmithShape,
         format_args!("the relation matrix must be {r} x {r}"),
     )?;
-    for (i, row) in l.relations.iter().enumerate() {
+    let row_witnesses = row_witnesses(&l.relation_witness, r, witnesses.by_combinations())?;
+    for (i, (row, w)) in l.relations.iter().zip(&row_witnesses).enumerate() {
         let mut entries = over_factor_base(&l.generators, row);
         entries.sort_by_key(|(g, _)| *g);
-        if !witnesses.holds(
-            &entries,
-            &row_witness(&l.relation_witness, i, r)?,
-            &format!("row {i} of H"),
-        )? {
+        if !witnesses.holds(&entries, w, &format!("row {i} of H"))? {
             return reject(
                 witnesses.failure(false),
                 format!("generator relation {i} does not hold by its witness"),
@@ -98,25 +95,25 @@ pub(crate) fn over_factor_base<'a>(g: &[u32], row: &'a [Integer]) -> Vec<(usize,
     entries.map(|(g, e)| (*g as usize, e)).collect()
 }
 
-/// The witness of row `i` of `H`: form reduction for all rows, or row `i`
-/// of a `combinations` witness.
-fn row_witness(w: &Witness, i: usize, r: usize) -> Check<Witness> {
-    match w {
-        Witness::Combinations { rows } => match rows.get(i) {
-            Some(terms) if rows.len() == r => Ok(Witness::Combination {
+/// One witness per row of `H`, checked whatever the number of rows (none
+/// when `h = 1`): a `combinations` witness with exactly `r` rows when
+/// relations are combinations of raw ones (`D > 0`, number fields), form
+/// reduction otherwise.
+fn row_witnesses(w: &Witness, r: usize, combinations: bool) -> Check<Vec<Witness>> {
+    match (w, combinations) {
+        (Witness::Combinations { rows }, true) if rows.len() == r => Ok((rows.iter())
+            .map(|terms| Witness::Combination {
                 terms: terms.clone(),
-            }),
-            _ => reject(
-                Reason::CombinationMismatch,
-                format!("one combination per row of H is required ({r} rows)"),
-            ),
-        },
-        Witness::Combination { .. } | Witness::Element { .. } | Witness::Coordinates { .. } => {
-            reject(
-                Reason::WitnessKind,
-                "the rows of H need a combinations or form-reduction witness",
-            )
-        }
-        Witness::FormReduction => Ok(Witness::FormReduction),
+            })
+            .collect()),
+        (Witness::Combinations { .. }, true) => reject(
+            Reason::CombinationMismatch,
+            format!("one combination per row of H is required ({r} rows)"),
+        ),
+        (Witness::FormReduction, false) => Ok(vec![Witness::FormReduction; r]),
+        _ => reject(
+            Reason::WitnessKind,
+            "the rows of H need a combinations witness (D > 0, number fields) or form reduction (D < 0)",
+        ),
     }
 }

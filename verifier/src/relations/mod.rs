@@ -149,6 +149,11 @@ impl<'a> Witnesses<'a> {
         }
     }
 
+    /// Whether relations are shown as combinations of raw ones.
+    pub(crate) fn by_combinations(&self) -> bool {
+        matches!(self, Witnesses::Raw { .. })
+    }
+
     /// The reason when a relation does not hold by its witness.
     pub(crate) fn failure(&self, elimination: bool) -> Reason {
         match (self, elimination) {
