@@ -50,7 +50,9 @@ pub mod table;
 pub mod units;
 
 pub use drivers::field::{field_to_bytes, prove_field};
-pub use drivers::{collect, encode_and_check, prove, prove_to_bytes, witness};
+pub use drivers::{
+    collect, encode_and_check, encode_and_verify, prove, prove_to_bytes, prove_verified, witness,
+};
 pub use setup::{Options, ProveError};
 
 /// Writes a certificate through a temporary file and a rename, so a crash

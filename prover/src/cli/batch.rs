@@ -260,15 +260,16 @@ fn one(d: &Integer, opts: &classcert_prover::Options, dir: &Path) -> Outcome {
     let (mut row, bytes, seconds) = match kept {
         Some((row, n)) if row.order == d.to_string() => (row, n, None),
         _ => {
-            let bytes = match classcert_prover::prove_to_bytes(d, opts) {
-                Ok((bytes, _)) => bytes,
+            // the prover's own check of the bytes gives the row
+            let (bytes, report) = match classcert_prover::prove_verified(d, opts) {
+                Ok(done) => done,
                 Err(e) => return Outcome::Failed(e.to_string()),
             };
             let seconds = start.elapsed().as_secs_f64();
             if let Err(e) = classcert_prover::write_certificate(&path, &bytes) {
                 return Outcome::Failed(format!("cannot write {}: {e}", path.display()));
             }
-            match super::table::row_of(&bytes) {
+            match classcert_prover::table::Row::from_report(&report) {
                 Ok(row) => (row, bytes.len(), Some(seconds)),
                 Err(e) => return Outcome::Failed(format!("the certificate does not verify: {e}")),
             }

@@ -7,6 +7,7 @@ use crate::progress::Progress;
 use crate::relations::{FoundRelation, RelationSource};
 use crate::setup::{Options, ProveError};
 use classcert_format::Document;
+use classcert_verifier::report::Report;
 
 /// Candidates tried for one elimination before the search gives up.
 pub(crate) const ELIMINATION_ATTEMPTS: u64 = 2_000_000;
@@ -21,19 +22,28 @@ pub(crate) const ELIMINATION_CHUNK: usize = 25;
 /// Encodes a certificate and runs the verifier on the bytes (decoding
 /// included); a rejection is a prover bug and is reported as such.
 pub fn encode_and_check(doc: &Document, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
+    encode_and_verify(doc, opts).map(|(bytes, id, _)| (bytes, id))
+}
+
+/// [`encode_and_check`], handing out the verifier's report as well (for
+/// callers that show what was verified, so the bytes are checked once).
+pub fn encode_and_verify(
+    doc: &Document,
+    opts: &Options,
+) -> Result<(Vec<u8>, [u8; 32], Report), ProveError> {
     let (bytes, id) = classcert_format::encode_document(doc)
         .map_err(|e| ProveError::SelfCheckFailed(format!("encoding failed: {e}")))?;
     let progress = Progress::new(opts.progress);
     progress.phase("self-check: verifying the encoded certificate");
     let report = classcert_verifier::verify_bytes(&bytes);
-    if let Err(rej) = report.outcome {
+    if let Err(rej) = &report.outcome {
         return Err(ProveError::SelfCheckFailed(format!(
             "{}: {}",
             rej.reason.code(),
             rej.detail
         )));
     }
-    Ok((bytes, id))
+    Ok((bytes, id, report))
 }
 
 /// An elimination for every factor-base ideal beyond the essential block

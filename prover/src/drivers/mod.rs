@@ -15,10 +15,11 @@ pub mod imaginary;
 pub mod real;
 pub mod witness;
 
-pub use common::encode_and_check;
+pub use common::{encode_and_check, encode_and_verify};
 
 use crate::setup::{check_cost, validate, Options, ProveError};
 use classcert_format::{Body, Document};
+use classcert_verifier::report::Report;
 use rug::Integer;
 
 /// The certificate body for `D`: the class group, and the units when
@@ -59,4 +60,11 @@ pub fn collect(
 pub fn prove_to_bytes(d: &Integer, opts: &Options) -> Result<(Vec<u8>, [u8; 32]), ProveError> {
     let body = prove(d, opts)?;
     encode_and_check(&Document::Relations(Box::new(body)), opts)
+}
+
+/// [`prove_to_bytes`], with the verifier's report on the bytes.
+pub fn prove_verified(d: &Integer, opts: &Options) -> Result<(Vec<u8>, Report), ProveError> {
+    let body = prove(d, opts)?;
+    let doc = Document::Relations(Box::new(body));
+    encode_and_verify(&doc, opts).map(|(bytes, _, report)| (bytes, report))
 }
