@@ -442,3 +442,57 @@ fn random_small_orders_never_verify_a_false_claim() {
     // not testing anything
     assert!(rejected * 2 > changes, "{rejected} of {changes} rejected");
 }
+
+/// The same property for real quadratic fields: 8 random fundamental
+/// D in 5..3000, 30 changes each; whatever verifies states the class
+/// number of the finite class number formula and the regulator of the
+/// continued fraction (`tests/src/oracle.rs`, both from the textbook
+/// definitions).
+#[test]
+fn random_real_fields_never_verify_a_false_claim() {
+    let mut rng = SplitMix::new(0x5eed_0004);
+    let (mut fields, mut rejected, mut changes) = (0, 0, 0);
+    while fields < 8 {
+        let d = rng.range(5, 3000) as i64;
+        if !oracle::is_fundamental(d) {
+            continue;
+        }
+        fields += 1;
+        let honest = prove_body(d);
+        let (h, r) = (
+            oracle::class_number_real_finite_formula(d),
+            oracle::regulator_by_continued_fraction(d),
+        );
+        // the honest certificate states what the oracle computes
+        let v = expect_verified(&verify_bytes(&encode(&honest)), "honest");
+        let got = v.unit().expect("a unit for D > 0").regulator.mid_f64();
+        assert_eq!(*v.class_number(), h, "D = {d}: the honest class number");
+        assert!(
+            (got - r).abs() < 1e-6 * r.max(1.0),
+            "D = {d}: R {got}, not {r}"
+        );
+        for round in 0..30 {
+            let mut b = honest.clone();
+            let what = change_a_number(&mut b, &mut rng);
+            if b == honest {
+                continue;
+            }
+            changes += 1;
+            let bytes = encode(&b);
+            match std::panic::catch_unwind(|| verify_bytes(&bytes).outcome) {
+                Err(_) => panic!("D = {d}, round {round}: verifier panicked ({what})"),
+                Ok(Err(_)) => rejected += 1,
+                Ok(Ok(v)) => {
+                    let got = v.unit().expect("a unit for D > 0").regulator.mid_f64();
+                    assert_eq!(*v.class_number(), h, "D = {d}, round {round}: {what}");
+                    assert!(
+                        (got - r).abs() < 1e-6 * r.max(1.0),
+                        "D = {d}: R {got}, not {r}"
+                    );
+                }
+            }
+        }
+    }
+    eprintln!("{rejected} of {changes} random changes over 8 real fields rejected");
+    assert!(rejected * 2 > changes, "{rejected} of {changes} rejected");
+}
