@@ -125,15 +125,16 @@ pub const MAX_W: u32 = 64;
 // decoded sizes before any check starts (`estimate`). A unit is about one
 // machine-word operation, weighted so that it takes about a nanosecond on
 // the reference machine (BENCHMARKS.md, "The work budget").
-/// Units a certificate may cost by default (about 4 s of checking).
-pub const DEFAULT_BUDGET: f64 = 4e9;
+/// Units a certificate may cost by default (about 10 s of checking; a
+/// 100-digit certificate is projected at 1.3e9 for D < 0, 7.4e9 for D > 0).
+pub const DEFAULT_BUDGET: f64 = 1e10;
 /// The largest `--budget-scale`, the multiplier of the default budget.
 pub const MAX_BUDGET_SCALE: u32 = 100_000;
 /// Units per `n` of the Euler product (per prime, its interval terms).
 const EULER_UNIT: f64 = 600.0;
 /// Units per term of the unconditional series, and per term whose
 /// `erfc` argument `n sqrt(π/|D|)` is small (`n < 2 sqrt|D|`), the costly ones.
-const SERIES_UNIT: [f64; 2] = [3000.0, 30000.0];
+const SERIES_UNIT: [f64; 2] = [3000.0, 80000.0];
 
 use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Document, Order, PrimalityEvidence as Ev, Relation, Witness};
@@ -177,13 +178,13 @@ fn proof(n: &Integer, ev: &Ev) -> f64 {
 fn relation(entries: &[(u32, Integer)], witness: &Witness, comp: f64, lens: &[f64]) -> f64 {
     let terms = |t: &[(u32, Integer)]| {
         let len = |j: &u32| 1.0 + lens.get(*j as usize).unwrap_or(&0.0);
-        20.0 * t.iter().map(|(j, c)| words(c) * len(j)).sum::<f64>()
+        150.0 * t.iter().map(|(j, c)| words(c) * len(j)).sum::<f64>()
     };
     let exps = entries.iter().map(|(_, e)| exponent(e)).sum::<f64>();
     20.0 * entries.len() as f64
         + match witness {
             Witness::FormReduction => comp * exps,
-            Witness::Element { x, y } => square([x, y]) * (50.0 + exps),
+            Witness::Element { x, y } => 4.0 * square([x, y]) + 9.0 * exps * square([x, y]).sqrt(),
             Witness::Coordinates { coordinates: c } => 400.0 * square(c),
             Witness::Combination { terms: t } => terms(t),
             Witness::Combinations { rows } => rows.iter().map(|t| terms(t)).sum(),
