@@ -68,6 +68,11 @@ pub struct Cli {
     /// require, expect-class-number, expect-invariants, trusted-keys).
     #[arg(long, value_name = "FILE")]
     pub policy: Option<String>,
+    /// Multiply the work budget by K (1 to 100000): a certificate whose
+    /// estimated work exceeds it is refused (reason over-limit) unchecked.
+    #[arg(long, value_name = "K", default_value_t = 1,
+          value_parser = clap::value_parser!(u32).range(1..=100_000))]
+    pub budget_scale: u32,
     /// Print only the verdict line (text) and no progress.
     #[arg(short, long)]
     pub quiet: bool,

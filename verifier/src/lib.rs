@@ -150,12 +150,23 @@ pub fn verify_signed_with(
     trusted: &[signature::TrustedKey],
     progress: &mut dyn FnMut(&str),
 ) -> Report {
+    verify_with_budget(bytes, trusted, 1, progress)
+}
+
+/// [`verify_signed_with`] with `scale` times the default work budget
+/// ([`limits::DEFAULT_BUDGET`], at most [`limits::MAX_BUDGET_SCALE`]).
+pub fn verify_with_budget(
+    bytes: &[u8],
+    trusted: &[signature::TrustedKey],
+    scale: u32,
+    progress: &mut dyn FnMut(&str),
+) -> Report {
     if !classcert_format::cose::is_signed(bytes) {
-        return verify_bytes_with(bytes, progress);
+        return verify_scaled(bytes, scale, progress);
     }
     match signature::check(bytes, trusted) {
         Ok((payload, signer)) => {
-            let mut report = verify_bytes_with(payload, progress);
+            let mut report = verify_scaled(payload, scale, progress);
             report.summary.signer = Some(signer);
             report
         }
@@ -166,11 +177,17 @@ pub fn verify_signed_with(
 /// [`verify_bytes`], telling `progress` the name of each stage (one of
 /// [`STAGES`]) as it starts.
 pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report {
+    verify_scaled(bytes, 1, progress)
+}
+
+/// Decodes, estimates the work against the budget, then checks.
+fn verify_scaled(bytes: &[u8], scale: u32, progress: &mut dyn FnMut(&str)) -> Report {
     let decoded = match classcert_format::decode_document_with(bytes, &limits::DECODE) {
         Ok(d) => d,
         Err(e) => return Report::rejected(decode_reason(&e), e.to_string()),
     };
     let id = Some(decoded.id_hex());
+    let budget = limits::check_budget(&decoded.document, scale);
     let (order, summary_claims, outcome) = match &decoded.document {
         Document::Relations(body) => (
             &body.order,
@@ -179,7 +196,7 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
                 body.claim.class_number.clone(),
                 body.claim.invariants.clone(),
             ),
-            pipeline::verify_relations(body, progress),
+            budget.and_then(|()| pipeline::verify_relations(body, progress)),
         ),
         Document::OrderWitness(w) => (
             &w.order,
@@ -188,7 +205,7 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
                 w.class_number.clone(),
                 w.generators.iter().map(|g| g.order.clone()).collect(),
             ),
-            pipeline::verify_order_witness(w, progress),
+            budget.and_then(|()| pipeline::verify_order_witness(w, progress)),
         ),
         Document::Field(body) => {
             return Report {
@@ -203,7 +220,7 @@ pub fn verify_bytes_with(bytes: &[u8], progress: &mut dyn FnMut(&str)) -> Report
                     claimed_invariants: Some(body.claim.invariants.clone()),
                     ..Summary::default()
                 },
-                outcome: pipeline::verify_field(body, progress),
+                outcome: budget.and_then(|()| pipeline::verify_field(body, progress)),
             }
         }
     };

@@ -100,8 +100,9 @@ fn main() -> ExitCode {
         Err(detail) => return usage_error(cli.json, "io-error", &detail),
     };
     let mut progress = Progress::new(cli.quiet);
+    let mut stage = |name: &str| progress.stage(name);
     let report =
-        classcert_verifier::verify_signed_with(&bytes, &trusted, &mut |name| progress.stage(name));
+        classcert_verifier::verify_with_budget(&bytes, &trusted, cli.budget_scale, &mut stage);
     progress.done();
     let report = report.apply(&policy).check_answer(answer.as_deref());
     let text = if cli.json {
@@ -205,7 +206,10 @@ fn several(
                         let Some((file, id)) = jobs.get(i) else {
                             return out;
                         };
-                        out.push((i, one(file, id.as_deref(), vouched, trusted)));
+                        out.push((
+                            i,
+                            one(file, id.as_deref(), vouched, (trusted, cli.budget_scale)),
+                        ));
                     }
                 })
             })
@@ -250,14 +254,19 @@ fn several(
 /// Verifies one file; a manifest's id must match the certificate's, and
 /// an unsigned certificate it lists is vouched for by the manifest's
 /// signer.
-fn one(file: &str, id: Option<&str>, vouched: Option<&Signer>, trusted: &[TrustedKey]) -> Report {
+fn one(
+    file: &str,
+    id: Option<&str>,
+    vouched: Option<&Signer>,
+    key: (&[TrustedKey], u32),
+) -> Report {
     let bytes = match read_bounded(file, limits::MAX_FILE_BYTES as u64) {
         Ok(b) => b,
         Err(e) => {
             return Report::rejected(Reason::NotACertificate, format!("cannot read {file}: {e}"))
         }
     };
-    let mut report = classcert_verifier::verify_signed_with(&bytes, trusted, &mut |_| {});
+    let mut report = classcert_verifier::verify_with_budget(&bytes, key.0, key.1, &mut |_| {});
     let Some(id) = id else { return report };
     if report.summary.certificate_sha256.as_deref() != Some(id) {
         let detail = format!("the manifest lists the id {id}, and {file} has another");

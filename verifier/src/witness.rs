@@ -11,12 +11,9 @@
 use crate::analytic::interval::Interval;
 use crate::analytic::BoundOk;
 use crate::ideals::form::Form;
-use crate::limits::{
-    MAX_COMPOSITIONS, MAX_ENTRY_BITS, MAX_PROOF_POWERS, MAX_RANK, MAX_SOCLE_COMBINATIONS,
-};
+use crate::limits::{MAX_ENTRY_BITS, MAX_RANK};
 use crate::order::{check_factorisation, Factorisation};
 use crate::registry::{self, Theorem};
-use crate::relations::forms::Budget;
 use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::short_number;
 use crate::report::view::GeneratorView;
@@ -47,14 +44,7 @@ pub(crate) fn check_h<'a>(h: &'a Integer, factors: &'a [PrimePower]) -> Check<Fa
         Reason::OrderWitnessFactorisation,
         "H must be a positive integer within the limits",
     )?;
-    let mut work = MAX_PROOF_POWERS;
-    let evidence = check_factorisation(
-        factors,
-        h,
-        "H",
-        Reason::OrderWitnessFactorisation,
-        &mut work,
-    )?;
+    let evidence = check_factorisation(factors, h, "H", Reason::OrderWitnessFactorisation)?;
     Ok(FactorsOk {
         h,
         factors,
@@ -143,9 +133,8 @@ pub(crate) fn check_witnesses(
             short_number(h.h)
         ),
     )?;
-    let mut budget = Budget::new(MAX_COMPOSITIONS);
-    let exact = check_exact_orders(&forms, h.factors, d, &mut budget)?;
-    let independent = check_independent(&forms, &exact, h.factors, d, &mut budget)?;
+    let exact = check_exact_orders(&forms, h.factors, d)?;
+    let independent = check_independent(&forms, &exact, h.factors, d)?;
     Ok(WitnessesOk {
         forms,
         _exact: exact,
@@ -153,8 +142,7 @@ pub(crate) fn check_witnesses(
     })
 }
 
-fn power(g: &Form, e: &Integer, d: &Integer, budget: &mut Budget) -> Check<Form> {
-    budget.charge(&[e])?;
+fn power(g: &Form, e: &Integer, d: &Integer) -> Check<Form> {
     match g.pow(e, d) {
         Ok(x) => Ok(x),
         Err(_) => reject(Reason::OrderWitnessForm, "form arithmetic failed"),
@@ -166,12 +154,11 @@ fn check_exact_orders(
     forms: &[(Integer, Form)],
     factors: &[PrimePower],
     d: &Integer,
-    budget: &mut Budget,
 ) -> Check<ExactOrdersOk> {
     let principal = Form::principal(d);
     for (i, (di, g)) in forms.iter().enumerate() {
         reject_if(
-            power(g, di, d, budget)? != principal,
+            power(g, di, d)? != principal,
             Reason::OrderWitnessPower,
             format_args!(
                 "g_{i}^{di} is not the principal form: {di} is not a multiple of its order"
@@ -180,7 +167,7 @@ fn check_exact_orders(
         for pp in factors.iter().filter(|pp| di.is_divisible(&pp.prime)) {
             let e = Integer::from(di / &pp.prime);
             reject_if(
-                power(g, &e, d, budget)? == principal,
+                power(g, &e, d)? == principal,
                 Reason::OrderWitnessNotExact,
                 format_args!(
                     "g_{i}^({di}/{}) is the principal form: g_{i} has order below {di}",
@@ -202,16 +189,14 @@ fn check_independent(
     _exact: &ExactOrdersOk,
     factors: &[PrimePower],
     d: &Integer,
-    budget: &mut Budget,
 ) -> Check<IndependentOk> {
     let principal = Form::principal(d);
-    let mut combos: u64 = 0;
     for pp in factors {
         let p = &pp.prime;
         let socle: Vec<Form> = forms
             .iter()
             .filter(|(di, _)| di.is_divisible(p))
-            .map(|(di, g)| power(g, &Integer::from(di / p), d, budget))
+            .map(|(di, g)| power(g, &Integer::from(di / p), d))
             .collect::<Check<Vec<Form>>>()?;
         if socle.len() < 2 {
             continue; // one element of order p is independent by itself
@@ -223,12 +208,6 @@ fn check_independent(
         for _ in 0..socle.len() {
             size = size.saturating_mul(pu);
         }
-        combos = combos.saturating_add(size);
-        reject_if(
-            combos > MAX_SOCLE_COMBINATIONS,
-            Reason::OverLimit,
-            "a socle too large to search",
-        )?;
         // every c in (Z/p)^r \ {0}, as counters
         let mut c = vec![0u64; socle.len()];
         for _ in 1..size {
@@ -241,7 +220,6 @@ fn check_independent(
             }
             let exps: Vec<Integer> = c.iter().map(|ci| Integer::from(*ci)).collect();
             let terms: Vec<(&Form, &Integer)> = socle.iter().zip(exps.iter()).collect();
-            budget.charge(&exps.iter().collect::<Vec<_>>())?;
             let Ok(x) = Form::product(&terms, d) else {
                 return reject(Reason::OrderWitnessForm, "form arithmetic failed");
             };

@@ -124,9 +124,8 @@ fn morrison(
                 lucas_q: Integer::from(lucas_q),
                 factors: factors.clone(),
             };
-            let mut work = 100_000;
             let mut used = classcert_verifier::math::primality::Used::default();
-            if classcert_verifier::math::primality::check(p, &ev, 0, &mut work, &mut used).is_ok() {
+            if classcert_verifier::math::primality::check(p, &ev, 0, &mut used).is_ok() {
                 return Some(ev);
             }
         }

@@ -5,8 +5,7 @@
 
 use super::LatticeOk;
 use crate::ideals::form::Form;
-use crate::limits::MAX_COMPOSITIONS;
-use crate::relations::forms::{product, Budget};
+use crate::relations::forms::product;
 use crate::report::reason::{reject, reject_if, Check, Reason};
 use crate::report::view::{short_number, GeneratorView};
 use classcert_format::{Claim, Lattice};
@@ -69,7 +68,6 @@ pub(crate) fn check_claim(
         "one generator per invariant factor is required",
     )?;
     let r = l.generators.len();
-    let mut budget = Budget::new(MAX_COMPOSITIONS);
     let mut out = Vec::with_capacity(c.generators.len());
     for ((i, _), g) in nontrivial.iter().zip(c.generators.iter()) {
         reject_if(
@@ -110,7 +108,7 @@ pub(crate) fn check_claim(
             let why = format!("generator {i} has no reduced form");
             return reject(Reason::GeneratorMismatch, why);
         };
-        let Some(acc) = product(forms, &entries, d, &mut budget)? else {
+        let Some(acc) = product(forms, &entries, d)? else {
             return reject(Reason::GeneratorMismatch, "form arithmetic failed");
         };
         reject_if(

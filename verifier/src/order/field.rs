@@ -22,7 +22,7 @@ use crate::field::fppoly::Fp;
 use crate::field::order::FieldOrder;
 use crate::field::roots::{check_roots, Roots};
 use crate::field::zpoly;
-use crate::limits::{MAX_FIELD_COEFF_BITS, MAX_IRREDUCIBILITY_PRIMES, MAX_PROOF_POWERS};
+use crate::limits::{MAX_FIELD_COEFF_BITS, MAX_IRREDUCIBILITY_PRIMES};
 use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Embedding, Order, PrimePower};
 use rug::Integer;
@@ -151,7 +151,6 @@ pub(crate) fn check_field_maximality(
             "orders of number fields are certified only as maximal orders for now: the certificate must give the factorisation of |disc(O)|",
         );
     };
-    let mut work = MAX_PROOF_POWERS;
     let mut abs = Integer::from(o.order.discriminant().abs_ref());
     if let Some(c) = unfactored {
         let coprime = factors.iter().all(|pp| !c.is_divisible(&pp.prime));
@@ -167,7 +166,6 @@ pub(crate) fn check_field_maximality(
         &abs,
         "|disc(O)| without its unfactored part",
         Reason::MaximalityFactorisation,
-        &mut work,
     )?;
     for pp in factors.iter().filter(|pp| pp.exponent >= 2) {
         match o.order.is_p_maximal(&pp.prime) {

@@ -7,7 +7,7 @@
 //! [`crate::primality`]. Without the claim the verdict speaks only of "the
 //! order of discriminant D".
 
-use crate::limits::{MAX_DISCRIMINANT_BITS, MAX_FACTORS, MAX_PROOF_POWERS};
+use crate::limits::{MAX_DISCRIMINANT_BITS, MAX_FACTORS};
 use crate::primality::{self, ProofError, Status, Used};
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, reject_if, Check, Reason};
@@ -71,15 +71,8 @@ pub(crate) fn check_maximality(
     let Some(factors) = claim else {
         return Ok(MaximalityOk { evidence: None });
     };
-    let mut work = MAX_PROOF_POWERS;
     let abs_d = Integer::from(d.abs_ref());
-    let evidence = check_factorisation(
-        factors,
-        &abs_d,
-        "|D|",
-        Reason::MaximalityFactorisation,
-        &mut work,
-    )?;
+    let evidence = check_factorisation(factors, &abs_d, "|D|", Reason::MaximalityFactorisation)?;
     let two_exp = factors
         .iter()
         .find(|f| f.prime == 2)
@@ -104,13 +97,12 @@ pub(crate) fn check_maximality(
 
 /// `factors` is the factorisation of `target` into primes listed once each
 /// in increasing order, each with checked evidence. A wrong factorisation
-/// is refused with `reason`; `work` counts modular powers left.
+/// is refused with `reason`.
 pub(crate) fn check_factorisation(
     factors: &[PrimePower],
     target: &Integer,
     what: &str,
     reason: Reason,
-    work: &mut u64,
 ) -> Check<Factorisation> {
     reject_if(
         factors.len() > MAX_FACTORS,
@@ -131,7 +123,7 @@ pub(crate) fn check_factorisation(
             Reason::OverLimit,
             "a factor is too large",
         )?;
-        match primality::check(&f.prime, &f.evidence, 0, work, &mut out.used) {
+        match primality::check(&f.prime, &f.evidence, 0, &mut out.used) {
             Err(ProofError::Composite(q)) => {
                 return reject(
                     reason,
@@ -214,21 +206,15 @@ mod tests {
     #[test]
     fn factorisations_must_be_exact_and_ordered() {
         let r = Reason::MaximalityFactorisation;
-        let mut w = 100;
         let t = Integer::from(84);
-        assert!(check_factorisation(&[pp(2, 2), pp(3, 1), pp(7, 1)], &t, "n", r, &mut w).is_ok());
+        assert!(check_factorisation(&[pp(2, 2), pp(3, 1), pp(7, 1)], &t, "n", r).is_ok());
         for bad in [
             vec![pp(3, 1), pp(2, 2), pp(7, 1)],
             vec![pp(2, 2), pp(3, 1)],
             vec![pp(2, 2), pp(3, 0), pp(7, 1)],
             vec![pp(2, 2), pp(21, 1)],
         ] {
-            assert_eq!(
-                check_factorisation(&bad, &t, "n", r, &mut w)
-                    .unwrap_err()
-                    .reason,
-                r
-            );
+            assert_eq!(check_factorisation(&bad, &t, "n", r).unwrap_err().reason, r);
         }
     }
 }

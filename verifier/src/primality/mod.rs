@@ -35,13 +35,12 @@ pub struct Used {
     pub morrison: bool,
 }
 
-/// Checks that `n` is prime by `ev`. `work` counts modular
-/// exponentiations left.
+/// Checks that `n` is prime by `ev` (its modular powers are bounded
+/// before it starts, `limits::estimate`).
 pub fn check(
     n: &Integer,
     ev: &PrimalityEvidence,
     depth: u32,
-    work: &mut u64,
     used: &mut Used,
 ) -> Result<Status, ProofError> {
     if depth > MAX_PROOF_DEPTH || n.significant_bits() > MAX_DISCRIMINANT_BITS {
@@ -55,9 +54,9 @@ pub fn check(
         },
         PrimalityEvidence::Pocklington { factors } => {
             used.pocklington = true;
-            pocklington::check_step(n, factors, work)?;
+            pocklington::check_step(n, factors)?;
             let subs = factors.iter().map(|f| (&f.q, &*f.evidence));
-            check_factors(subs, depth, work, used)
+            check_factors(subs, depth, used)
         }
         PrimalityEvidence::Morrison {
             lucas_p,
@@ -65,9 +64,9 @@ pub fn check(
             factors,
         } => {
             used.morrison = true;
-            morrison::check_step(n, lucas_p, lucas_q, factors, work)?;
+            morrison::check_step(n, lucas_p, lucas_q, factors)?;
             let subs = factors.iter().map(|f| (&f.q, &*f.evidence));
-            check_factors(subs, depth, work, used)
+            check_factors(subs, depth, used)
         }
     }
 }
@@ -76,12 +75,11 @@ pub fn check(
 fn check_factors<'a>(
     subs: impl Iterator<Item = (&'a Integer, &'a PrimalityEvidence)>,
     depth: u32,
-    work: &mut u64,
     used: &mut Used,
 ) -> Result<Status, ProofError> {
     let mut status = Status::Proven;
     for (q, ev) in subs {
-        if check(q, ev, depth + 1, work, used)? == Status::AssumedBpsw {
+        if check(q, ev, depth + 1, used)? == Status::AssumedBpsw {
             status = Status::AssumedBpsw;
         }
     }

@@ -40,12 +40,8 @@ impl<'a> Checked<'a> {
 }
 
 /// `Σ c · rel[j].entries` over `terms = [(j, c)]`, the relations taken from
-/// `pool`, with `work` charged one unit per entry touched and one per term.
-pub(crate) fn combine(
-    pool: Checked,
-    terms: &[(u32, Integer)],
-    work: &mut u64,
-) -> Check<BTreeMap<u32, Integer>> {
+/// `pool` (their work is bounded before it starts, `limits::estimate`).
+pub(crate) fn combine(pool: Checked, terms: &[(u32, Integer)]) -> Check<BTreeMap<u32, Integer>> {
     let mut acc: BTreeMap<u32, Integer> = BTreeMap::new();
     let mut prev: Option<u32> = None;
     for (j, c) in terms {
@@ -71,13 +67,6 @@ pub(crate) fn combine(
                 ),
             );
         };
-        let cost = rel.entries.len() as u64 + 1;
-        reject_if(
-            cost > *work,
-            Reason::OverLimit,
-            "combinations need more work than the verifier allows",
-        )?;
-        *work -= cost;
         for (i, e) in &rel.entries {
             *acc.entry(*i).or_default() += Integer::from(c * e);
         }
@@ -103,7 +92,6 @@ pub(crate) fn equals(entries: &[(usize, &Integer)], sum: &BTreeMap<u32, Integer>
 pub(crate) fn check_derived(
     raw: &[Relation],
     derived: &[Relation],
-    work: &mut u64,
     beat: &mut dyn FnMut(),
 ) -> Check<()> {
     reject_if(
@@ -156,7 +144,7 @@ pub(crate) fn check_derived(
                 ),
             );
         }
-        let sum = combine(pool, terms, work)?;
+        let sum = combine(pool, terms)?;
         let entries: Vec<(usize, &Integer)> =
             rel.entries.iter().map(|(i, e)| (*i as usize, e)).collect();
         reject_if(
@@ -218,16 +206,13 @@ mod tests {
             raw: &raw,
             derived: &[],
         };
-        let mut work = 100;
         let t = vec![(0u32, Integer::from(2)), (1u32, Integer::from(-2))];
-        let c = combine(pool, &t, &mut work).unwrap();
+        let c = combine(pool, &t).unwrap();
         let got: Vec<(u32, i64)> = c.iter().map(|(i, e)| (*i, e.to_i64().unwrap())).collect();
         // 2 (e_0 - e_2) - 2 (e_0 + 3 e_1) = -6 e_1 - 2 e_2
         assert_eq!(got, vec![(1, -6), (2, -2)]);
-        // two entries of three each, plus one per term
-        assert_eq!(work, 100 - 6);
         let bad = vec![(1u32, Integer::from(1)), (0u32, Integer::from(1))];
-        assert!(combine(pool, &bad, &mut work).is_err());
+        assert!(combine(pool, &bad).is_err());
     }
 
     #[test]
@@ -238,14 +223,13 @@ mod tests {
             derived(vec![(1, -3), (2, -1)], vec![(0, 1), (1, -1)]),
             derived(vec![(0, 1), (1, -6), (2, -3)], vec![(0, 1), (2, 2)]),
         ];
-        let mut work = 1000;
-        assert_eq!(reason(check_derived(&raw, &d, &mut work, &mut || {})), None);
+        assert_eq!(reason(check_derived(&raw, &d, &mut || {})), None);
         // then an elimination or a row of H may name either
         let pool = Checked {
             raw: &raw,
             derived: &d,
         };
-        let sum = combine(pool, &[(3, Integer::from(1))], &mut work).unwrap();
+        let sum = combine(pool, &[(3, Integer::from(1))]).unwrap();
         let one = Integer::from(1);
         let m6 = Integer::from(-6);
         let m3 = Integer::from(-3);
@@ -257,9 +241,8 @@ mod tests {
         let raw = raw();
         // d_0 names itself (index 2): the entries would be any vector at all
         let own = vec![derived(vec![(5, 7)], vec![(2, 1)])];
-        let mut work = 1000;
         assert_eq!(
-            reason(check_derived(&raw, &own, &mut work, &mut || {})),
+            reason(check_derived(&raw, &own, &mut || {})),
             Some(Reason::CombinationMismatch)
         );
         // d_0 names d_1 (index 3), which names d_0: a cycle of claims
@@ -268,13 +251,13 @@ mod tests {
             derived(vec![(5, 7)], vec![(2, 1)]),
         ];
         assert_eq!(
-            reason(check_derived(&raw, &cycle, &mut work, &mut || {})),
+            reason(check_derived(&raw, &cycle, &mut || {})),
             Some(Reason::CombinationMismatch)
         );
         // an index beyond every relation
         let far = vec![derived(vec![(5, 7)], vec![(u32::MAX, 1)])];
         assert_eq!(
-            reason(check_derived(&raw, &far, &mut work, &mut || {})),
+            reason(check_derived(&raw, &far, &mut || {})),
             Some(Reason::CombinationMismatch)
         );
     }
@@ -282,39 +265,23 @@ mod tests {
     #[test]
     fn a_wrong_derived_entry_is_refused() {
         let raw = raw();
-        let mut work = 1000;
         // r_0 - r_1 is -3 e_1 - e_2, not -3 e_1 - 2 e_2
         let wrong = vec![derived(vec![(1, -3), (2, -2)], vec![(0, 1), (1, -1)])];
         assert_eq!(
-            reason(check_derived(&raw, &wrong, &mut work, &mut || {})),
+            reason(check_derived(&raw, &wrong, &mut || {})),
             Some(Reason::CombinationMismatch)
         );
         // the right entries twice over at one index: refused as malformed
         let doubled = vec![derived(vec![(1, -3), (1, -3)], vec![(0, 1), (1, -1)])];
         assert_eq!(
-            reason(check_derived(&raw, &doubled, &mut work, &mut || {})),
+            reason(check_derived(&raw, &doubled, &mut || {})),
             Some(Reason::CombinationMismatch)
         );
         // a derived relation shown by an element: the wrong kind
         let element = vec![rel(vec![(1, -3), (2, -1)])];
         assert_eq!(
-            reason(check_derived(&raw, &element, &mut work, &mut || {})),
+            reason(check_derived(&raw, &element, &mut || {})),
             Some(Reason::WitnessKind)
         );
-    }
-
-    #[test]
-    fn derived_work_is_charged() {
-        let raw = raw();
-        let d = vec![derived(vec![(1, -3), (2, -1)], vec![(0, 1), (1, -1)])];
-        // two terms of 2 entries each, plus one per term: 6 units
-        let mut work = 5;
-        assert_eq!(
-            reason(check_derived(&raw, &d, &mut work, &mut || {})),
-            Some(Reason::OverLimit)
-        );
-        let mut work = 6;
-        assert_eq!(reason(check_derived(&raw, &d, &mut work, &mut || {})), None);
-        assert_eq!(work, 0);
     }
 }

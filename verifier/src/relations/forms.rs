@@ -1,48 +1,13 @@
 //! `D < 0`: a relation `∏ P_i^{e_i}` holds when the product of the prime
 //! forms reduces to the principal form, because every class of positive
 //! definite forms holds exactly one reduced form (Gauss; Cohen GTM 138,
-//! Prop. 5.3.3). The work is charged to a [`Budget`] before it is done.
+//! Prop. 5.3.3). The work is bounded before it starts (`limits::estimate`).
 
 use crate::ideals::form::Form;
 use crate::limits::{MAX_ENTRY_BITS, MAX_TABLE_FORMS};
 use crate::report::reason::{reject, reject_if, Check, Reason};
 use rug::Integer;
 use std::collections::BTreeMap;
-
-/// Budget for form arithmetic, in compositions.
-#[derive(Debug)]
-pub(crate) struct Budget(u64);
-
-impl Budget {
-    pub(crate) fn new(compositions: u64) -> Self {
-        Budget(compositions)
-    }
-
-    /// Charges for `∏ f_i^{e_i}` by simultaneous powering: one squaring per
-    /// bit of the largest exponent plus one composition per set bit.
-    pub(crate) fn charge(&mut self, exps: &[&Integer]) -> Check<()> {
-        let mut max_bits = 0u32;
-        let mut ones = 0u64;
-        for e in exps {
-            let bits = e.significant_bits();
-            reject_if(
-                bits > MAX_ENTRY_BITS,
-                Reason::OverLimit,
-                "an exponent is too large",
-            )?;
-            max_bits = max_bits.max(bits);
-            ones += u64::from(Integer::from(e.abs_ref()).count_ones().unwrap_or(bits));
-        }
-        let cost = u64::from(max_bits) + ones;
-        reject_if(
-            cost > self.0,
-            Reason::OverLimit,
-            "relations need more form arithmetic than the verifier allows",
-        )?;
-        self.0 -= cost;
-        Ok(())
-    }
-}
 
 /// Exponents of at least this many bits are raised from a table of the
 /// base's powers instead of by squaring: the eliminations of a dense block
@@ -108,30 +73,24 @@ impl Powers {
         acc
     }
 
-    /// Compositions for `f_i^e` from the table: one per window, and
-    /// `ROW` for each window the table must gain. `None` when the tables
-    /// would outgrow [`MAX_TABLE_FORMS`] (the caller squares instead).
-    fn cost(&self, i: usize, e: &Integer) -> Option<u64> {
-        let windows = u64::from(e.significant_bits().div_ceil(WINDOW));
-        let have = self.tables.get(&i).map_or(0, |r| r.len() as u64);
-        let new = windows.saturating_sub(have);
-        let new_forms = usize::try_from(new).ok()?.checked_mul(ROW)?;
-        if self.stored.checked_add(new_forms)? > MAX_TABLE_FORMS {
-            return None;
-        }
-        Some(windows + new * ROW as u64)
+    /// Whether the tables may grow to raise `f_i^e`: `ROW` forms for each
+    /// window they must gain, within [`MAX_TABLE_FORMS`] (else the caller
+    /// squares instead).
+    fn fits(&self, i: usize, e: &Integer) -> bool {
+        let windows = e.significant_bits().div_ceil(WINDOW) as usize;
+        let new = windows.saturating_sub(self.tables.get(&i).map_or(0, Vec::len));
+        self.stored.saturating_add(new.saturating_mul(ROW)) <= MAX_TABLE_FORMS
     }
 }
 
-/// The reduced product `∏ forms[i]^e` over `entries`, charged to `budget`;
+/// The reduced product `∏ forms[i]^e` over `entries`;
 /// `None` if form arithmetic is refused (inputs that break its invariants).
 pub(crate) fn product(
     forms: &[&Form],
     entries: &[(usize, &Integer)],
     d: &Integer,
-    budget: &mut Budget,
 ) -> Check<Option<Form>> {
-    product_with(forms, entries, d, budget, None)
+    product_with(forms, entries, d, None)
 }
 
 /// [`product`], raising large exponents from `powers` when given.
@@ -139,12 +98,10 @@ pub(crate) fn product_with(
     forms: &[&Form],
     entries: &[(usize, &Integer)],
     d: &Integer,
-    budget: &mut Budget,
     powers: Option<&mut Powers>,
 ) -> Check<Option<Form>> {
     let mut terms = Vec::with_capacity(entries.len());
     let mut tabled = Vec::new();
-    let mut table_cost = 0u64;
     for (i, e) in entries {
         let Some(f) = forms.get(*i) else {
             return reject(
@@ -158,28 +115,16 @@ pub(crate) fn product_with(
             "an exponent is too large",
         )?;
         let abs = Integer::from(e.abs_ref());
-        let cost = match powers.as_deref() {
-            Some(p) if abs.significant_bits() >= TABLE_MIN_BITS => p.cost(*i, &abs),
-            _ => None,
-        };
-        match cost {
-            // (the tables of two entries with one index would share rows:
-            // charging both in full only overcharges)
-            Some(c) if !tabled.iter().any(|(j, _, _, _)| j == i) => {
-                table_cost = table_cost.saturating_add(c + 1);
-                tabled.push((*i, *f, abs, **e < 0));
+        let table = powers
+            .as_deref()
+            .filter(|_| abs.significant_bits() >= TABLE_MIN_BITS);
+        match table.is_some_and(|p| p.fits(*i, &abs)) {
+            true if !tabled.iter().any(|(j, _, _, _)| j == i) => {
+                tabled.push((*i, *f, abs, **e < 0))
             }
             _ => terms.push((*f, *e)),
         }
     }
-    let exps: Vec<&Integer> = terms.iter().map(|(_, e)| *e).collect();
-    budget.charge(&exps)?;
-    reject_if(
-        table_cost > budget.0,
-        Reason::OverLimit,
-        "relations need more form arithmetic than the verifier allows",
-    )?;
-    budget.0 -= table_cost;
     let Ok(mut acc) = Form::product(&terms, d) else {
         return Ok(None);
     };
@@ -203,10 +148,9 @@ pub(crate) fn is_principal(
     forms: &[&Form],
     entries: &[(usize, &Integer)],
     d: &Integer,
-    budget: &mut Budget,
     powers: &mut Powers,
 ) -> Check<bool> {
-    Ok(product_with(forms, entries, d, budget, Some(powers))? == Some(Form::principal(d)))
+    Ok(product_with(forms, entries, d, Some(powers))? == Some(Form::principal(d)))
 }
 
 #[cfg(test)]
@@ -219,14 +163,13 @@ mod tests {
         let d = Integer::from(-23);
         let g = Form::new(Integer::from(2), Integer::from(1), &d).unwrap();
         let forms = [&g];
-        let mut budget = Budget::new(1000);
         let three = Integer::from(3);
         let two = Integer::from(2);
         let mut p = Powers::default();
-        assert!(is_principal(&forms, &[(0, &three)], &d, &mut budget, &mut p).unwrap());
-        assert!(!is_principal(&forms, &[(0, &two)], &d, &mut budget, &mut p).unwrap());
+        assert!(is_principal(&forms, &[(0, &three)], &d, &mut p).unwrap());
+        assert!(!is_principal(&forms, &[(0, &two)], &d, &mut p).unwrap());
         // an index outside the factor base
-        let e = is_principal(&forms, &[(1, &three)], &d, &mut budget, &mut p).unwrap_err();
+        let e = is_principal(&forms, &[(1, &three)], &d, &mut p).unwrap_err();
         assert_eq!(e.reason, Reason::EliminationStructure);
     }
 
@@ -247,14 +190,12 @@ mod tests {
         assert!(prime_forms.len() >= 3);
         let forms: Vec<&Form> = prime_forms.iter().collect();
         let mut powers = Powers::default();
-        let mut budget = Budget::new(u64::MAX);
         for (t, bits) in [24u32, 25, 31, 64, 97, 200].into_iter().enumerate() {
             let e1 = (Integer::from(1) << bits) - 12345 - t as u32;
             let e2 = -(Integer::from(3) << (bits / 2 + 20)) + 7;
             let small = Integer::from(-2);
             let entries = [(0usize, &e1), (1, &small), (2, &e2)];
-            let tabled =
-                product_with(&forms, &entries, &d, &mut budget, Some(&mut powers)).unwrap();
+            let tabled = product_with(&forms, &entries, &d, Some(&mut powers)).unwrap();
             let plain = forms[0]
                 .pow(&e1, &d)
                 .unwrap()
@@ -268,18 +209,11 @@ mod tests {
     }
 
     #[test]
-    fn budget_is_charged_before_work() {
-        let mut b = Budget::new(10);
-        let big = Integer::from(1) << 20u32; // 21 bits, one set bit
-        assert_eq!(b.charge(&[&big]).unwrap_err().reason, Reason::OverLimit);
+    fn an_exponent_over_the_cap_is_refused_before_work() {
+        let d = Integer::from(-23);
+        let g = Form::new(Integer::from(2), Integer::from(1), &d).unwrap();
         let huge = Integer::from(1) << (MAX_ENTRY_BITS + 1);
-        assert_eq!(
-            Budget::new(u64::MAX).charge(&[&huge]).unwrap_err().reason,
-            Reason::OverLimit
-        );
-        let small = Integer::from(5); // 3 bits, 2 set bits
-        assert!(b.charge(&[&small]).is_ok());
-        assert!(b.charge(&[&small]).is_ok());
-        assert!(b.charge(&[&small]).is_err());
+        let e = product(&[&g], &[(0, &huge)], &d).unwrap_err();
+        assert_eq!(e.reason, Reason::OverLimit);
     }
 }

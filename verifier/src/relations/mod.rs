@@ -17,12 +17,12 @@ pub(crate) mod forms;
 
 use crate::ideals::form::Form;
 use crate::ideals::OrderArithmetic;
-use crate::limits::{MAX_COMBINATION_WORK, MAX_COMPOSITIONS, MAX_RAW_RELATIONS};
+use crate::limits::MAX_RAW_RELATIONS;
 use crate::registry::{self, Theorem};
 use crate::report::reason::{reject, reject_if, Check, Reason};
 use classcert_format::{Relation, Witness};
 use combinations::Checked;
-use forms::{Budget, Powers};
+use forms::Powers;
 use rug::Integer;
 
 /// Token: every raw relation holds by its element witness, and every
@@ -31,18 +31,13 @@ use rug::Integer;
 #[derive(Debug)]
 pub(crate) struct RawOk<'a> {
     relations: Option<Checked<'a>>,
-    /// What is left of the combination budget after the derived relations.
-    work: u64,
 }
 
 impl RawOk<'_> {
     /// No raw relations (form reduction), for unit tests of later steps.
     #[cfg(test)]
     pub(crate) fn for_tests() -> RawOk<'static> {
-        RawOk {
-            relations: None,
-            work: 0,
-        }
+        RawOk { relations: None }
     }
 
     /// The registry entry element witnesses rest on, if any were used.
@@ -64,12 +59,7 @@ pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
     beat: &mut dyn FnMut(),
 ) -> Check<RawOk<'a>> {
     let raw = match (raw, needs_elements) {
-        (None, false) if derived.is_none() => {
-            return Ok(RawOk {
-                relations: None,
-                work: 0,
-            })
-        }
+        (None, false) if derived.is_none() => return Ok(RawOk { relations: None }),
         (Some(raw), true) => raw,
         (_, false) => {
             return reject(
@@ -96,11 +86,9 @@ pub(crate) fn check_raw_relations<'a, A: OrderArithmetic>(
         arith.check_element_relation(ideals, k, rel)?;
     }
     let derived = derived.as_deref().unwrap_or_default();
-    let mut work = MAX_COMBINATION_WORK;
-    combinations::check_derived(raw, derived, &mut work, beat)?;
+    combinations::check_derived(raw, derived, beat)?;
     Ok(RawOk {
         relations: Some(Checked { raw, derived }),
-        work,
     })
 }
 
@@ -111,26 +99,21 @@ pub(crate) enum Witnesses<'a> {
     Forms {
         forms: Vec<&'a Form>,
         d: &'a Integer,
-        budget: Budget,
         powers: Powers,
         elements: usize,
     },
     /// As combinations of checked raw and derived relations.
-    Raw { pool: Checked<'a>, work: u64 },
+    Raw { pool: Checked<'a> },
 }
 
 impl<'a> Witnesses<'a> {
     /// Raw relations when there are any, form reduction otherwise.
     pub(crate) fn new(raw: &RawOk<'a>, forms: Vec<&'a Form>, d: &'a Integer) -> Self {
         match raw.relations {
-            Some(pool) => Witnesses::Raw {
-                pool,
-                work: raw.work,
-            },
+            Some(pool) => Witnesses::Raw { pool },
             None => Witnesses::Forms {
                 forms,
                 d,
-                budget: Budget::new(MAX_COMPOSITIONS),
                 powers: Powers::default(),
                 elements: 0,
             },
@@ -174,14 +157,10 @@ impl<'a> Witnesses<'a> {
         match (self, witness) {
             (
                 Witnesses::Forms {
-                    forms,
-                    d,
-                    budget,
-                    powers,
-                    ..
+                    forms, d, powers, ..
                 },
                 Witness::FormReduction,
-            ) => forms::is_principal(forms, entries, d, budget, powers),
+            ) => forms::is_principal(forms, entries, d, powers),
             // A sieved relation's element: its norm and one residue per
             // prime show it (section 2), without form arithmetic.
             (
@@ -205,8 +184,8 @@ impl<'a> Witnesses<'a> {
                 *elements += 1;
                 Ok(true)
             }
-            (Witnesses::Raw { pool, work }, Witness::Combination { terms }) => {
-                let sum = combinations::combine(*pool, terms, work)?;
+            (Witnesses::Raw { pool }, Witness::Combination { terms }) => {
+                let sum = combinations::combine(*pool, terms)?;
                 Ok(combinations::equals(entries, &sum))
             }
             (Witnesses::Forms { .. }, _) => reject(
