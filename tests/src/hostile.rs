@@ -398,7 +398,7 @@ fn bomb_cases(out: &mut Vec<Case>) {
     ] {
         out.push(case(
             name,
-            &format!("the envelope with {what} (the file is 60 bytes)"),
+            &format!("the envelope with {what}, the file ending right after it"),
             Expect::Rejected("decode-truncated"),
             false,
             move || envelope(&head),
