@@ -10,5 +10,6 @@ pub mod cbor_edit;
 pub mod corpus;
 pub mod field_oracle;
 pub mod forge;
+pub mod hostile;
 pub mod oracle;
 pub mod support;
