@@ -238,9 +238,8 @@ impl Walker<'_> {
     }
 }
 
-/// Decodes `bytes` into a value tree with the checks listed in the module
-/// docs. Bignums stay tagged byte strings, so every size round-trips.
-pub fn to_value(bytes: &[u8], limits: WalkLimits) -> Result<Value, DecodeError> {
+/// Walks `bytes` whole: the tree and the bytes charged for it.
+fn walk(bytes: &[u8], limits: WalkLimits) -> Result<(Value, u64), DecodeError> {
     let mut w = Walker {
         bytes,
         pos: 0,
@@ -252,21 +251,19 @@ pub fn to_value(bytes: &[u8], limits: WalkLimits) -> Result<Value, DecodeError> 
     if w.pos != bytes.len() {
         return Err(DecodeError::TrailingData);
     }
-    Ok(v)
+    Ok((v, w.tree_bytes))
+}
+
+/// Decodes `bytes` into a value tree with the checks listed in the module
+/// docs. Bignums stay tagged byte strings, so every size round-trips.
+pub fn to_value(bytes: &[u8], limits: WalkLimits) -> Result<Value, DecodeError> {
+    walk(bytes, limits).map(|(v, _)| v)
 }
 
 /// The bytes [`to_value`] charges for the tree of `bytes` (`None` if they
 /// do not decode under `limits`).
 pub fn tree_bytes(bytes: &[u8], limits: WalkLimits) -> Option<u64> {
-    let mut w = Walker {
-        bytes,
-        pos: 0,
-        items: 0,
-        tree_bytes: SLOT,
-        limits,
-    };
-    w.item(0).ok()?;
-    Some(w.tree_bytes)
+    walk(bytes, limits).ok().map(|(_, t)| t)
 }
 
 /// Encodes a value tree. Writing into a `Vec` cannot fail for the trees
