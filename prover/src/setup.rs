@@ -395,7 +395,7 @@ fn series_terms(abs_d: &Integer) -> u64 {
 }
 
 /// The certificate's Euler trace for `res`.
-pub(crate) fn euler_trace(res: &euler::EulerResult, x: u64) -> EulerTrace {
+pub fn euler_trace(res: &euler::EulerResult, x: u64) -> EulerTrace {
     let to_b = |i: &Interval| to_bounds(i).expect("finite interval");
     EulerTrace {
         theorem: registry::BELABAS_FRIEDMAN.to_string(),

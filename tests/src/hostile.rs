@@ -15,8 +15,8 @@
 
 use crate::support::{vectors_dir, SplitMix};
 use classcert_format::{
-    Body, Bounds, Checkpoint, Document, EulerTrace, Form, Lattice, PocklingtonFactor,
-    PrimalityEvidence, PrimeIdeal, PrimePower, Smith, WitnessBody, WitnessGenerator,
+    Body, Document, EulerTrace, Form, Lattice, PocklingtonFactor, PrimalityEvidence, PrimeIdeal,
+    PrimePower, Smith, WitnessBody, WitnessGenerator,
 };
 use classcert_prover::fb::FactorBase;
 use classcert_prover::setup::to_bounds;
@@ -192,21 +192,7 @@ fn true_trace(d: &Integer, x: u64, trial: u64) -> (EulerTrace, Vec<(u64, u32)>) 
     let limits = [x / 4, x / 2];
     let chi = |p: u64| kronecker_prime(&d_small, p);
     let res = euler::compute(x, &primes, &chi, &limits, &log_delta).expect("Euler product");
-    let b = |i: &Interval| -> Bounds { to_bounds(i).expect("finite") };
-    let trace = EulerTrace {
-        theorem: registry::BELABAS_FRIEDMAN.to_string(),
-        x,
-        checkpoints: res
-            .checkpoints
-            .iter()
-            .map(|c| Checkpoint {
-                limit: c.limit,
-                a: b(&c.a),
-                c: b(&c.c),
-            })
-            .collect(),
-        log_l: b(&res.log_l),
-    };
+    let trace = classcert_prover::setup::euler_trace(&res, x);
     (trace, conductor)
 }
 

@@ -402,6 +402,34 @@ fn random_body_changes_never_verify_a_false_claim() {
     );
 }
 
+/// `rounds` random changes to `honest` (of discriminant `d`), each
+/// re-encoded and verified: a panic fails, and whatever verifies must pass
+/// `holds`. Returns (rejected, changes).
+fn random_changes(
+    d: i64,
+    honest: &Body,
+    rounds: usize,
+    rng: &mut SplitMix,
+    holds: &dyn Fn(&classcert_verifier::report::Verified, &str),
+) -> (usize, usize) {
+    let (mut rejected, mut changes) = (0, 0);
+    for round in 0..rounds {
+        let mut b = honest.clone();
+        let what = change_a_number(&mut b, rng);
+        if b == *honest {
+            continue;
+        }
+        changes += 1;
+        let bytes = encode(&b);
+        match std::panic::catch_unwind(|| verify_bytes(&bytes).outcome) {
+            Err(_) => panic!("D = {d}, round {round}: verifier panicked ({what})"),
+            Ok(Err(_)) => rejected += 1,
+            Ok(Ok(v)) => holds(&v, &format!("D = {d}, round {round}: changed {what}")),
+        }
+    }
+    (rejected, changes)
+}
+
 /// The same property over random small orders, maximal and not: for each
 /// of 16 discriminants with |D| < 20 000 drawn from a seeded generator,
 /// 40 random changes; whatever verifies states the group the oracle finds
@@ -416,26 +444,12 @@ fn random_small_orders_never_verify_a_false_claim() {
             continue;
         }
         orders += 1;
-        let honest = prove_body(d);
         let truth = oracle::group_invariants_bruteforce(d);
-        for round in 0..40 {
-            let mut b = honest.clone();
-            let what = change_a_number(&mut b, &mut rng);
-            if b == honest {
-                continue;
-            }
-            changes += 1;
-            let bytes = encode(&b);
-            match std::panic::catch_unwind(|| verify_bytes(&bytes).outcome) {
-                Err(_) => panic!("D = {d}, round {round}: verifier panicked ({what})"),
-                Ok(Err(_)) => rejected += 1,
-                Ok(Ok(v)) => assert_eq!(
-                    invariants_u64(&v),
-                    truth,
-                    "D = {d}, round {round}: changed {what}, verified a false group"
-                ),
-            }
-        }
+        let holds = |v: &classcert_verifier::report::Verified, what: &str| {
+            assert_eq!(invariants_u64(v), truth, "{what}: verified a false group")
+        };
+        let (r, c) = random_changes(d, &prove_body(d), 40, &mut rng, &holds);
+        (rejected, changes) = (rejected + r, changes + c);
     }
     eprintln!("{rejected} of {changes} random changes over 16 orders rejected");
     // most changes are harmful; if almost none were rejected, the loop is
@@ -463,35 +477,21 @@ fn random_real_fields_never_verify_a_false_claim() {
             oracle::class_number_real_finite_formula(d),
             oracle::regulator_by_continued_fraction(d),
         );
+        let holds = |v: &classcert_verifier::report::Verified, what: &str| {
+            let got = v.unit().expect("a unit for D > 0").regulator.mid_f64();
+            assert_eq!(*v.class_number(), h, "{what}: the class number");
+            assert!(
+                (got - r).abs() < 1e-6 * r.max(1.0),
+                "{what}: R {got}, not {r}"
+            );
+        };
         // the honest certificate states what the oracle computes
-        let v = expect_verified(&verify_bytes(&encode(&honest)), "honest");
-        let got = v.unit().expect("a unit for D > 0").regulator.mid_f64();
-        assert_eq!(*v.class_number(), h, "D = {d}: the honest class number");
-        assert!(
-            (got - r).abs() < 1e-6 * r.max(1.0),
-            "D = {d}: R {got}, not {r}"
+        holds(
+            &expect_verified(&verify_bytes(&encode(&honest)), "honest"),
+            "honest",
         );
-        for round in 0..30 {
-            let mut b = honest.clone();
-            let what = change_a_number(&mut b, &mut rng);
-            if b == honest {
-                continue;
-            }
-            changes += 1;
-            let bytes = encode(&b);
-            match std::panic::catch_unwind(|| verify_bytes(&bytes).outcome) {
-                Err(_) => panic!("D = {d}, round {round}: verifier panicked ({what})"),
-                Ok(Err(_)) => rejected += 1,
-                Ok(Ok(v)) => {
-                    let got = v.unit().expect("a unit for D > 0").regulator.mid_f64();
-                    assert_eq!(*v.class_number(), h, "D = {d}, round {round}: {what}");
-                    assert!(
-                        (got - r).abs() < 1e-6 * r.max(1.0),
-                        "D = {d}: R {got}, not {r}"
-                    );
-                }
-            }
-        }
+        let (rj, c) = random_changes(d, &honest, 30, &mut rng, &holds);
+        (rejected, changes) = (rejected + rj, changes + c);
     }
     eprintln!("{rejected} of {changes} random changes over 8 real fields rejected");
     assert!(rejected * 2 > changes, "{rejected} of {changes} rejected");
