@@ -64,6 +64,11 @@ pub const MAX_FILE_BYTES: usize = 64 << 20;
 pub const MAX_TREE_BYTES: u64 = 256 << 20;
 pub const TREE_BYTES_PER_INPUT_BYTE: u64 = 32;
 
+/// Bits of an input number printed in full; a longer one (only a refused
+/// certificate can hold one) is shown by its size, as printing it would
+/// cost more than refusing it.
+pub const MAX_PRINTED_BITS: u32 = 65_536;
+
 /// Lines read from a policy file (`--policy`), and its size in bytes.
 pub const MAX_POLICY_LINES: usize = 1000;
 pub const MAX_POLICY_BYTES: u64 = 64 << 10;

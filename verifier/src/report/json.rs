@@ -13,7 +13,7 @@ use rug::Integer;
 pub const SCHEMA: &str = "classcert/1";
 
 fn num(x: &Integer) -> Json {
-    Json::str(x.to_string())
+    Json::str(super::view::printable(x))
 }
 
 /// A generator: `{"order", "form": [a, b, c]}` or

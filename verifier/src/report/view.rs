@@ -195,13 +195,22 @@ fn product_text(
 /// At most `MAX_SHOWN_DIGITS` digits of a number from the input, so a
 /// huge value cannot flood a message: `1234567890…(2000 digits)`.
 pub fn short_number(n: &Integer) -> String {
-    let s = n.to_string();
+    let s = printable(n);
     let (sign, digits) = s.split_at(usize::from(s.starts_with('-')));
     if digits.len() <= MAX_SHOWN_DIGITS {
         return s;
     }
     let head: String = digits.chars().take(MAX_SHOWN_DIGITS - 10).collect();
     format!("{sign}{head}…({} digits)", digits.len())
+}
+
+/// `n` in decimal, or `-(8388608-bit number)` past `MAX_PRINTED_BITS`.
+pub fn printable(n: &Integer) -> String {
+    let bits = n.significant_bits();
+    match bits > crate::limits::MAX_PRINTED_BITS {
+        true => format!("{}({bits}-bit number)", if *n < 0 { "-" } else { "" }),
+        false => n.to_string(),
+    }
 }
 
 /// The most digits of an input number a message shows.
@@ -271,6 +280,13 @@ mod tests {
         assert_eq!(short_number(&Integer::from(-3299)), "-3299");
         assert_eq!(prime_powers_text(&[(2, 2), (5, 1)]), "2^2 · 5");
         assert_eq!(prime_powers_text(&[]), "none");
+        // past MAX_PRINTED_BITS only the size is printed (the decimal of
+        // an 8-million-bit D took 0.8 s, more than refusing it)
+        let huge = -(Integer::from(1) << 8_388_607u32);
+        assert_eq!(printable(&huge), "-(8388608-bit number)");
+        assert_eq!(short_number(&huge), "-(8388608-bit number)");
+        let edge = Integer::from(1) << 65_535u32;
+        assert_eq!(printable(&edge), edge.to_string());
     }
 
     /// The former implementation, kept as the reference: the digits of an enclosure that are certain: the midpoint rounded to as
