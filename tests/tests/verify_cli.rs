@@ -143,3 +143,51 @@ fn text_and_empty_files_are_not_certificates() {
         assert!(out.contains("not a classcert certificate"), "{name}: {out}");
     }
 }
+
+#[test]
+fn budget_scale_is_range_checked_and_multiplies_the_budget() {
+    // X = 5·10^7 on minus-3299, true (vectors/hostile/, tests/src/hostile.rs):
+    // estimated at about 3.1e10 units, over the default budget of 1e10.
+    let f = vectors_dir()
+        .join("hostile")
+        .join("euler-x-5e7.cert")
+        .to_string_lossy()
+        .into_owned();
+    let o = run(&[&f], None);
+    assert_eq!(o.status.code(), Some(1));
+    let out = stdout(&o);
+    assert!(out.starts_with("REJECTED: over-limit"), "{out}");
+    assert!(
+        out.contains("over the budget of 1.00e10 (--budget-scale raises it)"),
+        "{out}"
+    );
+    // three times the budget is still short of the estimate
+    let o = run(&["--budget-scale", "3", &f], None);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stdout(&o).contains("over the budget of 3.00e10"),
+        "{}",
+        stdout(&o)
+    );
+    for bad in ["0", "100001", "-1", "two"] {
+        let o = run(&["--budget-scale", bad, &f], None);
+        assert_eq!(
+            o.status.code(),
+            Some(2),
+            "--budget-scale {bad} is a usage error"
+        );
+    }
+}
+
+#[test]
+#[ignore = "about 20 s of real work (a sieve and an Euler product to 5·10^7)"]
+fn budget_scale_admits_a_true_certificate_over_the_default() {
+    let f = vectors_dir()
+        .join("hostile")
+        .join("euler-x-5e7.cert")
+        .to_string_lossy()
+        .into_owned();
+    let o = run(&["--quiet", "--budget-scale", "4", &f], None);
+    assert_eq!(stdout(&o), "VERIFIED\n");
+    assert_eq!(o.status.code(), Some(0));
+}
