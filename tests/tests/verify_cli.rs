@@ -180,7 +180,7 @@ fn budget_scale_is_range_checked_and_multiplies_the_budget() {
 }
 
 #[test]
-#[ignore = "about 20 s of real work (a sieve and an Euler product to 5·10^7)"]
+#[ignore = "about 17 s of real work (a sieve and an Euler product to 5·10^7)"]
 fn budget_scale_admits_a_true_certificate_over_the_default() {
     let f = vectors_dir()
         .join("hostile")
