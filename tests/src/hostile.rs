@@ -113,8 +113,7 @@ pub const STORED: &[&str] = &[
 
 /// The stored bytes of the work input `name` (one of [`STORED`]).
 pub fn stored(name: &str) -> Vec<u8> {
-    let p = vectors_dir().join("hostile").join(format!("{name}.cert"));
-    std::fs::read(&p).unwrap_or_else(|e| panic!("cannot read {}: {e}", p.display()))
+    vector("hostile", name)
 }
 
 /// Every hostile input, small and big, in a fixed order.
@@ -129,9 +128,14 @@ pub fn cases() -> Vec<Case> {
 
 // ---------------------------------------------------------------- helpers
 
-fn golden(name: &str) -> Vec<u8> {
-    let p = vectors_dir().join("golden").join(format!("{name}.cert"));
+/// `vectors/<dir>/<name>.cert`.
+fn vector(dir: &str, name: &str) -> Vec<u8> {
+    let p = vectors_dir().join(dir).join(format!("{name}.cert"));
     std::fs::read(&p).unwrap_or_else(|e| panic!("cannot read {}: {e}", p.display()))
+}
+
+fn golden(name: &str) -> Vec<u8> {
+    vector("golden", name)
 }
 
 fn golden_document(name: &str) -> Document {
@@ -343,27 +347,25 @@ fn damage_cases(out: &mut Vec<Case>) {
 
 fn bomb_cases(out: &mut Vec<Case>) {
     const DEEP: usize = 100_000;
+    // [[[...[0]...]]], DEEP arrays deep
+    let nested = || {
+        let mut b = vec![0x81; DEEP];
+        b.push(0x00);
+        b
+    };
     out.push(case(
         "nesting-arrays-bare",
         "100,000 nested one-element arrays, no envelope",
         Expect::Rejected("not-a-certificate"),
         false,
-        || {
-            let mut b = vec![0x81; DEEP];
-            b.push(0x00);
-            b
-        },
+        nested,
     ));
     out.push(case(
         "nesting-arrays-100000",
         "the certificate envelope with a body of 100,000 nested one-element arrays",
         Expect::Rejected("over-limit"),
         false,
-        || {
-            let mut body = vec![0x81; DEEP];
-            body.push(0x00);
-            envelope(&body)
-        },
+        move || envelope(&nested()),
     ));
     out.push(case(
         "nesting-maps-100000",

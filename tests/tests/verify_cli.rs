@@ -144,15 +144,17 @@ fn text_and_empty_files_are_not_certificates() {
     }
 }
 
+/// `vectors/hostile/euler-x-5e7.cert`: X = 5·10^7 on minus-3299, true
+/// (tests/src/hostile.rs), estimated at about 3.1e10 units, over the
+/// default budget of 1e10.
+fn true_cut_off_at_its_cap() -> String {
+    let p = vectors_dir().join("hostile").join("euler-x-5e7.cert");
+    p.to_string_lossy().into_owned()
+}
+
 #[test]
 fn budget_scale_is_range_checked_and_multiplies_the_budget() {
-    // X = 5·10^7 on minus-3299, true (vectors/hostile/, tests/src/hostile.rs):
-    // estimated at about 3.1e10 units, over the default budget of 1e10.
-    let f = vectors_dir()
-        .join("hostile")
-        .join("euler-x-5e7.cert")
-        .to_string_lossy()
-        .into_owned();
+    let f = true_cut_off_at_its_cap();
     let o = run(&[&f], None);
     assert_eq!(o.status.code(), Some(1));
     let out = stdout(&o);
@@ -182,11 +184,7 @@ fn budget_scale_is_range_checked_and_multiplies_the_budget() {
 #[test]
 #[ignore = "about 17 s of real work (a sieve and an Euler product to 5·10^7)"]
 fn budget_scale_admits_a_true_certificate_over_the_default() {
-    let f = vectors_dir()
-        .join("hostile")
-        .join("euler-x-5e7.cert")
-        .to_string_lossy()
-        .into_owned();
+    let f = true_cut_off_at_its_cap();
     let o = run(&["--quiet", "--budget-scale", "4", &f], None);
     assert_eq!(stdout(&o), "VERIFIED\n");
     assert_eq!(o.status.code(), Some(0));
